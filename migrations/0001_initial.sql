@@ -6,7 +6,8 @@ CREATE TABLE sites (
     id            INTEGER PRIMARY KEY,
     name          TEXT NOT NULL UNIQUE,
     elevation_m   REAL,             -- barometer from the ICAO standard atmosphere when set
-    barometer_pa  REAL,             -- an entered barometer wins over the elevation
+    barometer_kpa REAL,             -- an entered barometer (absolute) wins over the elevation
+    barometer_pa  REAL,
     deleted_at    TEXT
 );
 
@@ -33,9 +34,11 @@ CREATE TABLE tanks (
     heads                   TEXT NOT NULL,
     crown_ratio             REAL,           -- torispherical crown radius / D (default 1.0)
     knuckle_ratio           REAL,           -- torispherical knuckle radius / D (default 0.06)
+    line_temperature_c      REAL NOT NULL,  -- as entered
     line_temperature_k      REAL NOT NULL,
     dp_unit                 TEXT NOT NULL DEFAULT 'inH2O',
-    gauge_span_pa           REAL,           -- full-scale DP of the gauge
+    gauge_span              REAL,           -- full-scale DP of the gauge, in dp_unit as entered
+    gauge_span_pa           REAL,
     gauge_accuracy_percent  REAL,           -- accuracy class, % of span (standard uncertainty)
     relief_pressure_value   REAL,
     relief_pressure_unit    TEXT,

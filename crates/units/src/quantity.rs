@@ -17,7 +17,7 @@ pub trait Unit: Copy + fmt::Debug + PartialEq + 'static {
 }
 
 /// A number with the unit it was entered in, kept so stores can record what the user typed.
-#[derive(Debug, Clone, Copy, PartialEq)]
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
 pub struct Entered<U: Unit> {
     /// The number as entered.
     pub value: f64,
@@ -414,4 +414,14 @@ impl DeliveredQuantity {
 /// Format an SI value in a unit with a given number of decimals, e.g. `12.30 barg`.
 pub fn format_in<U: Unit>(si: f64, unit: U, decimals: usize) -> String {
     format!("{:.*} {}", decimals, unit.value_from_si(si), unit.symbol())
+}
+
+/// Barometric pressure at an elevation above mean sea level by the ICAO standard atmosphere
+/// (ICAO Doc 7488/3, troposphere: p = p0 (1 - L h / T0)^(g M / (R L))), valid below 11 km.
+pub fn icao_barometer_from_elevation(elevation_m: f64) -> AbsolutePressure {
+    const T0_K: f64 = 288.15;
+    const LAPSE_K_M: f64 = 0.0065;
+    // g0 M / (R* L) with M = 0.028 964 4 kg/mol, R* = 8.314 32 J/(mol K) (ICAO Doc 7488).
+    const EXPONENT: f64 = 5.255_88;
+    AbsolutePressure(STANDARD_ATMOSPHERE_PA * (1.0 - LAPSE_K_M * elevation_m / T0_K).powf(EXPONENT))
 }

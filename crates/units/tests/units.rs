@@ -263,3 +263,24 @@ proptest! {
         prop_assert!((back.si().pa() - u.si_from_value(v)).abs() <= 1e-9 * u.si_from_value(v).abs().max(1.0));
     }
 }
+
+/// ICAO standard atmosphere: 89 875 Pa at 1000 m and 79 495 Pa at 2000 m (ICAO Doc 7488/3 tables,
+/// recalled from memory), 101 325 Pa at sea level (definition).
+#[test]
+fn icao_barometer() {
+    assert!(close(
+        icao_barometer_from_elevation(0.0).pa(),
+        101_325.0,
+        1e-12
+    ));
+    assert!(close(
+        icao_barometer_from_elevation(1000.0).pa(),
+        89_875.0,
+        2e-4
+    ));
+    assert!(close(
+        icao_barometer_from_elevation(2000.0).pa(),
+        79_495.0,
+        2e-4
+    ));
+}

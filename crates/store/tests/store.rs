@@ -1,0 +1,203 @@
+//! The store: migrations, history of edits and deletions, and row checks that never panic.
+#![allow(clippy::unwrap_used, clippy::expect_used)]
+
+use proptest::prelude::*;
+use store::*;
+
+fn nitrogen_tank() -> TankSpec {
+    TankFields {
+        site: "Quarry Lane",
+        tank: "QL-N2",
+        fluid: "nitrogen",
+        orientation: "vertical",
+        diameter_m: "2.0",
+        length_m: "5.0",
+        heads: "ellipsoidal",
+        line_temperature_c: "15",
+        ..Default::default()
+    }
+    .check()
+    .unwrap()
+}
+
+fn reading(time: &str, dp: &str) -> ReadingInput {
+    ReadingFields {
+        time,
+        dp,
+        dp_unit: "inH2O",
+        pressure: "11.5",
+        pressure_unit: "barg",
+        ..Default::default()
+    }
+    .check(101_325.0)
+    .unwrap()
+}
+
+#[test]
+fn every_migration_file_is_applied_in_order() {
+    let dir = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("../../migrations");
+    let mut on_disk: Vec<String> = std::fs::read_dir(dir)
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+        .filter(|n| n.ends_with(".sql"))
+        .collect();
+    on_disk.sort();
+    let listed: Vec<&str> = MIGRATION_FILES.iter().map(|(n, _)| *n).collect();
+    assert_eq!(on_disk, listed, "migrations/ and MIGRATION_FILES disagree");
+    let s = Store::open_in_memory().unwrap();
+    assert_eq!(s.schema_version().unwrap(), listed.len() as i64);
+}
+
+#[test]
+fn reopening_keeps_data_and_schema() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("a/b/log.db");
+    {
+        let mut s = Store::open(&path).unwrap();
+        let t = s.add_tank(&nitrogen_tank()).unwrap();
+        s.add_reading(t, &reading("2026-01-01T00:00:00Z", "100"))
+            .unwrap();
+    }
+    let s = Store::open(&path).unwrap();
+    assert_eq!(s.reading_count(None).unwrap(), 1);
+    assert_eq!(s.tanks().unwrap()[0].spec, nitrogen_tank());
+}
+
+#[test]
+fn edits_and_deletions_keep_the_earlier_version() {
+    let mut s = Store::open_in_memory().unwrap();
+    let t = s.add_tank(&nitrogen_tank()).unwrap();
+    let id = s
+        .add_reading(t, &reading("2026-01-01T00:00:00Z", "100"))
+        .unwrap();
+    // A reason is required.
+    assert!(matches!(
+        s.edit_reading(id, &reading("2026-01-01T00:00:00Z", "101"), "  "),
+        Err(StoreError::Invalid(_))
+    ));
+    s.edit_reading(id, &reading("2026-01-01T00:00:00Z", "110.5"), "typo in DP")
+        .unwrap();
+    assert_eq!(s.reading(id).unwrap().input.dp.value, 110.5);
+    let h = s.revisions("readings", id).unwrap();
+    assert_eq!(h.len(), 1);
+    assert_eq!(h[0].action, "edit");
+    assert_eq!(h[0].reason, "typo in DP");
+    assert!(h[0].old_row.contains("\"value\":100.0"), "{}", h[0].old_row);
+    s.delete_reading(id, "duplicate of the morning round")
+        .unwrap();
+    assert_eq!(s.readings(t, None).unwrap().len(), 0);
+    assert_eq!(
+        s.reading(id).unwrap().input.dp.value,
+        110.5,
+        "deleted rows stay readable"
+    );
+    let h = s.revisions("readings", id).unwrap();
+    assert_eq!(
+        h.iter().map(|r| r.action.as_str()).collect::<Vec<_>>(),
+        ["edit", "delete"]
+    );
+    // After deletion the instant is free again.
+    s.add_reading(t, &reading("2026-01-01T00:00:00Z", "99"))
+        .unwrap();
+}
+
+#[test]
+fn tank_and_delivery_edits_keep_history() {
+    let mut s = Store::open_in_memory().unwrap();
+    let t = s.add_tank(&nitrogen_tank()).unwrap();
+    let mut spec = nitrogen_tank();
+    spec.diameter_m = 2.2;
+    s.edit_tank(t, &spec, "measured on site").unwrap();
+    assert_eq!(s.tank(t).unwrap().spec.diameter_m, 2.2);
+    assert!(
+        s.revisions("tanks", t).unwrap()[0]
+            .old_row
+            .contains("\"diameter_m\":2.0")
+    );
+    let d = DeliveryFields {
+        ticket: "A-1",
+        start: "2026-01-02T10:00:00Z",
+        end: "2026-01-02T10:30:00Z",
+        quantity: "2500",
+        quantity_unit: "kg",
+        carrier: "Northwind Haulage",
+        vehicle: "NWH-07",
+        ..Default::default()
+    }
+    .check(101_325.0)
+    .unwrap();
+    let id = s.add_delivery(t, &d).unwrap();
+    assert!(
+        matches!(s.add_delivery(t, &d), Err(StoreError::Invalid(_))),
+        "duplicate ticket"
+    );
+    let mut d2 = d.clone();
+    d2.quantity.value = 2450.0;
+    s.edit_delivery(id, &d2, "corrected from the scale ticket")
+        .unwrap();
+    assert_eq!(s.delivery(id).unwrap().input.quantity.value, 2450.0);
+    s.delete_delivery(id, "entered on the wrong tank").unwrap();
+    assert!(s.deliveries(Some(t)).unwrap().is_empty());
+    assert_eq!(s.revisions("deliveries", id).unwrap().len(), 2);
+}
+
+#[test]
+fn wal_and_foreign_keys_are_on() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("log.db");
+    let mut s = Store::open(&path).unwrap();
+    // A reading of a tank that does not exist violates the foreign key.
+    assert!(
+        s.add_reading(42, &reading("2026-01-01T00:00:00Z", "1"))
+            .is_err()
+    );
+    assert!(path.with_extension("db-wal").exists(), "WAL file expected");
+}
+
+#[test]
+fn strapping_tables_must_rise() {
+    assert!(parse_strapping("0:0;1:2;2:5").is_ok());
+    assert!(parse_strapping("0:0;1:2;0.5:5").is_err());
+    assert!(parse_strapping("0:0;1:2;2:1").is_err());
+    assert!(parse_strapping("0:0").is_err());
+    assert!(parse_strapping("0:0;x:1").is_err());
+    assert_eq!(
+        format_strapping(&parse_strapping("0:0;1.5:2.25").unwrap()),
+        "0:0;1.5:2.25"
+    );
+}
+
+proptest! {
+    /// Row checks never panic on any text (common practice, no source).
+    #[test]
+    fn row_checks_never_panic(a in ".{0,30}", b in ".{0,12}", c in ".{0,12}", d in ".{0,12}") {
+        let _ = ReadingFields { time: &a, dp: &b, dp_unit: &c, pressure: &d, pressure_unit: &a,
+            liquid_temperature_k: &b, note: &c }.check(101_325.0);
+        let _ = DeliveryFields { ticket: &a, start: &a, end: &b, quantity: &c, quantity_unit: &d,
+            carrier: &a, vehicle: &b, supply_pressure: &c, supply_pressure_unit: &d }.check(101_325.0);
+        let _ = TankFields { site: &a, tank: &b, fluid: &c, orientation: &d, diameter_m: &b, length_m: &c,
+            heads: &d, line_temperature_c: &b, crown_ratio: &c, knuckle_ratio: &d, dp_unit: &a,
+            gauge_span: &b, gauge_accuracy_percent: &c, relief_pressure: &d, relief_pressure_unit: &a,
+            reorder_percent: &b, ner_percent_per_day: &c, strapping: &a }.check();
+        let _ = parse_strapping(&a);
+        let _ = Stamp::parse(&a);
+    }
+
+    /// Importing arbitrary bytes as a readings file never panics and never writes (common practice,
+    /// no source).
+    #[test]
+    fn import_of_garbage_never_panics(bytes in proptest::collection::vec(any::<u8>(), 0..400)) {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("r.csv");
+        let mut body = b"tank,time,dp,dp_unit,pressure,pressure_unit\n".to_vec();
+        body.extend_from_slice(&bytes);
+        std::fs::write(&path, &body).unwrap();
+        let mut s = Store::open_in_memory().unwrap();
+        s.add_tank(&nitrogen_tank()).unwrap();
+        let files = ImportFiles { readings: Some(path), ..Default::default() };
+        match s.import(&files, &ImportOptions::default()) {
+            Ok(sum) => prop_assert_eq!(sum.readings as i64, s.reading_count(None).unwrap()),
+            Err(_) => prop_assert_eq!(s.reading_count(None).unwrap(), 0),
+        }
+    }
+}
