@@ -1,0 +1,344 @@
+//! Fast saturation curves ("superancillaries", Bell and Deiters' method): piecewise Chebyshev expansions of
+//! ln p_sat, rho_L, ln rho_V, h_L and h_V, fitted to the full solution and bisected until the last
+//! coefficients vanish; the inverse T(ln p) is fitted the same way to the forward curve.
+//!
+//! Below T_split the variable is T. Between T_split and T_c it is x = sqrt(T_c - T): along an analytic
+//! equation the coexisting densities go as rho_c ± a x + b x² ..., which is smooth in x but not in T.
+
+use crate::SolverOptions;
+use crate::chebyshev::{self, LEN};
+use crate::error::FluidError;
+use crate::fluid::Fluid;
+use crate::saturation::{Saturation, bracketed_root};
+
+/// ln p, rho_L, ln rho_V, h_L, h_V
+const N_FUN: usize = 5;
+/// Relative size below which the two last coefficients count as converged.
+const TOL: f64 = 1e-12;
+/// Deepest bisection of a starting interval.
+const MAX_DEPTH: u32 = 12;
+/// Width of the near-critical region fitted in x = sqrt(T_c - T), as a fraction of T_c.
+const SPLIT_FRACTION: f64 = 0.03;
+/// Width of the last sliver below T_c (fraction of T_c) where the curves interpolate to the critical point.
+const CRITICAL_PIECE: f64 = 1e-7;
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Var {
+    /// Chebyshev in T
+    T,
+    /// Chebyshev in x = sqrt(T_c - T)
+    SqrtFromCritical,
+    /// the sliver [0, hi] in x next to T_c: c[0] at the critical point, c[0] + c[1] at x = hi; ln p goes
+    /// linearly in T, the others linearly in x
+    Critical,
+}
+
+/// Per-function Chebyshev coefficients turned into monomial ones on [-1, 1].
+fn monomial(c: &[[f64; N_FUN]; LEN]) -> [[f64; N_FUN]; LEN] {
+    let mut out = [[0.0; N_FUN]; LEN];
+    for f in 0..N_FUN {
+        let column: [f64; LEN] = std::array::from_fn(|k| c[k][f]);
+        for (k, a) in chebyshev::to_monomial(&column).iter().enumerate() {
+            out[k][f] = *a;
+        }
+    }
+    out
+}
+
+/// One piece; `c` holds monomial coefficients in the piece's variable mapped to [-1, 1] (fitted as
+/// Chebyshev series, evaluated by Estrin's scheme), except for `Var::Critical`.
+#[derive(Debug, Clone)]
+struct Piece {
+    var: Var,
+    /// bounds in the expansion's own variable
+    lo: f64,
+    hi: f64,
+    c: [[f64; N_FUN]; LEN],
+}
+
+#[derive(Debug, Clone)]
+struct InversePiece {
+    lo: f64,
+    hi: f64,
+    c: [[f64; 1]; LEN],
+}
+
+/// Size of the fitted curves, for reports and benchmarks.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct CurveInfo {
+    /// Degree of every expansion.
+    pub degree: usize,
+    /// Pieces of the forward curves (functions of T).
+    pub forward_pieces: usize,
+    /// Pieces of the inverse curve T(ln p).
+    pub inverse_pieces: usize,
+    /// Full saturation solutions used for the fit.
+    pub full_solutions: usize,
+}
+
+/// The fitted curves of one fluid.
+#[derive(Debug, Clone)]
+pub(crate) struct SatCurves {
+    tc: f64,
+    /// upper T bound of each forward piece, ascending
+    t_upper: Vec<f64>,
+    pieces: Vec<Piece>,
+    lnp_upper: Vec<f64>,
+    inverse: Vec<InversePiece>,
+    pub(crate) info: CurveInfo,
+}
+
+impl SatCurves {
+    pub(crate) fn fit(fluid: &Fluid) -> Result<SatCurves, FluidError> {
+        let tt = fluid.triple.temperature_k;
+        let tc = fluid.critical.temperature_k;
+        let m = fluid.m;
+        let e_scale = fluid.r * tc / m;
+        let scale = [1.0, fluid.critical.density_kg_m3, 1.0, e_scale, e_scale];
+        let opts = SolverOptions {
+            max_iter: 200,
+            tol: 1e-13,
+        };
+        let mut solutions = 0usize;
+        let mut last: Option<crate::saturation::SatMolar> = None;
+        let mut values = |t: f64| -> Result<[f64; N_FUN], FluidError> {
+            solutions += 1;
+            let s = match fluid.solve_saturation_molar(t, &opts) {
+                Ok(s) => s,
+                // near T_c a neighbouring node's solution is the better start
+                Err(e) => match last {
+                    Some(prev) => fluid
+                        .akasaka(t, prev.rho_l, prev.rho_v, &opts)
+                        .map_err(|_| e)?,
+                    None => return Err(e),
+                },
+            };
+            last = Some(s);
+            let s = s.to_mass(m);
+            Ok([
+                s.pressure_pa.ln(),
+                s.liquid_density_kg_m3,
+                s.vapor_density_kg_m3.ln(),
+                s.liquid_enthalpy_j_kg,
+                s.vapor_enthalpy_j_kg,
+            ])
+        };
+        let t_split = tc * (1.0 - SPLIT_FRACTION);
+        let x_split = (tc - t_split).sqrt();
+        let x_min = (CRITICAL_PIECE * tc).sqrt();
+        // (variable, lo, hi, depth) still to fit: T below the split, then octaves of x toward T_c
+        // the last field is the parent's tail over its tolerance (infinite for a starting interval)
+        let mut todo = vec![(Var::T, tt, t_split, 0u32, f64::INFINITY)];
+        let mut x_hi = x_split;
+        while x_hi > x_min {
+            todo.push((Var::SqrtFromCritical, 0.5 * x_hi, x_hi, 0, f64::INFINITY));
+            x_hi *= 0.5;
+        }
+        let x_last = x_hi;
+        let nodes = chebyshev::lobatto_nodes();
+        let mut pieces = Vec::new();
+        while let Some((var, lo, hi, depth, parent_excess)) = todo.pop() {
+            let mut table = [[0.0; N_FUN]; LEN];
+            for (row, u) in table.iter_mut().zip(nodes) {
+                let v = chebyshev::from_unit(u, lo, hi);
+                let t = match var {
+                    Var::T => v,
+                    Var::SqrtFromCritical | Var::Critical => tc - v * v,
+                };
+                *row = values(t.clamp(tt, tc))?;
+            }
+            // close to T_c the full solution itself is only good to ~2e-14 / (separation of the reduced
+            // densities)^3 (an ill-conditioned Newton system): do not chase that noise
+            let separation = table
+                .iter()
+                .map(|r| (r[1] - r[2].exp()) / fluid.critical.density_kg_m3)
+                .fold(f64::INFINITY, f64::min);
+            let noise = (2e-14 / separation.powi(3)).max(TOL);
+            let mut c = [[0.0; N_FUN]; LEN];
+            let mut excess: f64 = 0.0;
+            for f in 0..N_FUN {
+                let column: [f64; LEN] = std::array::from_fn(|k| table[k][f]);
+                let cf = chebyshev::coefficients(&column);
+                let tail = cf[LEN - 1].abs().max(cf[LEN - 2].abs());
+                let tol = if f == 0 { TOL } else { noise };
+                excess = excess.max(tail / (tol * scale[f]));
+                for (k, ck) in cf.iter().enumerate() {
+                    c[k][f] = *ck;
+                }
+            }
+            // halving a smooth stretch shrinks the tail by orders of magnitude; when it does not, the
+            // tail is the full solution's round-off and bisecting further would only chase it
+            let stalled = excess > 0.1 * parent_excess;
+            let converged = excess <= 1.0 || stalled;
+            if converged || depth >= MAX_DEPTH {
+                pieces.push(Piece {
+                    var,
+                    lo,
+                    hi,
+                    c: monomial(&c),
+                });
+            } else {
+                let mid = 0.5 * (lo + hi);
+                todo.push((var, lo, mid, depth + 1, excess));
+                todo.push((var, mid, hi, depth + 1, excess));
+            }
+        }
+        // the last sliver next to T_c: from the critical point to the nearest fitted node, ln p linear in
+        // T and the rest linear in x (accurate to ~1e-4 there; see the crate docs)
+        let crit = {
+            let s = fluid.critical_saturation().to_mass(m);
+            [
+                s.pressure_pa.ln(),
+                s.liquid_density_kg_m3,
+                s.vapor_density_kg_m3.ln(),
+                s.liquid_enthalpy_j_kg,
+                s.vapor_enthalpy_j_kg,
+            ]
+        };
+        let end = values(tc - x_last * x_last)?;
+        let mut c = [[0.0; N_FUN]; LEN];
+        for f in 0..N_FUN {
+            c[0][f] = crit[f];
+            c[1][f] = end[f] - crit[f];
+        }
+        pieces.push(Piece {
+            var: Var::Critical,
+            lo: 0.0,
+            hi: x_last,
+            c,
+        });
+        let upper = |p: &Piece| match p.var {
+            Var::T => p.hi,
+            Var::SqrtFromCritical | Var::Critical => tc - p.lo * p.lo,
+        };
+        pieces.sort_by(|a, b| upper(a).total_cmp(&upper(b)));
+        let t_upper: Vec<f64> = pieces.iter().map(upper).collect();
+        let mut curves = SatCurves {
+            tc,
+            t_upper,
+            pieces,
+            lnp_upper: Vec::new(),
+            inverse: Vec::new(),
+            info: CurveInfo {
+                degree: chebyshev::DEGREE,
+                forward_pieces: 0,
+                inverse_pieces: 0,
+                full_solutions: 0,
+            },
+        };
+        curves.fit_inverse(fluid)?;
+        curves.info.forward_pieces = curves.pieces.len();
+        curves.info.inverse_pieces = curves.inverse.len();
+        curves.info.full_solutions = solutions;
+        Ok(curves)
+    }
+
+    /// T(ln p) fitted to the forward ln p(T), each node found by a bracketed root.
+    fn fit_inverse(&mut self, fluid: &Fluid) -> Result<(), FluidError> {
+        let tt = fluid.triple.temperature_k;
+        let tc = self.tc;
+        let lnp_lo = self.at_t(tt)[0];
+        let lnp_hi = self.at_t(tc)[0];
+        let nodes = chebyshev::lobatto_nodes();
+        let mut todo = vec![(lnp_lo, lnp_hi, 0u32)];
+        let mut inverse = Vec::new();
+        while let Some((lo, hi, depth)) = todo.pop() {
+            let mut column = [0.0; LEN];
+            for (slot, u) in column.iter_mut().zip(nodes) {
+                let lnp = chebyshev::from_unit(u, lo, hi).clamp(lnp_lo, lnp_hi);
+                *slot = if lnp <= lnp_lo {
+                    tt
+                } else if lnp >= lnp_hi {
+                    tc
+                } else {
+                    bracketed_root(|t| self.at_t(t)[0] - lnp, tt, tc, 1e-16, 300).ok_or(
+                        FluidError::NotConverged {
+                            fluid: fluid.id,
+                            what: "inverse saturation curve fit",
+                            iterations: 300,
+                            residual: f64::NAN,
+                        },
+                    )?
+                };
+            }
+            let c = chebyshev::coefficients(&column);
+            let tail = c[LEN - 1].abs().max(c[LEN - 2].abs());
+            if tail <= 0.1 * TOL * tc || depth >= MAX_DEPTH {
+                inverse.push(InversePiece {
+                    lo,
+                    hi,
+                    c: chebyshev::to_monomial(&c).map(|v| [v]),
+                });
+            } else {
+                let mid = 0.5 * (lo + hi);
+                todo.push((lo, mid, depth + 1));
+                todo.push((mid, hi, depth + 1));
+            }
+        }
+        inverse.sort_by(|a, b| a.hi.total_cmp(&b.hi));
+        self.lnp_upper = inverse.iter().map(|p| p.hi).collect();
+        self.inverse = inverse;
+        Ok(())
+    }
+
+    /// [ln p, rho_L, ln rho_V, h_L, h_V] at T in [T_t, T_c] (mass units).
+    #[inline]
+    pub(crate) fn at_t(&self, t: f64) -> [f64; N_FUN] {
+        let i = self
+            .t_upper
+            .partition_point(|&u| u < t)
+            .min(self.pieces.len().saturating_sub(1));
+        let Some(p) = self.pieces.get(i) else {
+            return [f64::NAN; N_FUN];
+        };
+        match p.var {
+            Var::T => chebyshev::estrin_many(&p.c, chebyshev::to_unit(t, p.lo, p.hi)),
+            Var::SqrtFromCritical => {
+                let x = (self.tc - t).max(0.0).sqrt();
+                chebyshev::estrin_many(&p.c, chebyshev::to_unit(x, p.lo, p.hi))
+            }
+            Var::Critical => {
+                let x = ((self.tc - t).max(0.0).sqrt() / p.hi).min(1.0);
+                let mut out = [0.0; N_FUN];
+                for (f, slot) in out.iter_mut().enumerate() {
+                    let w = if f == 0 { x * x } else { x };
+                    *slot = p.c[0][f] + w * p.c[1][f];
+                }
+                out
+            }
+        }
+    }
+
+    /// T_sat at ln p (ln p within the curve's range).
+    #[inline]
+    pub(crate) fn t_from_ln_p(&self, ln_p: f64) -> f64 {
+        let i = self
+            .lnp_upper
+            .partition_point(|&u| u < ln_p)
+            .min(self.inverse.len().saturating_sub(1));
+        let Some(p) = self.inverse.get(i) else {
+            return f64::NAN;
+        };
+        chebyshev::estrin_many(&p.c, chebyshev::to_unit(ln_p, p.lo, p.hi))[0]
+    }
+
+    /// The saturation state at T (validated by the caller).
+    #[inline]
+    pub(crate) fn saturation(&self, t: f64) -> Saturation {
+        let v = self.at_t(t);
+        self.saturation_with_pressure(t, v[0].exp(), &v)
+    }
+
+    /// The saturation state from curve values `v` at T, with the pressure given.
+    #[inline]
+    pub(crate) fn saturation_with_pressure(&self, t: f64, p: f64, v: &[f64; N_FUN]) -> Saturation {
+        Saturation {
+            temperature_k: t,
+            pressure_pa: p,
+            liquid_density_kg_m3: v[1],
+            vapor_density_kg_m3: v[2].exp(),
+            liquid_enthalpy_j_kg: v[3],
+            vapor_enthalpy_j_kg: v[4],
+        }
+    }
+}
