@@ -11,8 +11,8 @@
 use crate::StoreError;
 use crate::check::{DeliveryFields, FieldError, ReadingFields, TankFields, format_strapping};
 use crate::db::{
-    Store, insert_delivery, insert_reading, insert_tank, is_unique_violation, site_id_for,
-    vehicle_ids,
+    INSERT_READING, Store, insert_delivery, insert_reading_with, insert_tank, is_unique_violation,
+    site_id_for, vehicle_ids,
 };
 use crate::records::{ReadingInput, Tank};
 use rusqlite::Connection;
@@ -657,6 +657,7 @@ fn import_readings(
         t.col("note"),
     ];
     let file = t.name.clone();
+    let mut insert = conn.prepare(INSERT_READING)?;
     // Rows of one tank come in runs: remember the last lookup.
     let mut last: Option<(String, &Tank)> = None;
     each_row(t, sink, |rec, line, sink| {
@@ -695,7 +696,7 @@ fn import_readings(
         {
             return sink.push(&file, line, e);
         }
-        match insert_reading(conn, tank.id, &r) {
+        match insert_reading_with(&mut insert, tank.id, &r) {
             Ok(_) => summary.readings += 1,
             Err(e) if is_unique_violation(&e) => sink.push(
                 &file,

@@ -253,16 +253,26 @@ fn write_strapping(conn: &Connection, tank_id: i64, points: &[(f64, f64)]) -> ru
     Ok(())
 }
 
+pub(crate) const INSERT_READING: &str = "INSERT INTO readings (tank_id, time_text, time_ms, dp_value, dp_unit, \
+    dp_pa, pressure_value, pressure_unit, pressure_pa, liquid_temperature_k, note) \
+    VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11)";
+
 pub(crate) fn insert_reading(
     conn: &Connection,
     tank_id: i64,
     r: &ReadingInput,
 ) -> rusqlite::Result<i64> {
-    let mut st = conn.prepare_cached(
-        "INSERT INTO readings (tank_id, time_text, time_ms, dp_value, dp_unit, dp_pa, pressure_value, \
-         pressure_unit, pressure_pa, liquid_temperature_k, note) \
-         VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11)",
-    )?;
+    let mut st = conn.prepare_cached(INSERT_READING)?;
+    insert_reading_with(&mut st, tank_id, r)?;
+    Ok(conn.last_insert_rowid())
+}
+
+/// Insert with an already prepared [`INSERT_READING`] statement (the importer's hot loop).
+pub(crate) fn insert_reading_with(
+    st: &mut rusqlite::Statement<'_>,
+    tank_id: i64,
+    r: &ReadingInput,
+) -> rusqlite::Result<()> {
     st.execute(params![
         tank_id,
         r.time.text,
@@ -276,7 +286,7 @@ pub(crate) fn insert_reading(
         r.liquid_temperature_k,
         r.note,
     ])?;
-    Ok(conn.last_insert_rowid())
+    Ok(())
 }
 
 pub(crate) fn vehicle_ids(

@@ -201,3 +201,45 @@ proptest! {
         }
     }
 }
+
+proptest! {
+    /// The importer's own RFC 3339 reader agrees with the `time` crate's (an independent implementation)
+    /// on arbitrary valid instants and offsets.
+    #[test]
+    fn stamps_agree_with_the_time_crate(secs in -2_000_000_000i64..8_000_000_000, ms in 0i64..1000, off_min in -720i32..840) {
+        use time::{OffsetDateTime, UtcOffset, format_description::well_known::Rfc3339};
+        let off = UtcOffset::from_whole_seconds(off_min * 60).unwrap();
+        let dt = OffsetDateTime::from_unix_timestamp(secs).unwrap().replace_millisecond(ms as u16).unwrap().to_offset(off);
+        let text = dt.format(&Rfc3339).unwrap();
+        let parsed = Stamp::parse(&text).unwrap();
+        prop_assert_eq!(parsed.ms, secs * 1000 + ms, "{}", text);
+    }
+}
+
+#[test]
+fn stamps_refuse_impossible_dates() {
+    for bad in [
+        "2026-02-29T00:00:00Z",
+        "2026-13-01T00:00:00Z",
+        "2026-04-31T00:00:00Z",
+        "2026-01-01T24:00:00Z",
+        "2026-01-01T00:60:00Z",
+        "2026-01-01T00:00:00",
+        "2026-01-01T00:00:00+0100",
+        "2026-01-01",
+        "2026-01-01T00:00:00.Z",
+        "2026-01-01T00:00:00Zjunk",
+        "२०२६-01-01T00:00:00Z",
+    ] {
+        assert!(Stamp::parse(bad).is_err(), "{bad}");
+    }
+    // 2024 is a leap year (Gregorian rule); 2000 too; 1900 is not.
+    assert!(Stamp::parse("2024-02-29T12:00:00Z").is_ok());
+    assert!(Stamp::parse("2000-02-29T12:00:00Z").is_ok());
+    assert!(Stamp::parse("1900-02-29T12:00:00Z").is_err());
+    // 2026-03-01T08:00:00Z is 1772352000 s after the epoch (date -d 2026-03-01T08:00:00Z +%s).
+    assert_eq!(
+        Stamp::parse("2026-03-01T09:00:00+01:00").unwrap().ms,
+        1_772_352_000_000
+    );
+}

@@ -78,12 +78,46 @@ const TEMPERATURE_UNITS: &str = "K, C, F";
 const MASS_UNITS: &str = "kg, lb, t";
 const QUANTITY_UNITS: &str = "kg, lb, t, Nm3, scf";
 
-/// Normalised form of a unit for lookup: no spaces, no degree signs, lower case.
-fn key(unit: &str) -> String {
-    unit.chars()
-        .filter(|c| !c.is_whitespace() && *c != '°' && *c != '(' && *c != ')')
-        .flat_map(char::to_lowercase)
-        .collect()
+/// Normalised form of a unit for lookup: no spaces, no degree signs or brackets, lower case. Kept on the
+/// stack: importers parse a unit on every row.
+struct Key {
+    buf: [u8; 24],
+    len: usize,
+    overflow: bool,
+}
+
+impl Key {
+    fn as_str(&self) -> &str {
+        if self.overflow {
+            return "\u{0}overflow";
+        }
+        std::str::from_utf8(self.buf.get(..self.len).unwrap_or_default()).unwrap_or("\u{0}invalid")
+    }
+}
+
+fn key(unit: &str) -> Key {
+    let mut k = Key {
+        buf: [0; 24],
+        len: 0,
+        overflow: false,
+    };
+    let mut tmp = [0u8; 4];
+    for c in unit.chars() {
+        if c.is_whitespace() || c == '°' || c == '(' || c == ')' {
+            continue;
+        }
+        for l in c.to_lowercase() {
+            let bytes = l.encode_utf8(&mut tmp).as_bytes();
+            match k.buf.get_mut(k.len..k.len + bytes.len()) {
+                Some(dst) => {
+                    dst.copy_from_slice(bytes);
+                    k.len += bytes.len();
+                }
+                None => k.overflow = true,
+            }
+        }
+    }
+    k
 }
 
 impl FromStr for TankPressureUnit {
@@ -212,7 +246,7 @@ impl FromStr for GasVolumeUnit {
 impl FromStr for QuantityUnit {
     type Err = UnitError;
     fn from_str(s: &str) -> Result<Self, UnitError> {
-        if key(s).is_empty() {
+        if key(s).as_str().is_empty() {
             return Err(UnitError::Empty {
                 expected: QUANTITY_UNITS,
             });
@@ -303,7 +337,7 @@ pub fn parse_tank_pressure(text: &str) -> Result<Entered<TankPressureUnit>, Unit
 /// Parse an absolute pressure such as a barometer (`101.3 kPa`, `1013 mbar`, `14.7 psia`).
 pub fn parse_absolute_pressure(text: &str) -> Result<AbsolutePressure, UnitError> {
     let (value, unit_text) = split_number(text, ABSOLUTE_PRESSURE_UNITS)?;
-    if key(unit_text) == "mbar" || key(unit_text) == "mbara" {
+    if matches!(key(unit_text).as_str(), "mbar" | "mbara") {
         return Ok(AbsolutePressure::from_pa(value * 100.0));
     }
     let unit: TankPressureUnit = if unit_text.is_empty() {

@@ -1,0 +1,100 @@
+//! `import` and `export`: CSV in and out of the store.
+
+use anyhow::{Context, Result};
+use clap::{Args, ValueEnum};
+use std::path::PathBuf;
+use std::process::ExitCode;
+use store::{ImportFiles, ImportOptions, Store, StoreError};
+
+/// Arguments of `import`.
+#[derive(Args)]
+pub struct ImportArgs {
+    /// Database file (created if missing)
+    #[arg(long, value_name = "PATH")]
+    pub db: PathBuf,
+    /// Tanks CSV: site,tank,fluid,orientation,diameter_m,length_m,heads,line_temperature_c[,...]
+    #[arg(long, value_name = "FILE")]
+    pub tanks: Option<PathBuf>,
+    /// Readings CSV: tank,time,dp,dp_unit,pressure,pressure_unit[,liquid_temperature_k,note]
+    #[arg(long, value_name = "FILE")]
+    pub readings: Option<PathBuf>,
+    /// Deliveries CSV: tank,ticket,start,end,quantity,quantity_unit,carrier,vehicle[,supply_pressure,supply_pressure_unit]
+    #[arg(long, value_name = "FILE")]
+    pub deliveries: Option<PathBuf>,
+    /// Stop checking after this many errors
+    #[arg(long, default_value_t = 100, value_name = "N")]
+    pub max_errors: usize,
+}
+
+/// Run `import`: all or nothing; errors as FILE:LINE: field: reason, exit status 1.
+pub fn import(a: ImportArgs) -> Result<ExitCode> {
+    if a.tanks.is_none() && a.readings.is_none() && a.deliveries.is_none() {
+        anyhow::bail!("nothing to import: give --tanks, --readings and/or --deliveries");
+    }
+    let mut store = Store::open(&a.db).with_context(|| format!("opening {}", a.db.display()))?;
+    let files = ImportFiles {
+        tanks: a.tanks,
+        readings: a.readings,
+        deliveries: a.deliveries,
+    };
+    let check = ledger::check_reading_against_tank;
+    let opts = ImportOptions {
+        max_errors: a.max_errors,
+        reading_check: Some(&check),
+    };
+    match store.import(&files, &opts) {
+        Ok(s) => {
+            println!(
+                "imported {} tanks, {} readings, {} deliveries into {}",
+                s.tanks,
+                s.readings,
+                s.deliveries,
+                a.db.display()
+            );
+            Ok(ExitCode::SUCCESS)
+        }
+        Err(StoreError::Import(errors)) => {
+            eprintln!("{errors}");
+            Ok(ExitCode::FAILURE)
+        }
+        Err(e) => Err(e.into()),
+    }
+}
+
+/// What `export` writes.
+#[derive(Clone, Copy, ValueEnum)]
+pub enum ExportWhat {
+    /// The tanks CSV.
+    Tanks,
+    /// The readings CSV.
+    Readings,
+    /// The deliveries CSV.
+    Deliveries,
+}
+
+/// Arguments of `export`.
+#[derive(Args)]
+pub struct ExportArgs {
+    /// Database file
+    #[arg(long, value_name = "PATH")]
+    pub db: PathBuf,
+    /// What to export
+    #[arg(long, value_enum)]
+    pub what: ExportWhat,
+    /// Output file (default: standard output)
+    #[arg(long, value_name = "FILE")]
+    pub out: Option<PathBuf>,
+}
+
+/// Run `export`.
+pub fn export(a: ExportArgs) -> Result<ExitCode> {
+    let store = super::open_existing(&a.db)?;
+    let mut sink = super::output(a.out.as_ref())?;
+    match a.what {
+        ExportWhat::Tanks => store.export_tanks(&mut sink)?,
+        ExportWhat::Readings => store.export_readings(&mut sink)?,
+        ExportWhat::Deliveries => store.export_deliveries(&mut sink)?,
+    }
+    sink.flush()?;
+    Ok(ExitCode::SUCCESS)
+}

@@ -1,0 +1,45 @@
+//! One module per subcommand: its arguments and how it runs.
+
+pub mod contents;
+pub mod fluids;
+pub mod io;
+
+use std::io::Write;
+use std::path::{Path, PathBuf};
+
+use anyhow::{Context, Result};
+use clap::ValueEnum;
+
+/// Output format of the computing subcommands.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum, Default)]
+pub enum Format {
+    /// A short readable table with units.
+    #[default]
+    Table,
+    /// JSON with SI values and units in the field names.
+    Json,
+}
+
+/// Open an existing database (the headless commands never create one by accident).
+pub fn open_existing(db: &Path) -> Result<store::Store> {
+    if !db.exists() {
+        anyhow::bail!("{}: no such database", db.display());
+    }
+    store::Store::open(db).with_context(|| format!("opening {}", db.display()))
+}
+
+/// Where to write: a file or standard output.
+pub fn output(out: Option<&PathBuf>) -> Result<Box<dyn Write>> {
+    Ok(match out {
+        Some(p) => Box::new(std::io::BufWriter::new(
+            std::fs::File::create(p).with_context(|| format!("creating {}", p.display()))?,
+        )),
+        None => Box::new(std::io::BufWriter::new(std::io::stdout().lock())),
+    })
+}
+
+/// Print a value as pretty JSON.
+pub fn print_json(v: &impl serde::Serialize) -> Result<()> {
+    println!("{}", serde_json::to_string_pretty(v)?);
+    Ok(())
+}
