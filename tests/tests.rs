@@ -14,3 +14,7 @@ mod round_trip;
 /// A process killed in the middle of a large import leaves the database as it was.
 #[path = "e2e/killed_import.rs"]
 mod killed_import;
+
+/// The engine commands (saturation, state, contents) against independent references.
+#[path = "e2e/engine_cli.rs"]
+mod engine_cli;
