@@ -10,83 +10,18 @@ pub const STANDARD_GRAVITY: f64 = 9.80665;
 /// Standard atmosphere at sea level, Pa (ICAO Doc 7488).
 pub const STANDARD_ATMOSPHERE_PA: f64 = 101_325.0;
 
-/// Units a DP gauge is read in.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize, Deserialize)]
-#[serde(rename_all = "kebab-case")]
-pub enum DpUnit {
-    /// Pascal.
-    Pa,
-    /// Kilopascal.
-    KPa,
-    /// Millibar (100 Pa).
-    MBar,
-    /// Conventional millimetre of water, 9.80665 Pa.
-    MmH2O,
-    /// Conventional inch of water: 1000 kg/m³ × 0.0254 m × g = 249.08891 Pa.
-    InH2O,
-    /// Inch of water at 60 °F, 248.84 Pa (NIST SP 811, Appendix B).
-    InH2O60F,
-    /// Inch of water at 4 °C (39.2 °F), 249.082 Pa (NIST SP 811, Appendix B).
-    InH2O4C,
-    /// Pound-force per square inch, 6894.757 Pa (0.45359237 kg × g / 0.0254² m²).
-    Psi,
-}
-
-impl DpUnit {
-    /// Every unit, for listings.
-    pub const ALL: [DpUnit; 8] = [
-        DpUnit::Pa,
-        DpUnit::KPa,
-        DpUnit::MBar,
-        DpUnit::MmH2O,
-        DpUnit::InH2O,
-        DpUnit::InH2O60F,
-        DpUnit::InH2O4C,
-        DpUnit::Psi,
-    ];
-
-    /// Pascals in one unit.
-    pub fn pa_per_unit(self) -> f64 {
-        match self {
-            DpUnit::Pa => 1.0,
-            DpUnit::KPa => 1000.0,
-            DpUnit::MBar => 100.0,
-            DpUnit::MmH2O => 1000.0 * 0.001 * STANDARD_GRAVITY,
-            DpUnit::InH2O => 1000.0 * 0.0254 * STANDARD_GRAVITY,
-            DpUnit::InH2O60F => 248.84,
-            DpUnit::InH2O4C => 249.082,
-            DpUnit::Psi => 0.453_592_37 * STANDARD_GRAVITY / (0.0254 * 0.0254),
-        }
-    }
-
-    /// The unit's symbol as printed and parsed ("inH2O", "inH2O@60F", ...).
-    pub fn symbol(self) -> &'static str {
-        match self {
-            DpUnit::Pa => "Pa",
-            DpUnit::KPa => "kPa",
-            DpUnit::MBar => "mbar",
-            DpUnit::MmH2O => "mmH2O",
-            DpUnit::InH2O => "inH2O",
-            DpUnit::InH2O60F => "inH2O@60F",
-            DpUnit::InH2O4C => "inH2O@4C",
-            DpUnit::Psi => "psi",
-        }
-    }
-
-    /// The unit with this symbol (as [`DpUnit::symbol`]; case-sensitive).
-    pub fn from_symbol(symbol: &str) -> Option<DpUnit> {
-        DpUnit::ALL.into_iter().find(|u| u.symbol() == symbol)
-    }
-}
+/// Units a DP gauge is read in (the workspace's one definition, from `units`).
+pub use units::DpUnit;
+use units::Unit;
 
 /// A DP in Pa from a value in `unit`.
 pub fn dp_pa_from_unit(value: f64, unit: DpUnit) -> f64 {
-    value * unit.pa_per_unit()
+    unit.si_from_value(value)
 }
 
 /// A DP in `unit` from Pa.
 pub fn dp_unit_from_pa(dp_pa: f64, unit: DpUnit) -> f64 {
-    dp_pa / unit.pa_per_unit()
+    unit.value_from_si(dp_pa)
 }
 
 /// Barometric pressure of the ICAO standard atmosphere at a site elevation (geometric, m above
@@ -102,14 +37,7 @@ pub fn barometer_pa_from_elevation(elevation_m: f64) -> Result<f64> {
             reason: "outside the troposphere, -5 km ..= 11 km",
         });
     }
-    const T0: f64 = 288.15;
-    const LAPSE: f64 = 0.0065;
-    const M: f64 = 0.028_964_4;
-    const R_STAR: f64 = 8.314_32;
-    const R0: f64 = 6_356_766.0;
-    let exponent = STANDARD_GRAVITY * M / (R_STAR * LAPSE);
-    let geopotential_m = R0 * elevation_m / (R0 + elevation_m);
-    Ok(STANDARD_ATMOSPHERE_PA * (1.0 - LAPSE * geopotential_m / T0).powf(exponent))
+    Ok(units::icao_barometer_from_elevation(elevation_m).pa())
 }
 
 /// Where the site's barometric pressure comes from.
@@ -212,16 +140,12 @@ impl GaugeAccuracy {
 mod tests {
     use super::*;
 
-    /// Conversion factors: NIST SP 811 (2008), Appendix B.8: inch of water (39.2 °F) 249.082 Pa,
-    /// inch of water (60 °F) 248.84 Pa, psi 6894.757 Pa; conventional mmH2O 9.80665 Pa.
+    /// The wrappers round-trip every unit (the factors themselves are checked against NIST SP 811 in
+    /// the `units` crate).
     #[test]
-    fn dp_units() {
-        assert!((DpUnit::InH2O.pa_per_unit() - 249.088_91).abs() < 1e-9);
-        assert!((DpUnit::Psi.pa_per_unit() - 6894.757).abs() < 5e-4);
-        assert!((DpUnit::MmH2O.pa_per_unit() - 9.806_65).abs() < 1e-12);
+    fn dp_units_round_trip() {
         assert!((dp_pa_from_unit(85.0, DpUnit::InH2O) - 85.0 * 249.088_91).abs() < 1e-9);
-        for u in DpUnit::ALL {
-            assert_eq!(DpUnit::from_symbol(u.symbol()), Some(u));
+        for &u in DpUnit::ALL {
             assert!((dp_unit_from_pa(dp_pa_from_unit(3.7, u), u) - 3.7).abs() < 1e-12);
         }
     }

@@ -416,12 +416,17 @@ pub fn format_in<U: Unit>(si: f64, unit: U, decimals: usize) -> String {
     format!("{:.*} {}", decimals, unit.value_from_si(si), unit.symbol())
 }
 
-/// Barometric pressure at an elevation above mean sea level by the ICAO standard atmosphere
-/// (ICAO Doc 7488/3, troposphere: p = p0 (1 - L h / T0)^(g M / (R L))), valid below 11 km.
+/// Barometric pressure at a geometric elevation above mean sea level by the ICAO standard atmosphere
+/// (ICAO Doc 7488/3, troposphere): the elevation z becomes the geopotential altitude H = r0 z / (r0 + z),
+/// r0 = 6 356 766 m, then p = p0 (1 - L H / T0)^(g0 M / (R* L)) with T0 = 288.15 K, L = 0.0065 K/m,
+/// M = 0.028 964 4 kg/mol, R* = 8.314 32 J/(mol K). Valid below 11 km.
 pub fn icao_barometer_from_elevation(elevation_m: f64) -> AbsolutePressure {
     const T0_K: f64 = 288.15;
     const LAPSE_K_M: f64 = 0.0065;
-    // g0 M / (R* L) with M = 0.028 964 4 kg/mol, R* = 8.314 32 J/(mol K) (ICAO Doc 7488).
-    const EXPONENT: f64 = 5.255_88;
-    AbsolutePressure(STANDARD_ATMOSPHERE_PA * (1.0 - LAPSE_K_M * elevation_m / T0_K).powf(EXPONENT))
+    const MOLAR_MASS_KG_MOL: f64 = 0.028_964_4;
+    const GAS_CONSTANT: f64 = 8.314_32;
+    const EARTH_RADIUS_M: f64 = 6_356_766.0;
+    let exponent = STANDARD_GRAVITY_M_S2 * MOLAR_MASS_KG_MOL / (GAS_CONSTANT * LAPSE_K_M);
+    let geopotential_m = EARTH_RADIUS_M * elevation_m / (EARTH_RADIUS_M + elevation_m);
+    AbsolutePressure(STANDARD_ATMOSPHERE_PA * (1.0 - LAPSE_K_M * geopotential_m / T0_K).powf(exponent))
 }
