@@ -115,6 +115,11 @@ struct Sink {
 }
 
 impl Sink {
+    fn push_all(&mut self, file: &str, line: u64, errors: Vec<FieldError>) {
+        for e in errors {
+            self.push(file, line, e);
+        }
+    }
     fn full(&self) -> bool {
         self.errors.len() >= self.max
     }
@@ -684,12 +689,7 @@ fn import_readings(
         };
         let r = match fields.check(tank.barometer_pa) {
             Ok(r) => r,
-            Err(errs) => {
-                for e in errs {
-                    sink.push(&file, line, e);
-                }
-                return;
-            }
+            Err(errs) => return sink.push_all(&file, line, errs),
         };
         if let Some(check) = opts.reading_check
             && let Err(e) = check(tank, &r)
@@ -753,12 +753,7 @@ fn import_deliveries(
         };
         let d = match fields.check(tank.barometer_pa) {
             Ok(d) => d,
-            Err(errs) => {
-                for e in errs {
-                    sink.push(&file, line, e);
-                }
-                return;
-            }
+            Err(errs) => return sink.push_all(&file, line, errs),
         };
         let (cid, vid) = match vehicle_ids(conn, &d.carrier, &d.vehicle) {
             Ok(ids) => ids,
