@@ -428,5 +428,7 @@ pub fn icao_barometer_from_elevation(elevation_m: f64) -> AbsolutePressure {
     const EARTH_RADIUS_M: f64 = 6_356_766.0;
     let exponent = STANDARD_GRAVITY_M_S2 * MOLAR_MASS_KG_MOL / (GAS_CONSTANT * LAPSE_K_M);
     let geopotential_m = EARTH_RADIUS_M * elevation_m / (EARTH_RADIUS_M + elevation_m);
-    AbsolutePressure(STANDARD_ATMOSPHERE_PA * (1.0 - LAPSE_K_M * geopotential_m / T0_K).powf(exponent))
+    AbsolutePressure(
+        STANDARD_ATMOSPHERE_PA * (1.0 - LAPSE_K_M * geopotential_m / T0_K).powf(exponent),
+    )
 }
