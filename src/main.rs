@@ -5,7 +5,7 @@ mod commands;
 
 use anyhow::{Context, Result};
 use clap::{Parser, Subcommand};
-use commands::{contents, fluids, io};
+use commands::{audit, contents, demo, fluids, io};
 use std::path::PathBuf;
 use std::process::ExitCode;
 use store::Store;
@@ -48,6 +48,20 @@ enum Command {
     State(fluids::StateArgs),
     /// Contents of a tank from one DP reading, with uncertainty and the safe-fill limit
     Contents(Box<contents::ContentsArgs>),
+    /// Reconcile deliveries and audit the fleet: fill balances, gauge drift, vehicle bias, forecasts
+    #[command(
+        long_about = "Reconcile every delivery against the tank's readings and audit the fleet.\n\n\
+        Each fill's balance is billed - (gained + drawn) with its standard uncertainty (both readings, the \
+        usage model, the vehicle's meter); the liquid's thermal history (mixing at fills, heat leak between \
+        them) sets each reading's liquid density. Verdicts: consistent, short, excess, inconclusive. Gauges: \
+        ok or drift (a trend in the fills' ratios, weighted least-squares slope t-test, Holm across tanks). \
+        Vehicles: ok or biased (one-sample t-test of tank-adjusted ratios, Holm across vehicles), with the \
+        bias, its 95 % interval and the legal tolerance. Also gains and losses between fills, use rates \
+        and the next fill."
+    )]
+    Audit(audit::AuditArgs),
+    /// Write the fictional demo fleet into a database (default: your data directory's)
+    Demo(demo::DemoArgs),
 }
 
 fn default_db_path() -> Result<PathBuf> {
@@ -58,7 +72,14 @@ fn default_db_path() -> Result<PathBuf> {
 fn open_window(db: Option<PathBuf>) -> Result<ExitCode> {
     let path = match db {
         Some(p) => p,
-        None => default_db_path()?,
+        None => {
+            let p = default_db_path()?;
+            // the first start opens a living fleet: the demo, written once
+            if !p.exists() {
+                demo::write_demo(&p).context("writing the demo fleet on first start")?;
+            }
+            p
+        }
     };
     let store = Store::open(&path).with_context(|| format!("opening {}", path.display()))?;
     app::run_native(store, path).map_err(|e| anyhow::anyhow!("the window failed: {e}"))?;
@@ -73,6 +94,8 @@ fn run(cli: Cli) -> Result<ExitCode> {
         Some(Command::Saturation(a)) => fluids::saturation(a),
         Some(Command::State(a)) => fluids::state(a),
         Some(Command::Contents(a)) => contents::run(*a),
+        Some(Command::Audit(a)) => audit::run(a),
+        Some(Command::Demo(a)) => demo::run(a, default_db_path),
     }
 }
 

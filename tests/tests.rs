@@ -18,3 +18,11 @@ mod killed_import;
 /// The engine commands (saturation, state, contents) against independent references.
 #[path = "e2e/engine_cli.rs"]
 mod engine_cli;
+
+/// `audit`: the JSON contract, explanations whose numbers are in the JSON, filters and formats.
+#[path = "e2e/audit.rs"]
+mod audit;
+
+/// `demo`: writes the embedded fleet once; its audit finds the planted faults.
+#[path = "e2e/demo.rs"]
+mod demo;

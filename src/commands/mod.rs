@@ -1,6 +1,8 @@
 //! One module per subcommand: its arguments and how it runs.
 
+pub mod audit;
 pub mod contents;
+pub mod demo;
 pub mod fluids;
 pub mod io;
 

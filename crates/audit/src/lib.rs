@@ -1,0 +1,300 @@
+//! # audit — fill balances, gauge drift, vehicle bias and forecasts
+//!
+//! The audit works in two stages so that a large fleet can stream through it one tank at a time:
+//!
+//! 1. [`audit_tank`] takes one tank ([`TankInput`]: the engine tank, its readings and deliveries in SI)
+//!    and gives a [`TankAudit`]:
+//!    - the liquid's **thermal history**: at each fill the remaining liquid and the delivered liquid
+//!      (saturated at the supply pressure) mix adiabatically, by enthalpy; between fills a heat leak
+//!      Q = NER × full-tank liquid mass × latent heat / 1 day warms it, its saturation pressure
+//!      following, capped at the tank pressure. Every reading's contents use that state (or its
+//!      measured liquid temperature). The NER is the tank's setting, refined per tank from its own
+//!      fills ([`TankAudit::ner_fitted_percent_per_day`]);
+//!    - one [`Balance`] per delivery: the readings bracketing the fill, the tank's gain, what the customer
+//!      drew during it (a robust usage model), the residual billed − (gained + drawn), its standard
+//!      uncertainty and a [`Verdict`] with a one-sentence explanation;
+//!    - [`Finding`]s between fills (gains no ticket explains, losses beyond use), the use rate and a
+//!      forecast of the next fill.
+//! 2. [`audit_fleet`] takes every tank's audit and adds the fleet statistics: gauge drift per tank
+//!    ([`GaugeFinding`], a weighted least-squares slope t-test on the fills' ratios with Holm's
+//!    correction across tanks) and vehicle bias ([`VehicleFinding`], a one-sample t-test of each
+//!    vehicle's tank-adjusted ratios, tank effects by Tukey's median polish, Holm's correction across
+//!    vehicles, gauges found drifting left out).
+//!
+//! ```
+//! use audit::{AuditOptions, DeliveryInput, ReadingInput, TankInput, Verdict, audit_fleet, audit_tank};
+//! use fluids::{FluidId, fluid};
+//! use tank::{Conditions, ContentsOptions, Cylinder, Head, LiquidState, Orientation, Tank};
+//!
+//! // A vertical nitrogen tank read before and after a fill; the ticket bills what really arrived
+//! // (the total mass, liquid and vapour, rose by it).
+//! let engine = Tank::new(Cylinder::new(Orientation::Vertical, 2.0, 5.0, Head::ELLIPSOIDAL_2_1)?, fluid(FluidId::Nitrogen));
+//! let p = 9e5;
+//! let c = Conditions::saturated(p).with_liquid(LiquidState::SaturatedAtTankPressure);
+//! let opts = ContentsOptions::default();
+//! let dp_before = engine.dp_from_liquid_mass(4000.0, &c, &opts)?;
+//! let dp_after = engine.dp_from_liquid_mass(7000.0, &c, &opts)?;
+//! let arrived = engine.contents_from_reading(dp_after, &c, &opts)?.total_mass_kg
+//!     - engine.contents_from_reading(dp_before, &c, &opts)?.total_mass_kg;
+//! let h = 3_600_000;
+//! let input = TankInput {
+//!     name: "T1".into(),
+//!     tank: engine,
+//!     ner_percent_per_day: Some(0.4),
+//!     reorder_percent: Some(25.0),
+//!     line_temperature_k: 288.15,
+//!     dp_noise_u_pa: 20.0,
+//!     readings: vec![
+//!         ReadingInput { time_ms: 0, dp_pa: dp_before, pressure_pa: p, liquid_temperature_k: None },
+//!         ReadingInput { time_ms: 2 * h, dp_pa: dp_after, pressure_pa: p, liquid_temperature_k: None },
+//!     ],
+//!     deliveries: vec![DeliveryInput { ticket: "K1".into(), vehicle: "V1".into(), carrier: "C".into(),
+//!         start_ms: h / 2, end_ms: h, billed_kg: arrived, supply_pressure_pa: Some(p),
+//!         meter_repeatability_percent: None }],
+//! };
+//! // liquid saturated at the tank pressure throughout (delivered at the tank pressure, no NER fit)
+//! let options = AuditOptions { fit_ner: false, ..AuditOptions::default() };
+//! let tank_audit = audit_tank(&input, &options)?;
+//! let fleet = audit_fleet(vec![tank_audit], &options);
+//! let b = &fleet.fills[0];
+//! assert_eq!(b.verdict, Verdict::Consistent, "{}", b.explanation);
+//! assert!(b.residual_kg.abs() < 1.0 && b.sigma_kg > 0.0);
+//! // a ticket billing 5 % more than arrived is short
+//! let mut padded = input.clone();
+//! padded.deliveries[0].billed_kg = 1.05 * arrived;
+//! let fleet = audit_fleet(vec![audit_tank(&padded, &options)?], &options);
+//! assert_eq!(fleet.fills[0].verdict, Verdict::Short, "{}", fleet.fills[0].explanation);
+//! # Ok::<(), Box<dyn std::error::Error>>(())
+//! ```
+#![deny(missing_docs)]
+
+mod fleet;
+mod props;
+pub mod stats;
+mod tank_audit;
+
+use serde::Serialize;
+
+pub use fleet::{
+    FleetAudit, GaugeFinding, GaugeStatus, TankSummary, VehicleFinding, VehicleStatus, audit_fleet,
+};
+pub use tank_audit::{
+    Balance, BracketReading, Finding, FindingKind, Forecast, ReadingState, TankAudit, audit_tank,
+    default_ner_percent_per_day, default_supply_pressure_pa, mix_liquids,
+};
+
+/// One tank's inputs, SI.
+#[derive(Debug, Clone)]
+pub struct TankInput {
+    /// Tank name.
+    pub name: String,
+    /// The engine tank (geometry, fluid, gauge).
+    pub tank: tank::Tank<&'static fluids::Fluid>,
+    /// NER setting, % per day (None: [`default_ner_percent_per_day`]).
+    pub ner_percent_per_day: Option<f64>,
+    /// Reorder level, % of gross volume (None: no forecast of the next fill).
+    pub reorder_percent: Option<f64>,
+    /// Sensing-line temperature, K.
+    pub line_temperature_k: f64,
+    /// Reading noise and resolution of the DP, standard uncertainty, Pa (independent between readings).
+    pub dp_noise_u_pa: f64,
+    /// Readings, any order.
+    pub readings: Vec<ReadingInput>,
+    /// Deliveries, any order.
+    pub deliveries: Vec<DeliveryInput>,
+}
+
+/// One reading, SI.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct ReadingInput {
+    /// Time, ms since the Unix epoch.
+    pub time_ms: i64,
+    /// DP as shown, Pa.
+    pub dp_pa: f64,
+    /// Tank pressure, Pa absolute.
+    pub pressure_pa: f64,
+    /// A measured liquid temperature, K.
+    pub liquid_temperature_k: Option<f64>,
+}
+
+/// One delivery, SI.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct DeliveryInput {
+    /// Ticket number.
+    pub ticket: String,
+    /// Vehicle name.
+    pub vehicle: String,
+    /// Carrier name.
+    pub carrier: String,
+    /// Start of the fill, ms.
+    pub start_ms: i64,
+    /// End of the fill, ms.
+    pub end_ms: i64,
+    /// Billed quantity, kg.
+    pub billed_kg: f64,
+    /// Pressure of the trailer's liquid, Pa absolute (None: [`default_supply_pressure_pa`]).
+    pub supply_pressure_pa: Option<f64>,
+    /// The vehicle meter's repeatability, standard uncertainty in % of the delivered quantity (None:
+    /// [`AuditOptions::meter_repeatability_percent`]).
+    pub meter_repeatability_percent: Option<f64>,
+}
+
+/// The verdict on one balance.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Verdict {
+    /// The residual is within its coverage interval (or below the materiality threshold).
+    Consistent,
+    /// Less arrived than was billed, beyond the interval and the threshold.
+    Short,
+    /// More arrived than was billed, beyond the interval and the threshold.
+    Excess,
+    /// The balance cannot tell: no bracketing readings, or an interval too wide to judge.
+    Inconclusive,
+}
+
+impl Verdict {
+    /// The name used in output.
+    pub fn as_str(self) -> &'static str {
+        match self {
+            Verdict::Consistent => "consistent",
+            Verdict::Short => "short",
+            Verdict::Excess => "excess",
+            Verdict::Inconclusive => "inconclusive",
+        }
+    }
+}
+
+/// Settings of the audit. Defaults are common practice, no source, unless stated.
+#[derive(Debug, Clone, PartialEq)]
+pub struct AuditOptions {
+    /// Track the liquid's thermal history (false: liquid saturated at the tank pressure, for comparison).
+    pub thermal_history: bool,
+    /// Refine each tank's NER from its own fills.
+    pub fit_ner: bool,
+    /// The fitted NER stays within this factor of the setting, both ways (3).
+    pub ner_fit_range_factor: f64,
+    /// Scale of the fill residuals in the NER fit, fraction of billed (0.007): each fill adds
+    /// Huber's ρ (c = 1.5) of residual / scale to the objective.
+    pub ner_fit_scale_fraction: f64,
+    /// Standard deviation of ln(NER / setting) in the fit's prior (0.4: the setting is known to about
+    /// ±50 %). The fit minimizes Σρ + ½ (ln(NER/setting) / sd)², so a tank whose balances do not depend
+    /// on its NER (its liquid reaches saturation well before the next fill) keeps its setting.
+    pub ner_prior_ln_sd: f64,
+    /// How far from a fill a bracketing reading may be, s (6 h).
+    pub bracket_window_s: f64,
+    /// Readings on each side of a fill the usage model looks at, days (10).
+    pub usage_window_days: f64,
+    /// Relative standard uncertainty of the use drawn during a fill (0.5: the day's pattern is unknown).
+    pub usage_u_rel: f64,
+    /// Coverage factor k of the verdicts (2; JCGM 100:2008, 6.3).
+    pub coverage_factor: f64,
+    /// Smallest residual, as a fraction of the billed quantity, that can make a fill short or excess
+    /// (0.01).
+    pub materiality_fraction: f64,
+    /// A balance whose k·sigma exceeds this fraction of the billed quantity, and is not beyond it, is
+    /// inconclusive (0.05).
+    pub inconclusive_fraction: f64,
+    /// Default meter repeatability, standard uncertainty, % of delivered (0.5).
+    pub meter_repeatability_percent: f64,
+    /// Tank pressure standard uncertainty, Pa (5 kPa).
+    pub pressure_u_pa: f64,
+    /// Uncertainty of the tracked liquid saturation pressure: this fraction of (tank pressure −
+    /// liquid saturation pressure) ... (0.05)
+    pub liquid_state_u_fraction: f64,
+    /// ... plus this, Pa (5 kPa).
+    pub liquid_state_u_pa: f64,
+    /// Significance level of the drift test after Holm's correction across tanks (0.01).
+    pub drift_alpha: f64,
+    /// Smallest drift reported, fraction of span per year (0.02: slower trends of about 1 %/year
+    /// also arise from the usage model on some healthy tanks in simulation).
+    pub drift_min_per_year: f64,
+    /// Fewest fills for a drift test (6).
+    pub drift_min_fills: usize,
+    /// Significance level of the vehicle test after Holm's correction across vehicles (0.01).
+    pub vehicle_alpha: f64,
+    /// Smallest vehicle bias reported, fraction (0.005).
+    pub vehicle_min_bias: f64,
+    /// Fewest fills for a vehicle test (5).
+    pub vehicle_min_fills: usize,
+    /// Legal tolerance of the vehicle meters, fraction (0.015; legal-metrology codes for cryogenic
+    /// liquid meters allow about 1–2.5 %).
+    pub legal_tolerance: f64,
+    /// A gain between readings with no ticket is flagged beyond this many robust standard deviations (6)
+    /// ...
+    pub gain_sigmas: f64,
+    /// ... and beyond this fraction of a full tank's mass (0.05).
+    pub gain_min_fraction: f64,
+    /// Consecutive reading intervals averaged when looking for a loss beyond use (7).
+    pub loss_window: usize,
+    /// A loss beyond use is flagged when the window's rate exceeds the usual rate by this fraction (0.5)
+    /// and by 4 standard errors.
+    pub loss_excess_fraction: f64,
+    /// Days between reaching the reorder level and the fill (1).
+    pub fill_lead_days: f64,
+    /// Golden-section steps of the NER fit (6: the bracket of ln NER, ±ln 3 wide, shrinks to ±0.06).
+    pub ner_fit_iterations: usize,
+    /// Solve every density from the equation of state instead of the audit's tables (slower; the
+    /// tables agree within 1e-5).
+    pub exact_properties: bool,
+    /// Keep every reading's state in [`TankAudit::readings`] (memory: 40 bytes a reading).
+    pub keep_readings: bool,
+}
+
+impl Default for AuditOptions {
+    fn default() -> Self {
+        AuditOptions {
+            thermal_history: true,
+            fit_ner: true,
+            ner_fit_range_factor: 3.0,
+            ner_fit_scale_fraction: 0.007,
+            ner_prior_ln_sd: 0.4,
+            bracket_window_s: 6.0 * 3600.0,
+            usage_window_days: 10.0,
+            usage_u_rel: 0.5,
+            coverage_factor: 2.0,
+            materiality_fraction: 0.01,
+            inconclusive_fraction: 0.05,
+            meter_repeatability_percent: 0.5,
+            pressure_u_pa: 5e3,
+            liquid_state_u_fraction: 0.05,
+            liquid_state_u_pa: 5e3,
+            drift_alpha: 0.01,
+            drift_min_per_year: 0.02,
+            drift_min_fills: 6,
+            vehicle_alpha: 0.01,
+            vehicle_min_bias: 0.005,
+            vehicle_min_fills: 5,
+            legal_tolerance: 0.015,
+            gain_sigmas: 6.0,
+            gain_min_fraction: 0.05,
+            loss_window: 7,
+            loss_excess_fraction: 0.5,
+            fill_lead_days: 1.0,
+            ner_fit_iterations: 6,
+            exact_properties: false,
+            keep_readings: false,
+        }
+    }
+}
+
+/// Why a tank could not be audited.
+#[derive(Debug, thiserror::Error)]
+pub enum AuditError {
+    /// The tank's fluid refused a state the audit needs (e.g. its reference saturation).
+    #[error("tank {tank}: {source}")]
+    Fluid {
+        /// Tank name.
+        tank: String,
+        /// The fluid engine's error.
+        source: fluids::FluidError,
+    },
+    /// The contents engine refused the tank's settings.
+    #[error("tank {tank}: {source}")]
+    Tank {
+        /// Tank name.
+        tank: String,
+        /// The contents engine's error.
+        source: tank::TankError,
+    },
+}

@@ -1,0 +1,86 @@
+use crate::common::*;
+
+/// `demo --db` writes the embedded fleet; a second run into the same database is refused and changes
+/// nothing.
+#[test]
+fn demo_writes_once() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = dir.path().join("sub").join("demo.db");
+    let out = bin().arg("demo").arg("--db").arg(&db).output().unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let text = String::from_utf8(out.stdout).unwrap();
+    assert!(text.contains("16 tanks"), "{text}");
+    let before = dump(&db);
+    let again = bin().arg("demo").arg("--db").arg(&db).output().unwrap();
+    assert!(!again.status.success());
+    assert_eq!(dump(&db), before);
+}
+
+/// The demo's planted faults (demo-data/README.md: vehicle MC-T25 3 % short, gauge of DSF-AR-7
+/// drifting -4 % of span a year, an unlogged delivery at BH-AR-3, a leak at EFF-O2-10 from day 290)
+/// are what the audit finds, and nothing else is flagged as biased or drifting.
+#[test]
+fn demo_audit_finds_the_planted_faults() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = dir.path().join("demo.db");
+    assert!(
+        bin()
+            .arg("demo")
+            .arg("--db")
+            .arg(&db)
+            .status()
+            .unwrap()
+            .success()
+    );
+    let out = bin()
+        .args(["audit", "--format", "json", "--db"])
+        .arg(&db)
+        .output()
+        .unwrap();
+    assert!(out.status.success());
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let flagged = |list: &str, key: &str, status: &str| -> Vec<String> {
+        v[list]
+            .as_array()
+            .unwrap()
+            .iter()
+            .filter(|x| x["status"] == status)
+            .map(|x| x[key].as_str().unwrap().to_string())
+            .collect()
+    };
+    assert_eq!(flagged("vehicles", "vehicle", "biased"), ["MC-T25"]);
+    assert_eq!(flagged("gauges", "tank", "drift"), ["DSF-AR-7"]);
+    let findings: Vec<(String, String)> = v["findings"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|f| {
+            (
+                f["kind"].as_str().unwrap().to_string(),
+                f["tank"].as_str().unwrap().to_string(),
+            )
+        })
+        .collect();
+    assert!(
+        findings.contains(&("unexplained-gain".into(), "BH-AR-3".into())),
+        "{findings:?}"
+    );
+    assert!(
+        findings.contains(&("loss-beyond-use".into(), "EFF-O2-10".into())),
+        "{findings:?}"
+    );
+    let bias = v["vehicles"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|x| x["vehicle"] == "MC-T25")
+        .unwrap()["bias_percent"]
+        .as_f64()
+        .unwrap();
+    // planted -3 %; tolerance 0.5 % (the fills' scatter over ~20 fills)
+    assert!((bias + 3.0).abs() < 0.5, "{bias}");
+}
