@@ -1,39 +1,80 @@
 //! The cryoledger desktop app (eframe/egui), as a library so tests can drive it.
 //!
-//! Data flows one way: the store and the engines feed [`view::ViewState`]; panels draw from it and emit
-//! [`action::Action`]s; [`CryoApp`] drains the actions in `logic` (the only place that writes to the
-//! store) and rebuilds the view state that changed.
+//! Data flows one way: the store and the engines feed [`view::ViewState`] (built in [`build`]); panels
+//! draw from it and emit [`action::Action`]s; [`CryoApp`] drains the actions in `logic`, where
+//! [`action::Core::handle`] is the only code that writes to the store and rebuilds what changed.
+//! The fleet summary (every tank's latest contents and open findings) runs on a named background
+//! thread. Contents follow the liquid's thermal history from the audit engine ([`thermal`]).
+//!
+//! Start-up options for screenshots and demos: `CRYOLEDGER_OPEN` opens a page
+//! (`tank:NAME[:now|readings|deliveries|trend]`, `tank:NAME:readings:latest` to open the latest
+//! reading for editing, `setup:NAME`, `setup:new`, `help`), and
+//! `CRYOLEDGER_UNITS` (`si` or `us`) sets the display units for this session.
 #![deny(missing_docs)]
 
 pub mod action;
+pub mod build;
+pub mod fmt;
 pub mod panels;
+pub mod style;
+pub mod thermal;
 pub mod view;
 
-use action::Action;
+use action::{Action, Core};
+use fmt::UnitSystem;
+use serde::{Deserialize, Serialize};
 use std::path::PathBuf;
+use std::time::Instant;
 use store::Store;
-use view::ViewState;
+use view::{Page, TankTab, ViewState};
 
-/// The application: the open store, what the panels draw, and the queue of user intents.
+/// What is remembered between sessions (eframe storage).
+#[derive(Debug, Clone, Copy, PartialEq, Default, Serialize, Deserialize)]
+pub struct Settings {
+    /// Display units.
+    pub units: UnitSystem,
+}
+
+const SETTINGS_KEY: &str = "cryoledger-settings";
+
+/// The application: the core (store, view state, background work) and the queue of user intents.
 pub struct CryoApp {
-    store: Store,
+    core: Core,
     db_path: PathBuf,
-    /// What the panels draw.
-    pub view: ViewState,
     actions: Vec<Action>,
+    frame_ms: f64,
+    last_frame_ms: f64,
+    styled: bool,
+    select_first_when_ready: bool,
 }
 
 impl CryoApp {
-    /// An app on an open store.
+    /// An app on an open store, with default settings.
     pub fn new(store: Store, db_path: PathBuf) -> Self {
-        let mut app = Self {
-            store,
+        Self::with_settings(store, db_path, Settings::default())
+    }
+
+    /// An app on an open store with remembered settings.
+    pub fn with_settings(store: Store, db_path: PathBuf, settings: Settings) -> Self {
+        Self {
+            core: Core::new(store, settings.units, Some(db_path.clone())),
             db_path,
-            view: ViewState::default(),
             actions: Vec::new(),
-        };
-        app.view.rebuild_fleet(&app.store);
-        app
+            frame_ms: 0.0,
+            last_frame_ms: 0.0,
+            styled: false,
+            select_first_when_ready: false,
+        }
+    }
+
+    /// What the panels draw.
+    pub fn view(&self) -> &ViewState {
+        &self.core.view
+    }
+
+    /// The open store (read it in tests; writes go through actions).
+    pub fn store(&self) -> &Store {
+        &self.core.store
     }
 
     /// Queue a user intent (panels and tests).
@@ -44,30 +85,149 @@ impl CryoApp {
     /// Handle every queued action and rebuild what changed.
     pub fn drain_actions(&mut self) {
         for a in std::mem::take(&mut self.actions) {
-            action::handle(a, &mut self.store, &mut self.view);
+            self.core.handle(a);
         }
+    }
+
+    /// Block until background work has finished (tests and benchmarks).
+    pub fn wait_for_background(&mut self) {
+        self.core.wait_for_background();
     }
 
     /// The database this app shows.
     pub fn db_path(&self) -> &std::path::Path {
         &self.db_path
     }
-}
 
-impl eframe::App for CryoApp {
-    fn logic(&mut self, _ctx: &egui::Context, _frame: &mut eframe::Frame) {
+    /// The settings to remember.
+    pub fn settings(&self) -> Settings {
+        Settings {
+            units: self.core.view.units,
+        }
+    }
+
+    /// Open a page by a start-up spec (see the crate docs); unknown names show an error line.
+    pub fn open_on(&mut self, spec: &str) {
+        let mut parts = spec.splitn(4, ':');
+        let kind = parts.next().unwrap_or("");
+        let name = parts.next().unwrap_or("");
+        let tab = parts.next().unwrap_or("now");
+        let edit_latest = parts.next() == Some("latest");
+        let lookup = |core: &Core, name: &str| core.store.tank_by_name(name).ok().map(|t| t.id);
+        match kind {
+            "help" => self.push(Action::ShowHelp),
+            "setup" if name == "new" || name.is_empty() => self.push(Action::OpenSetup(None)),
+            "setup" | "tank" => match lookup(&self.core, name) {
+                Some(id) => {
+                    self.push(Action::SelectTank(id));
+                    if kind == "setup" {
+                        self.push(Action::OpenSetup(Some(id)));
+                    } else {
+                        let t = TankTab::ALL
+                            .into_iter()
+                            .find(|t| t.title().eq_ignore_ascii_case(tab))
+                            .unwrap_or_default();
+                        self.push(Action::ShowTab(t));
+                        if edit_latest {
+                            let latest = self
+                                .core
+                                .store
+                                .readings(id, None)
+                                .ok()
+                                .and_then(|r| r.last().map(|r| r.id));
+                            self.push(Action::SelectReading(latest));
+                        }
+                    }
+                }
+                None => self.core.view.error = Some(format!("no tank named '{name}'")),
+            },
+            _ => self.core.view.error = Some(format!("unknown page '{spec}'")),
+        }
         self.drain_actions();
     }
 
-    fn ui(&mut self, ui: &mut egui::Ui, _frame: &mut eframe::Frame) {
+    /// Select the first tank of the fleet (a first start shows something alive at once).
+    pub fn select_first_tank(&mut self) {
+        let first = self
+            .core
+            .view
+            .fleet
+            .sites
+            .iter()
+            .flat_map(|s| s.tanks.first())
+            .next()
+            .map(|t| t.id);
+        if let Some(id) = first {
+            self.push(Action::SelectTank(id));
+            self.drain_actions();
+        }
+    }
+
+    fn draw(&mut self, ui: &mut egui::Ui) {
+        let view = &self.core.view;
         let mut out = Vec::new();
+        egui::Panel::top("top_bar").show(ui, |ui| panels::top::top_ui(ui, view, &mut out));
+        egui::Panel::bottom("status_bar").show(ui, |ui| panels::top::status_ui(ui, view, &mut out));
         egui::Panel::left("fleet")
             .resizable(true)
-            .default_size(280.0)
-            .show(ui, |ui| panels::fleet::fleet_ui(ui, &self.view, &mut out));
-        egui::CentralPanel::default()
-            .show(ui, |ui| panels::tank::tank_ui(ui, &self.view, &mut out));
+            .default_size(300.0)
+            .min_size(240.0)
+            .show(ui, |ui| panels::fleet::fleet_ui(ui, view, &mut out));
+        egui::CentralPanel::default().show(ui, |ui| match view.page {
+            Page::Tank => panels::tank_page::tank_page_ui(ui, view, &mut out),
+            Page::Setup => panels::setup::setup_ui(ui, view, &mut out),
+            Page::Help => panels::help::help_ui(ui, view, &mut out),
+        });
         self.actions.extend(out);
+    }
+}
+
+impl eframe::App for CryoApp {
+    fn logic(&mut self, ctx: &egui::Context, _frame: &mut eframe::Frame) {
+        let started = Instant::now();
+        if !self.styled {
+            style::apply(ctx);
+            self.styled = true;
+        }
+        self.drain_actions();
+        if self.core.poll_background() {
+            ctx.request_repaint_after(std::time::Duration::from_millis(50));
+        } else if self.select_first_when_ready {
+            self.select_first_when_ready = false;
+            self.select_first_tank();
+        }
+        self.frame_ms += started.elapsed().as_secs_f64() * 1e3;
+    }
+
+    fn ui(&mut self, ui: &mut egui::Ui, _frame: &mut eframe::Frame) {
+        let started = Instant::now();
+        self.draw(ui);
+        // `frame_ms` holds this frame's logic time; fold it and the ui time into a running mean.
+        let this = self.frame_ms + started.elapsed().as_secs_f64() * 1e3;
+        self.last_frame_ms = this;
+        let mean = self.core.view.frame_ms;
+        self.core.view.frame_ms = if mean == 0.0 {
+            this
+        } else {
+            0.9 * mean + 0.1 * this
+        };
+        self.frame_ms = 0.0;
+    }
+
+    fn save(&mut self, storage: &mut dyn eframe::Storage) {
+        eframe::set_value(storage, SETTINGS_KEY, &self.settings());
+    }
+}
+
+impl CryoApp {
+    /// CPU time of the last frame (logic + ui), ms.
+    pub fn last_frame_ms(&self) -> f64 {
+        self.last_frame_ms
+    }
+
+    /// Mean CPU time per frame (logic + ui) as shown in the status bar, ms.
+    pub fn mean_frame_ms(&self) -> f64 {
+        self.core.view.frame_ms
     }
 }
 
@@ -77,13 +237,32 @@ pub fn run_native(store: Store, db_path: PathBuf) -> eframe::Result {
     let options = eframe::NativeOptions {
         viewport: egui::ViewportBuilder::default()
             .with_title(title)
-            .with_inner_size([1280.0, 800.0]),
+            .with_inner_size([1360.0, 860.0])
+            .with_min_inner_size([900.0, 600.0]),
         ..Default::default()
     };
     eframe::run_native(
         "cryoledger",
         options,
-        Box::new(|_cc| Ok(Box::new(CryoApp::new(store, db_path)))),
+        Box::new(|cc| {
+            let mut settings: Settings = cc
+                .storage
+                .and_then(|s| eframe::get_value(s, SETTINGS_KEY))
+                .unwrap_or_default();
+            match std::env::var("CRYOLEDGER_UNITS").as_deref() {
+                Ok("us") => settings.units = UnitSystem::Us,
+                Ok("si") => settings.units = UnitSystem::Si,
+                _ => {}
+            }
+            style::apply(&cc.egui_ctx);
+            let mut app = CryoApp::with_settings(store, db_path, settings);
+            match std::env::var("CRYOLEDGER_OPEN") {
+                Ok(spec) if !spec.is_empty() => app.open_on(&spec),
+                // A first start shows a living tank as soon as the fleet summary is in.
+                _ => app.select_first_when_ready = true,
+            }
+            Ok(Box::new(app))
+        }),
     )
 }
 

@@ -1,4 +1,14 @@
-//! Panels: each draws from the view state and emits actions; none touches the store or an engine.
+//! Panels: each is `xxx_ui(ui, &ViewState, &mut Vec<Action>)`; it draws from the view state and emits
+//! actions, and never reaches the database or an engine.
 
+pub mod deliveries;
 pub mod fleet;
-pub mod tank;
+pub mod help;
+pub mod now;
+pub mod readings;
+pub mod setup;
+pub mod tank_page;
+pub mod top;
+pub mod trend;
+pub mod vessel;
+pub mod widgets;

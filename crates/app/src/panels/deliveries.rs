@@ -1,0 +1,223 @@
+//! The Deliveries tab: the delivery log (newest first) and its entry form, checked as the user types.
+//! Clicking a row loads it for editing or deletion with a reason.
+
+use crate::action::Action;
+use crate::fmt;
+use crate::panels::widgets::{self, Column};
+use crate::style;
+use crate::view::{DeliveryForm, ViewState};
+use egui::{RichText, Ui};
+use units::Unit;
+
+/// Draw the Deliveries tab.
+pub fn deliveries_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
+    let Some(t) = &view.tank else { return };
+    egui::Panel::right("delivery_form")
+        .exact_size(330.0)
+        .resizable(false)
+        .show(ui, |ui| {
+            egui::ScrollArea::vertical().show(ui, |ui| form_ui(ui, view, out));
+        });
+    let mut cols = vec![
+        Column::text("Ticket", 84.0),
+        Column::text("Start (UTC)", 116.0),
+        Column::num("Minutes", 62.0),
+        Column::num("Billed", 90.0),
+        Column::num("Supply", 80.0),
+        Column::text("Vehicle", 64.0),
+    ];
+    let used: f32 = cols.iter().map(|c| c.width).sum();
+    cols.push(Column::text(
+        "Carrier",
+        (ui.available_width() - used - 16.0).max(120.0),
+    ));
+    ui.label(
+        RichText::new(format!(
+            "{} deliveries, newest first. Click a row to edit or delete it.",
+            t.deliveries.len()
+        ))
+        .color(style::MUTED),
+    );
+    egui::ScrollArea::horizontal()
+        .id_salt("deliveries_h")
+        .show(ui, |ui| {
+            ui.vertical(|ui| {
+                ui.spacing_mut().item_spacing.y = 0.0;
+                widgets::header(ui, &cols);
+                let editing = view.delivery_form.editing;
+                egui::ScrollArea::vertical()
+                    .id_salt("deliveries_v")
+                    .auto_shrink([false, false])
+                    .show_rows(ui, widgets::ROW_HEIGHT, t.deliveries.len(), |ui, range| {
+                        for i in range {
+                            let Some(d) = t.deliveries.get(i) else {
+                                continue;
+                            };
+                            let cells = vec![
+                                d.ticket.clone(),
+                                fmt::date_time(d.start_ms),
+                                fmt::num((d.end_ms - d.start_ms) as f64 / 60_000.0, 0),
+                                d.quantity_text.clone(),
+                                d.supply_text.clone(),
+                                d.vehicle.clone(),
+                                d.carrier.clone(),
+                            ];
+                            if widgets::row(
+                                ui,
+                                &cols,
+                                &cells,
+                                editing == Some(d.id),
+                                i % 2 == 1,
+                                None,
+                            ) {
+                                out.push(Action::SelectDelivery(Some(d.id)));
+                            }
+                        }
+                    });
+            });
+        });
+}
+
+fn form_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
+    let f = &view.delivery_form;
+    let check = &view.delivery_check;
+    let editing = f.editing.is_some();
+    ui.add_space(4.0);
+    ui.horizontal(|ui| {
+        ui.heading(if editing {
+            "Edit delivery"
+        } else {
+            "New delivery"
+        });
+        if editing && ui.small_button("New delivery").clicked() {
+            out.push(Action::SelectDelivery(None));
+        }
+    });
+    let mut next: Option<DeliveryForm> = None;
+    let mut set = |g: &mut dyn FnMut(&mut DeliveryForm)| {
+        let mut n = next.clone().unwrap_or_else(|| f.clone());
+        g(&mut n);
+        next = Some(n);
+    };
+    if let Some(v) = widgets::text_field(ui, "Ticket", &f.ticket, 300.0, "ticket number") {
+        set(&mut |n| n.ticket = v.clone());
+    }
+    widgets::messages(ui, check, "ticket");
+    if let Some(v) = widgets::text_field(
+        ui,
+        "Start (RFC 3339)",
+        &f.start,
+        300.0,
+        "2026-03-01T10:00:00Z",
+    ) {
+        set(&mut |n| n.start = v.clone());
+    }
+    widgets::messages(ui, check, "start");
+    if let Some(v) =
+        widgets::text_field(ui, "End (RFC 3339)", &f.end, 300.0, "2026-03-01T10:40:00Z")
+    {
+        set(&mut |n| n.end = v.clone());
+    }
+    widgets::messages(ui, check, "end");
+    ui.horizontal(|ui| {
+        if let Some(v) =
+            widgets::text_field(ui, "Quantity", &f.quantity, 150.0, "e.g. 4120 or 9000 lb")
+        {
+            set(&mut |n| n.quantity = v.clone());
+        }
+        let opts: Vec<&str> = units::QuantityUnit::ALL
+            .iter()
+            .map(|u| u.symbol())
+            .collect();
+        if let Some(v) = widgets::choice(ui, "Quantity unit", &f.quantity_unit, &opts, 110.0) {
+            set(&mut |n| n.quantity_unit = v.clone());
+        }
+    });
+    widgets::messages(ui, check, "quantity");
+    if let Some(v) = widgets::text_field(ui, "Carrier", &f.carrier, 300.0, "") {
+        set(&mut |n| n.carrier = v.clone());
+    }
+    widgets::messages(ui, check, "carrier");
+    if let Some(v) = widgets::text_field(ui, "Vehicle", &f.vehicle, 300.0, "") {
+        set(&mut |n| n.vehicle = v.clone());
+    }
+    widgets::messages(ui, check, "vehicle");
+    ui.horizontal(|ui| {
+        if let Some(v) = widgets::text_field(
+            ui,
+            "Supply pressure (optional)",
+            &f.supply_pressure,
+            150.0,
+            "e.g. 2.5",
+        ) {
+            set(&mut |n| n.supply_pressure = v.clone());
+        }
+        let opts: Vec<&str> = units::TankPressureUnit::ALL
+            .iter()
+            .map(|u| u.symbol())
+            .collect();
+        if let Some(v) = widgets::choice(
+            ui,
+            "Supply pressure unit",
+            &f.supply_pressure_unit,
+            &opts,
+            110.0,
+        ) {
+            set(&mut |n| n.supply_pressure_unit = v.clone());
+        }
+    });
+    widgets::messages(ui, check, "supply_pressure");
+    if editing {
+        if let Some(v) = widgets::text_field(
+            ui,
+            "Reason for the change",
+            &f.reason,
+            300.0,
+            "required to edit or delete",
+        ) {
+            set(&mut |n| n.reason = v.clone());
+        }
+        widgets::messages(ui, check, "reason");
+    }
+    if let Some(n) = next {
+        out.push(Action::EditDeliveryForm(n));
+    }
+    for line in &check.preview {
+        ui.label(RichText::new(line).color(style::MUTED));
+    }
+    ui.add_space(6.0);
+    ui.horizontal(|ui| {
+        let label = if editing {
+            "Save change"
+        } else {
+            "Save delivery"
+        };
+        if widgets::action_button(ui, label, check.ok) {
+            out.push(Action::SaveDelivery);
+        }
+        if editing && widgets::action_button(ui, "Delete delivery", !f.reason.trim().is_empty()) {
+            out.push(Action::DeleteDelivery);
+        }
+    });
+    if let Some(t) = &view.tank
+        && editing
+    {
+        ui.add_space(8.0);
+        ui.label(RichText::new("History of this delivery").strong());
+        if t.history.is_empty() {
+            ui.label(
+                RichText::new("No earlier versions.")
+                    .small()
+                    .color(style::MUTED),
+            );
+        }
+        for h in &t.history {
+            ui.label(RichText::new(format!("{} — {}: {}", h.when, h.action, h.reason)).small());
+            ui.label(
+                RichText::new(format!("was {}", h.old))
+                    .small()
+                    .color(style::MUTED),
+            );
+        }
+    }
+}

@@ -1,0 +1,269 @@
+//! The Readings tab: the reading log (newest first, virtualised) and the entry form, which shows what
+//! the typed reading implies as the user types and refuses to save an invalid one. Clicking a row
+//! loads it for editing or deletion, each with a reason kept in the reading's history.
+
+use crate::action::Action;
+use crate::fmt::{self, UnitSystem};
+use crate::panels::widgets::{self, Column};
+use crate::style;
+use crate::view::{ReadingForm, ViewState};
+use egui::{RichText, Ui};
+use units::Unit;
+
+/// Draw the Readings tab.
+pub fn readings_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
+    let Some(t) = &view.tank else { return };
+    egui::Panel::right("reading_form")
+        .exact_size(330.0)
+        .resizable(false)
+        .show(ui, |ui| {
+            egui::ScrollArea::vertical().show(ui, |ui| form_ui(ui, view, out));
+        });
+    let units = view.units;
+    let mut cols = vec![
+        Column::text("Time (UTC)", 116.0),
+        Column::num(format!("DP ({})", t.dp_unit), 70.0),
+        Column::num("Pressure", 80.0),
+        Column::num(format!("Mass ({})", units.mass_unit()), 76.0),
+        Column::num("± u", 46.0),
+        Column::num("Fill (%)", 56.0),
+        Column::num(format!("Liquid ({})", units.volume_unit()), 76.0),
+        Column::num(format!("Gas ({})", units.gas_unit()), 76.0),
+    ];
+    let used: f32 = cols.iter().map(|c| c.width).sum();
+    cols.push(Column::text(
+        "Note",
+        (ui.available_width() - used - 16.0).max(120.0),
+    ));
+    ui.label(
+        RichText::new(format!(
+            "{} readings, newest first. Click a row to edit or delete it.",
+            t.readings.len()
+        ))
+        .color(style::MUTED),
+    );
+    egui::ScrollArea::horizontal()
+        .id_salt("readings_h")
+        .show(ui, |ui| {
+            ui.vertical(|ui| {
+                ui.spacing_mut().item_spacing.y = 0.0;
+                widgets::header(ui, &cols);
+                let editing = view.reading_form.editing;
+                egui::ScrollArea::vertical()
+                    .id_salt("readings_v")
+                    .auto_shrink([false, false])
+                    .show_rows(ui, widgets::ROW_HEIGHT, t.readings.len(), |ui, range| {
+                        for i in range {
+                            let Some(r) = t.readings.get(i) else { continue };
+                            let dp = r.dp_text.split(' ').next().unwrap_or("").to_owned();
+                            let cells: Vec<String> = match &r.contents {
+                                Ok(c) => {
+                                    let vd = if units == UnitSystem::Si { 3 } else { 0 };
+                                    vec![
+                                        fmt::date_time(r.time_ms),
+                                        dp,
+                                        r.pressure_text.clone(),
+                                        fmt::num(units.mass(c.mass_kg.value), 0),
+                                        c.mass_kg
+                                            .u
+                                            .map(|u| fmt::num(units.mass(u), 0))
+                                            .unwrap_or_default(),
+                                        fmt::num(c.fill.value * 100.0, 1),
+                                        fmt::num(units.volume(c.volume_m3.value), vd),
+                                        fmt::num(
+                                            fmt::gas(units, c.gas_nm3.value, c.gas_scf.value),
+                                            0,
+                                        ),
+                                        r.note.clone(),
+                                    ]
+                                }
+                                Err(e) => vec![
+                                    fmt::date_time(r.time_ms),
+                                    dp,
+                                    r.pressure_text.clone(),
+                                    "refused".into(),
+                                    String::new(),
+                                    String::new(),
+                                    String::new(),
+                                    String::new(),
+                                    e.clone(),
+                                ],
+                            };
+                            let colour = r.contents.is_err().then_some(style::ERROR);
+                            if widgets::row(
+                                ui,
+                                &cols,
+                                &cells,
+                                editing == Some(r.id),
+                                i % 2 == 1,
+                                colour,
+                            ) {
+                                out.push(Action::SelectReading(Some(r.id)));
+                            }
+                        }
+                    });
+            });
+        });
+}
+
+fn form_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
+    let f = &view.reading_form;
+    let check = &view.reading_check;
+    let editing = f.editing.is_some();
+    ui.add_space(4.0);
+    ui.horizontal(|ui| {
+        ui.heading(if editing {
+            "Edit reading"
+        } else {
+            "New reading"
+        });
+        if editing && ui.small_button("New reading").clicked() {
+            out.push(Action::SelectReading(None));
+        }
+    });
+    let mut next: Option<ReadingForm> = None;
+    let mut set = |g: &mut dyn FnMut(&mut ReadingForm)| {
+        let mut n = next.clone().unwrap_or_else(|| f.clone());
+        g(&mut n);
+        next = Some(n);
+    };
+    ui.horizontal(|ui| {
+        if let Some(v) = widgets::text_field(
+            ui,
+            "Time (RFC 3339)",
+            &f.time,
+            214.0,
+            "2026-03-01T08:00:00Z",
+        ) {
+            set(&mut |n| n.time = v.clone());
+        }
+        ui.vertical(|ui| {
+            ui.add_space(14.0);
+            if ui
+                .button("Set to now")
+                .on_hover_text("Set the time to now (UTC)")
+                .clicked()
+            {
+                let now = fmt::rfc3339(fmt::now_ms());
+                set(&mut |n| n.time = now.clone());
+            }
+        });
+    });
+    widgets::messages(ui, check, "time");
+    ui.horizontal(|ui| {
+        if let Some(v) = widgets::text_field(ui, "DP", &f.dp, 150.0, "e.g. 182.5 or 46 kPa") {
+            set(&mut |n| n.dp = v.clone());
+        }
+        let opts: Vec<&str> = units::DpUnit::ALL.iter().map(|u| u.symbol()).collect();
+        if let Some(v) = widgets::choice(ui, "DP unit", &f.dp_unit, &opts, 110.0) {
+            set(&mut |n| n.dp_unit = v.clone());
+        }
+    });
+    widgets::messages(ui, check, "dp");
+    ui.horizontal(|ui| {
+        if let Some(v) = widgets::text_field(
+            ui,
+            "Tank pressure",
+            &f.pressure,
+            150.0,
+            "e.g. 11.8 or 171 psig",
+        ) {
+            set(&mut |n| n.pressure = v.clone());
+        }
+        let opts: Vec<&str> = units::TankPressureUnit::ALL
+            .iter()
+            .map(|u| u.symbol())
+            .collect();
+        if let Some(v) = widgets::choice(ui, "Pressure unit", &f.pressure_unit, &opts, 110.0) {
+            set(&mut |n| n.pressure_unit = v.clone());
+        }
+    });
+    widgets::messages(ui, check, "pressure");
+    if let Some(v) = widgets::text_field(
+        ui,
+        "Liquid temperature (optional)",
+        &f.liquid_temperature,
+        300.0,
+        "e.g. 83 K or -190 C",
+    ) {
+        set(&mut |n| n.liquid_temperature = v.clone());
+    }
+    widgets::messages(ui, check, "liquid_temperature_k");
+    if let Some(v) = widgets::text_field(ui, "Note (optional)", &f.note, 300.0, "") {
+        set(&mut |n| n.note = v.clone());
+    }
+    if editing {
+        if let Some(v) = widgets::text_field(
+            ui,
+            "Reason for the change",
+            &f.reason,
+            300.0,
+            "required to edit or delete",
+        ) {
+            set(&mut |n| n.reason = v.clone());
+        }
+        widgets::messages(ui, check, "reason");
+    }
+    if let Some(n) = next {
+        out.push(Action::EditReadingForm(n));
+    }
+    ui.add_space(6.0);
+    if !check.preview.is_empty() {
+        egui::Frame::new()
+            .fill(style::CARD)
+            .inner_margin(egui::Margin::same(8))
+            .corner_radius(3)
+            .show(ui, |ui| {
+                ui.set_width(300.0);
+                ui.label(
+                    RichText::new("This reading means")
+                        .color(style::MUTED)
+                        .small(),
+                );
+                for line in &check.preview {
+                    ui.label(line);
+                }
+            });
+    } else if f.dp.trim().is_empty() || f.pressure.trim().is_empty() {
+        ui.label(
+            RichText::new("Enter the DP and the tank pressure to see the contents they imply.")
+                .small()
+                .color(style::MUTED),
+        );
+    }
+    ui.add_space(6.0);
+    ui.horizontal(|ui| {
+        let label = if editing {
+            "Save change"
+        } else {
+            "Save reading"
+        };
+        if widgets::action_button(ui, label, check.ok) {
+            out.push(Action::SaveReading);
+        }
+        if editing && widgets::action_button(ui, "Delete reading", !f.reason.trim().is_empty()) {
+            out.push(Action::DeleteReading);
+        }
+    });
+    if let Some(t) = &view.tank
+        && editing
+    {
+        ui.add_space(8.0);
+        ui.label(RichText::new("History of this reading").strong());
+        if t.history.is_empty() {
+            ui.label(
+                RichText::new("No earlier versions.")
+                    .small()
+                    .color(style::MUTED),
+            );
+        }
+        for h in &t.history {
+            ui.label(RichText::new(format!("{} — {}: {}", h.when, h.action, h.reason)).small());
+            ui.label(
+                RichText::new(format!("was {}", h.old))
+                    .small()
+                    .color(style::MUTED),
+            );
+        }
+    }
+}

@@ -1,0 +1,230 @@
+//! Small widgets the panels share: labelled fields with their messages, unit pickers, figure cards,
+//! table cells. Every interactive widget gets an accessible name.
+
+use crate::style;
+use crate::view::FormCheck;
+use egui::{Align, Color32, Layout, Rect, RichText, Role, Ui, UiBuilder, WidgetInfo, vec2};
+
+/// A single-line text field with a label above it; returns the new text when it changed.
+pub fn text_field(ui: &mut Ui, label: &str, text: &str, width: f32, hint: &str) -> Option<String> {
+    let mut t = text.to_owned();
+    let mut changed = false;
+    ui.vertical(|ui| {
+        ui.label(RichText::new(label).color(style::MUTED).small());
+        let r = ui.add(
+            egui::TextEdit::singleline(&mut t)
+                .desired_width(width)
+                .hint_text(hint),
+        );
+        r.widget_info(|| WidgetInfo::labeled(Role::TextInput, true, label));
+        changed = r.changed();
+    });
+    changed.then_some(t)
+}
+
+/// A pick list of unit or name choices with an accessible name; returns the new choice.
+pub fn choice(
+    ui: &mut Ui,
+    label: &str,
+    current: &str,
+    options: &[&str],
+    width: f32,
+) -> Option<String> {
+    let mut picked = None;
+    ui.vertical(|ui| {
+        ui.label(RichText::new(label).color(style::MUTED).small());
+        let r = egui::ComboBox::from_id_salt(label)
+            .selected_text(current)
+            .width(width)
+            .show_ui(ui, |ui| {
+                for o in options {
+                    let r = ui.selectable_label(current == *o, *o);
+                    if r.clicked() {
+                        picked = Some((*o).to_owned());
+                    }
+                }
+            });
+        r.response
+            .widget_info(|| WidgetInfo::labeled(Role::ComboBox, true, label));
+    });
+    picked
+}
+
+/// The messages of the fields named `prefix` (and `prefix_...`), in the error colour, under a field.
+pub fn messages(ui: &mut Ui, check: &FormCheck, prefix: &str) {
+    for m in check.at(prefix) {
+        ui.label(RichText::new(m).color(style::ERROR).small());
+    }
+}
+
+/// A titled figure: big value, unit, and its standard uncertainty underneath.
+pub fn figure(ui: &mut Ui, width: f32, title: &str, value: &str, unit: &str, sub: &str) {
+    egui::Frame::new()
+        .fill(style::CARD)
+        .stroke(egui::Stroke::new(1.0, Color32::from_rgb(0xd8, 0xde, 0xe4)))
+        .corner_radius(4)
+        .inner_margin(egui::Margin::symmetric(12, 8))
+        .show(ui, |ui| {
+            ui.vertical(|ui| {
+                ui.set_width(width - 24.0);
+                ui.label(RichText::new(title).color(style::MUTED));
+                ui.horizontal(|ui| {
+                    ui.label(RichText::new(value).size(26.0).strong().color(style::INK));
+                    ui.label(RichText::new(unit).size(15.0).color(style::MUTED));
+                });
+                ui.label(RichText::new(sub).color(style::MUTED).small());
+            });
+        });
+}
+
+/// A framed caution note.
+pub fn caution(ui: &mut Ui, text: &str) {
+    egui::Frame::new()
+        .fill(style::CAUTION_BG)
+        .stroke(egui::Stroke::new(1.0, style::CAUTION))
+        .corner_radius(3)
+        .inner_margin(egui::Margin::symmetric(10, 6))
+        .show(ui, |ui| {
+            ui.label(
+                RichText::new(format!("Caution — {text}"))
+                    .color(Color32::from_rgb(0x5c, 0x3b, 0x06)),
+            );
+        });
+}
+
+/// A framed audit finding.
+pub fn finding(ui: &mut Ui, text: &str) {
+    egui::Frame::new()
+        .fill(style::CARD)
+        .stroke(egui::Stroke::new(1.0, style::CAUTION))
+        .corner_radius(3)
+        .inner_margin(egui::Margin::symmetric(10, 5))
+        .show(ui, |ui| {
+            ui.label(RichText::new(format!("Open finding — {text}")).color(style::INK));
+        });
+}
+
+/// A table column: title, width, right-aligned or not.
+pub struct Column {
+    /// Header text (with unit).
+    pub title: String,
+    /// Width in points.
+    pub width: f32,
+    /// Right-align (numbers).
+    pub right: bool,
+}
+
+impl Column {
+    /// A right-aligned numeric column.
+    pub fn num(title: impl Into<String>, width: f32) -> Self {
+        Self {
+            title: title.into(),
+            width,
+            right: true,
+        }
+    }
+    /// A left-aligned text column.
+    pub fn text(title: impl Into<String>, width: f32) -> Self {
+        Self {
+            title: title.into(),
+            width,
+            right: false,
+        }
+    }
+}
+
+/// Height of one table row.
+pub const ROW_HEIGHT: f32 = 20.0;
+
+/// Lay out one table row: a selectable first cell (returns true when clicked) and plain cells.
+pub fn row(
+    ui: &mut Ui,
+    cols: &[Column],
+    cells: &[String],
+    selected: bool,
+    stripe: bool,
+    colour: Option<Color32>,
+) -> bool {
+    let width: f32 = cols.iter().map(|c| c.width).sum();
+    let (rect, _) = ui.allocate_exact_size(vec2(width, ROW_HEIGHT), egui::Sense::hover());
+    if stripe {
+        ui.painter()
+            .rect_filled(rect, 0.0, ui.visuals().faint_bg_color);
+    }
+    let mut x = rect.left();
+    let mut clicked = false;
+    let font = egui::FontId::proportional(13.0);
+    let ink = colour.unwrap_or(style::INK);
+    for (i, (c, text)) in cols.iter().zip(cells).enumerate() {
+        let cell = Rect::from_min_size(egui::pos2(x, rect.top()), vec2(c.width - 8.0, ROW_HEIGHT));
+        x += c.width;
+        if i == 0 {
+            // The first cell is the row's handle: a real widget, so it can be clicked and found.
+            let layout = Layout::left_to_right(Align::Center);
+            ui.scope_builder(UiBuilder::new().max_rect(cell).layout(layout), |ui| {
+                clicked |= ui.selectable_label(selected, text.as_str()).clicked();
+            });
+            continue;
+        }
+        // Other cells are painted (cheap for thousands of rows), clipped to their column.
+        let (pos, align) = if c.right {
+            (cell.right_center(), egui::Align2::RIGHT_CENTER)
+        } else {
+            (cell.left_center(), egui::Align2::LEFT_CENTER)
+        };
+        ui.painter()
+            .with_clip_rect(cell)
+            .text(pos, align, text, font.clone(), ink);
+    }
+    clicked
+}
+
+/// The header row of a table.
+pub fn header(ui: &mut Ui, cols: &[Column]) {
+    let width: f32 = cols.iter().map(|c| c.width).sum();
+    let (rect, _) = ui.allocate_exact_size(vec2(width, ROW_HEIGHT + 2.0), egui::Sense::hover());
+    let mut x = rect.left();
+    for c in cols {
+        let cell = Rect::from_min_size(egui::pos2(x, rect.top()), vec2(c.width - 8.0, ROW_HEIGHT));
+        x += c.width;
+        let (pos, align) = if c.right {
+            (cell.right_center(), egui::Align2::RIGHT_CENTER)
+        } else {
+            (cell.left_center(), egui::Align2::LEFT_CENTER)
+        };
+        ui.painter().text(
+            pos,
+            align,
+            &c.title,
+            egui::FontId::proportional(12.0),
+            style::MUTED,
+        );
+    }
+    ui.painter().hline(
+        rect.x_range(),
+        rect.bottom(),
+        egui::Stroke::new(1.0, Color32::from_rgb(0xc8, 0xd0, 0xd8)),
+    );
+}
+
+/// A save-style button that is disabled unless `enabled`; true when clicked.
+pub fn action_button(ui: &mut Ui, label: &str, enabled: bool) -> bool {
+    ui.add_enabled(enabled, egui::Button::new(label)).clicked()
+}
+
+/// The notice (green) or error (red) line, with a dismiss button; true when dismissed.
+pub fn message_line(ui: &mut Ui, notice: Option<&str>, error: Option<&str>) -> bool {
+    let mut dismissed = false;
+    if let Some(e) = error {
+        ui.horizontal(|ui| {
+            ui.label(RichText::new(e).color(style::ERROR));
+            dismissed = ui.small_button("Dismiss").clicked();
+        });
+    } else if let Some(n) = notice {
+        ui.horizontal(|ui| {
+            ui.label(RichText::new(n).color(style::OK));
+            dismissed = ui.small_button("Dismiss").clicked();
+        });
+    }
+    dismissed
+}

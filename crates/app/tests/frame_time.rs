@@ -1,0 +1,149 @@
+//! Frame-time and page-open benchmark (ignored by default; run in release):
+//! `cargo test -p app --release --test frame_time -- --ignored --nocapture`.
+//!
+//! A fleet of 1,000 tanks in the navigator (30 days of readings each) and one tank with five years of
+//! daily readings shown on the Trend tab over its whole history. Reports the time to open that tank's
+//! page (every reading evaluated with its uncertainty) and the CPU time per frame: the app's own timer
+//! (logic + ui) and the whole harness step (egui layout, accessibility tree).
+#![allow(clippy::expect_used)] // benchmark set-up: a failure is a test failure
+
+mod common;
+
+use app::CryoApp;
+use app::action::Action;
+use app::view::TankTab;
+use common::{DAY_MS, add_history, tank_fields};
+use egui_kittest::Harness;
+use std::time::Instant;
+
+fn stats(mut v: Vec<f64>) -> (f64, f64, f64) {
+    v.sort_by(f64::total_cmp);
+    let pick = |q: f64| {
+        v.get(((v.len() as f64 - 1.0) * q).round() as usize)
+            .copied()
+            .unwrap_or(0.0)
+    };
+    (
+        pick(0.5),
+        pick(0.95),
+        v.iter().sum::<f64>() / v.len().max(1) as f64,
+    )
+}
+
+#[test]
+#[ignore = "benchmark: run in release with --ignored --nocapture"]
+fn frame_time_with_a_five_year_trend_and_a_fleet_of_1000_tanks() {
+    let t0 = Instant::now();
+    // A database file, as in the app: the fleet summary then reads through its own connection.
+    let dir = std::env::temp_dir().join(format!("cryoledger-frame-time-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).expect("temp dir");
+    let path = dir.join("bench.db");
+    let _ = std::fs::remove_file(&path);
+    let mut s = store::Store::open(&path).expect("store");
+    let end = app::fmt::now_ms() / DAY_MS * DAY_MS - DAY_MS + 7 * 3_600_000;
+    let big = s
+        .add_tank(&tank_fields(
+            "Aldergate Works",
+            "AW-N2-5Y",
+            "nitrogen",
+            "vertical",
+        ))
+        .expect("tank");
+    add_history(&mut s, big, end, 5 * 365 + 1, "AW", 0);
+    for n in 0..999 {
+        let site = format!("Bench Site {:03}", n / 10);
+        let name = format!("BX-{n:04}");
+        let id = s
+            .add_tank(&tank_fields(&site, &name, "nitrogen", "vertical"))
+            .expect("tank");
+        add_history(&mut s, id, end, 30, &format!("B{n:04}"), i64::from(n % 33));
+    }
+    println!("set-up (store writes): {:.1} s", t0.elapsed().as_secs_f64());
+
+    let t1 = Instant::now();
+    let mut app = CryoApp::new(s, path.clone());
+    let spawn_ms = t1.elapsed().as_secs_f64() * 1e3;
+    app.wait_for_background();
+    println!(
+        "fleet summary of 1000 tanks: {spawn_ms:.0} ms on the UI thread, {:.0} ms until the background summary (reads, contents, audit) was in",
+        t1.elapsed().as_secs_f64() * 1e3
+    );
+    assert_eq!(app.view().fleet.counts.0, 1000);
+
+    let mut opens = Vec::new();
+    for _ in 0..5 {
+        let t = Instant::now();
+        app.push(Action::SelectTank(big));
+        app.drain_actions();
+        opens.push(t.elapsed().as_secs_f64() * 1e3);
+    }
+    let page = app.view().tank.as_ref().expect("page");
+    // Daily readings plus one just before each fill.
+    let n = page.readings.len();
+    assert!(n > 5 * 365, "{n} readings");
+    let (open_med, open_p95, _) = stats(opens.clone());
+    assert!(open_med < 100.0, "opening took {open_med:.1} ms");
+    println!(
+        "open the 5-year tank page ({n} readings, thermal history, GUM uncertainty): median {open_med:.1} ms, max of 5 {open_p95:.1} ms"
+    );
+
+    app.push(Action::ShowTab(TankTab::Trend));
+    app.push(Action::SetTrendPeriod(None));
+    app.drain_actions();
+    let mut h = Harness::builder()
+        .with_size(app::egui::vec2(1360.0, 860.0))
+        .build_eframe(move |_cc| app);
+    for _ in 0..10 {
+        h.step();
+    }
+    let (mut own, mut step, mut total) = (Vec::new(), Vec::new(), Vec::new());
+    for i in 0..300 {
+        // Move the pointer over the plot so hover labels are computed too.
+        h.hover_at(app::egui::pos2(500.0 + (i % 50) as f32 * 12.0, 350.0));
+        let t = Instant::now();
+        h.step();
+        let stepped = t.elapsed().as_secs_f64() * 1e3;
+        // What eframe does next on the CPU: turn the frame's shapes into triangles.
+        let shapes = h.output().shapes.clone();
+        let ppp = h.output().pixels_per_point;
+        let t = Instant::now();
+        let meshes = h.ctx.tessellate(shapes, ppp);
+        let tess = t.elapsed().as_secs_f64() * 1e3;
+        assert!(!meshes.is_empty());
+        step.push(stepped);
+        total.push(stepped + tess);
+        own.push(h.state().last_frame_ms());
+    }
+    let (o_med, o_p95, o_mean) = stats(own);
+    let (s_med, s_p95, s_mean) = stats(step);
+    let (t_med, t_p95, t_mean) = stats(total);
+    println!("trend (all 5 years) + 1000-tank navigator, 300 frames:");
+    println!("  app logic+ui CPU: median {o_med:.2} ms, p95 {o_p95:.2} ms, mean {o_mean:.2} ms");
+    println!("  whole harness step: median {s_med:.2} ms, p95 {s_p95:.2} ms, mean {s_mean:.2} ms");
+    println!("  step + tessellation: median {t_med:.2} ms, p95 {t_p95:.2} ms, mean {t_mean:.2} ms");
+    assert!(
+        t_med < 4.0,
+        "frame CPU {t_med:.2} ms is over the 4 ms target"
+    );
+
+    // The Readings table (1826 rows, virtualised) beside the navigator.
+    h.state_mut().push(Action::ShowTab(TankTab::Readings));
+    h.step();
+    let (mut own, mut total) = (Vec::new(), Vec::new());
+    for _ in 0..100 {
+        let t = Instant::now();
+        h.step();
+        let shapes = h.output().shapes.clone();
+        let ppp = h.output().pixels_per_point;
+        let _meshes = h.ctx.tessellate(shapes, ppp);
+        total.push(t.elapsed().as_secs_f64() * 1e3);
+        own.push(h.state().last_frame_ms());
+    }
+    let (r_med, r_p95, _) = stats(own);
+    let (rt_med, rt_p95, _) = stats(total);
+    println!("readings table ({n} rows, virtualised) + navigator:");
+    println!("  app logic+ui CPU: median {r_med:.2} ms, p95 {r_p95:.2} ms");
+    println!("  step + tessellation: median {rt_med:.2} ms, p95 {rt_p95:.2} ms");
+    drop(h);
+    let _ = std::fs::remove_dir_all(&dir);
+}

@@ -1,0 +1,412 @@
+//! Headless tests that drive the real app with egui_kittest: select a tank, enter readings (valid and
+//! invalid), add a delivery, switch units, edit a reading and find the old value in its history, and
+//! create a tank in Tank setup. Assertions read the store and the labels shown.
+
+#![allow(clippy::expect_used)] // helpers of tests: a failure to set up is a test failure
+
+mod common;
+
+use app::CryoApp;
+use app::egui::{self, Key, Modifiers, Role};
+use app::fmt::UnitSystem;
+use app::view::{Attention, Page, TankTab};
+use egui_kittest::{Harness, kittest::Queryable};
+use std::path::PathBuf;
+
+fn harness(store: store::Store) -> Harness<'static, CryoApp> {
+    let mut app = CryoApp::new(store, PathBuf::from(":memory:"));
+    app.wait_for_background();
+    let mut h = Harness::builder()
+        .with_size(egui::vec2(1360.0, 860.0))
+        .build_eframe(move |_cc| app);
+    h.run();
+    h
+}
+
+fn tank_id(h: &Harness<'_, CryoApp>, name: &str) -> i64 {
+    h.state().store().tank_by_name(name).expect("tank").id
+}
+
+fn select(h: &mut Harness<'_, CryoApp>, name: &str) {
+    h.get_by_label(name).click();
+    h.run();
+}
+
+fn tab(h: &mut Harness<'_, CryoApp>, t: &str) {
+    h.get_by_role_and_label(Role::Button, t).click();
+    h.run();
+}
+
+/// Replace the text of the field labelled `label`.
+fn type_into(h: &mut Harness<'_, CryoApp>, label: &str, text: &str) {
+    h.get_by_role_and_label(Role::TextInput, label).focus();
+    h.run();
+    h.key_press_modifiers(Modifiers::COMMAND, Key::A);
+    h.run();
+    h.get_by_role_and_label(Role::TextInput, label)
+        .type_text(text);
+    h.run();
+}
+
+#[test]
+fn clicking_a_tank_in_the_navigator_opens_its_page() {
+    let mut h = harness(common::small_fleet(10));
+    select(&mut h, "LF-AR-1");
+    let view = h.state().view();
+    let t = view.tank.as_ref().expect("a tank is selected");
+    assert_eq!(t.name, "LF-AR-1");
+    assert_eq!(t.readings.len(), 10);
+    assert_eq!(view.page, Page::Tank);
+    // The Now tab shows the big figures.
+    assert!(h.query_by_label("Total mass").is_some());
+    assert!(h.query_by_label("Safe-fill limit").is_some());
+}
+
+#[test]
+fn a_valid_reading_is_saved_shown_first_and_changes_the_contents() {
+    let mut h = harness(common::small_fleet(5));
+    select(&mut h, "LF-N2-1");
+    let id = tank_id(&h, "LF-N2-1");
+    let before_mass = h
+        .state()
+        .view()
+        .tank
+        .as_ref()
+        .and_then(|t| t.now.latest.clone())
+        .and_then(|r| r.contents.ok())
+        .expect("contents")
+        .mass_kg
+        .value;
+    tab(&mut h, "Readings");
+    type_into(&mut h, "DP", "30");
+    type_into(&mut h, "Tank pressure", "11.2");
+    // The preview shows what the reading implies before it is saved.
+    assert!(h.query_by_label("This reading means").is_some());
+    assert!(
+        h.state().view().reading_check.ok,
+        "{:?}",
+        h.state().view().reading_check
+    );
+    h.get_by_label("Save reading").click();
+    h.run();
+    let stored = h.state().store().readings(id, None).expect("readings");
+    assert_eq!(stored.len(), 6);
+    let newest = stored.last().expect("newest");
+    assert_eq!(newest.input.dp.value, 30.0);
+    // Shown first in the table, and the Now figures follow it.
+    assert!(
+        h.query_by_label(&app::fmt::date_time(newest.input.time.ms))
+            .is_some()
+    );
+    let t = h.state().view().tank.as_ref().expect("tank");
+    assert_eq!(t.readings.first().map(|r| r.id), Some(newest.id));
+    let after_mass = t
+        .now
+        .latest
+        .as_ref()
+        .and_then(|r| r.contents.clone().ok())
+        .expect("contents")
+        .mass_kg
+        .value;
+    assert!(
+        after_mass < before_mass,
+        "30 inH2O is below every earlier reading: {after_mass} vs {before_mass}"
+    );
+}
+
+#[test]
+fn an_invalid_dp_shows_a_message_at_the_field_and_nothing_is_saved() {
+    let mut h = harness(common::small_fleet(3));
+    select(&mut h, "LF-N2-1");
+    let id = tank_id(&h, "LF-N2-1");
+    tab(&mut h, "Readings");
+    type_into(&mut h, "DP", "abc");
+    type_into(&mut h, "Tank pressure", "11");
+    assert!(h.query_by_label_contains("is not a number").is_some());
+    assert!(!h.state().view().reading_check.ok);
+    h.get_by_label("Save reading").click();
+    h.run();
+    assert_eq!(
+        h.state()
+            .store()
+            .readings(id, None)
+            .expect("readings")
+            .len(),
+        3
+    );
+    // A DP beyond a full tank is refused too, with the full-tank figure in the message.
+    type_into(&mut h, "DP", "2000");
+    assert!(h.query_by_label_contains("more than a full tank").is_some());
+    h.get_by_label("Save reading").click();
+    h.run();
+    assert_eq!(
+        h.state()
+            .store()
+            .readings(id, None)
+            .expect("readings")
+            .len(),
+        3
+    );
+}
+
+#[test]
+fn a_delivery_is_added_and_listed() {
+    let mut h = harness(common::small_fleet(3));
+    select(&mut h, "CR-O2-1");
+    let id = tank_id(&h, "CR-O2-1");
+    let before = h
+        .state()
+        .store()
+        .deliveries(Some(id))
+        .expect("deliveries")
+        .len();
+    tab(&mut h, "Deliveries");
+    type_into(&mut h, "Ticket", "T-77001");
+    type_into(&mut h, "Quantity", "3.2 t");
+    type_into(&mut h, "Carrier", "Fernhill Haulage");
+    type_into(&mut h, "Vehicle", "FH-9");
+    assert!(
+        h.state().view().delivery_check.ok,
+        "{:?}",
+        h.state().view().delivery_check
+    );
+    h.get_by_label("Save delivery").click();
+    h.run();
+    let all = h.state().store().deliveries(Some(id)).expect("deliveries");
+    assert_eq!(all.len(), before + 1);
+    let d = all
+        .iter()
+        .find(|d| d.input.ticket == "T-77001")
+        .expect("saved");
+    assert_eq!(d.input.quantity.value, 3.2);
+    assert!(h.query_by_label("T-77001").is_some());
+}
+
+#[test]
+fn switching_units_changes_the_figures_and_is_remembered() {
+    let mut h = harness(common::small_fleet(3));
+    select(&mut h, "LF-N2-1");
+    assert!(h.query_by_label("kg").is_some());
+    h.get_by_label("US customary").click();
+    h.run();
+    assert_eq!(h.state().view().units, UnitSystem::Us);
+    assert_eq!(h.state().settings().units, UnitSystem::Us);
+    assert!(h.query_by_label("lb").is_some());
+    assert!(h.query_by_label("scf").is_some());
+    assert!(h.query_by_label("kg").is_none());
+    tab(&mut h, "Trend");
+    assert_eq!(h.state().view().tab, TankTab::Trend);
+    assert!(
+        h.state()
+            .view()
+            .tank
+            .as_ref()
+            .expect("tank")
+            .trend
+            .y_label
+            .contains("lb")
+    );
+}
+
+#[test]
+fn an_edited_reading_keeps_its_old_value_in_the_history() {
+    let mut h = harness(common::small_fleet(4));
+    select(&mut h, "LF-N2-1");
+    let id = tank_id(&h, "LF-N2-1");
+    tab(&mut h, "Readings");
+    let first = h.state().store().readings(id, None).expect("readings")[0].clone();
+    let old_dp = first.input.dp.value;
+    h.get_by_label(&app::fmt::date_time(first.input.time.ms))
+        .click();
+    h.run();
+    assert_eq!(h.state().view().reading_form.editing, Some(first.id));
+    type_into(&mut h, "DP", "99.5");
+    // No reason, no save.
+    assert!(!h.state().view().reading_check.ok);
+    type_into(
+        &mut h,
+        "Reason for the change",
+        "transcription error on the round sheet",
+    );
+    h.get_by_label("Save change").click();
+    h.run();
+    let now = h.state().store().reading(first.id).expect("reading");
+    assert_eq!(now.input.dp.value, 99.5);
+    let revs = h
+        .state()
+        .store()
+        .revisions("readings", first.id)
+        .expect("revisions");
+    assert_eq!(revs.len(), 1);
+    assert_eq!(revs[0].reason, "transcription error on the round sheet");
+    // The history under the form shows the earlier DP.
+    let was = format!("DP {old_dp} inH2O");
+    assert!(
+        h.query_by_label_contains(&was).is_some(),
+        "history shows {was}"
+    );
+}
+
+#[test]
+fn tank_setup_creates_a_tank_with_a_live_full_tank_dp() {
+    let mut h = harness(common::small_fleet(2));
+    h.get_by_label("New tank").click();
+    h.run();
+    assert_eq!(h.state().view().page, Page::Setup);
+    type_into(&mut h, "Site name", "Millbrook Dairy");
+    type_into(&mut h, "Tank name", "MD-N2-1");
+    type_into(&mut h, "Relief set pressure", "17");
+    type_into(&mut h, "Reorder level (%)", "30");
+    assert!(
+        h.query_by_label_contains("Full tank, saturated at 1 atm")
+            .is_some()
+    );
+    h.get_by_label("Create tank").click();
+    h.run();
+    let t = h.state().store().tank_by_name("MD-N2-1").expect("created");
+    assert_eq!(t.spec.site, "Millbrook Dairy");
+    assert_eq!(t.spec.reorder_percent, Some(30.0));
+    // It is in the navigator.
+    assert!(h.query_by_label("MD-N2-1").is_some());
+}
+
+#[test]
+fn the_navigator_search_filters_tanks() {
+    let mut h = harness(common::small_fleet(2));
+    type_into(&mut h, "Search fleet", "argon");
+    assert!(h.query_by_label("LF-AR-1").is_some());
+    assert!(h.query_by_label("LF-N2-1").is_none());
+    assert!(h.query_by_label("CR-O2-1").is_none());
+}
+
+#[test]
+fn an_edited_delivery_keeps_its_history_and_a_short_fill_marks_the_tank() {
+    let mut h = harness(common::small_fleet(40));
+    select(&mut h, "LF-N2-1");
+    let id = tank_id(&h, "LF-N2-1");
+    assert!(
+        !h.state()
+            .view()
+            .tank
+            .as_ref()
+            .expect("tank")
+            .attention
+            .iter()
+            .any(|a| matches!(a, Attention::OpenFinding(_))),
+        "the honest fixture has no open finding"
+    );
+    tab(&mut h, "Deliveries");
+    let d = h
+        .state()
+        .store()
+        .deliveries(Some(id))
+        .expect("deliveries")
+        .last()
+        .cloned()
+        .expect("a fill in 40 days");
+    let billed = d.input.quantity.value;
+    h.get_by_label(&d.input.ticket).click();
+    h.run();
+    assert_eq!(h.state().view().delivery_form.editing, Some(d.id));
+    // Billed three times what the tank gained: the audit must call this fill short.
+    type_into(&mut h, "Quantity", &format!("{}", billed * 3.0));
+    type_into(
+        &mut h,
+        "Reason for the change",
+        "ticket re-keyed from the carrier's copy",
+    );
+    h.get_by_label("Save change").click();
+    h.run();
+    let now = h.state().store().delivery(d.id).expect("delivery");
+    assert_eq!(now.input.quantity.value, billed * 3.0);
+    let revs = h
+        .state()
+        .store()
+        .revisions("deliveries", d.id)
+        .expect("revisions");
+    assert_eq!(revs.len(), 1);
+    assert!(
+        h.query_by_label_contains(&format!("quantity {billed} kg"))
+            .is_some(),
+        "history shows the old quantity"
+    );
+    let t = h.state().view().tank.as_ref().expect("tank");
+    assert!(
+        t.attention
+            .iter()
+            .any(|a| matches!(a, Attention::OpenFinding(f) if f.contains(&d.input.ticket))),
+        "{:?}",
+        t.attention
+    );
+    let line = h
+        .state()
+        .view()
+        .fleet
+        .sites
+        .iter()
+        .flat_map(|s| &s.tanks)
+        .find(|t| t.id == id)
+        .expect("line");
+    assert!(
+        line.attention
+            .iter()
+            .any(|a| matches!(a, Attention::OpenFinding(_)))
+    );
+}
+
+#[test]
+fn a_deleted_reading_leaves_the_log_and_keeps_its_history() {
+    let mut h = harness(common::small_fleet(4));
+    select(&mut h, "LF-N2-1");
+    let id = tank_id(&h, "LF-N2-1");
+    tab(&mut h, "Readings");
+    let last = h
+        .state()
+        .store()
+        .readings(id, None)
+        .expect("readings")
+        .last()
+        .cloned()
+        .expect("reading");
+    h.get_by_label(&app::fmt::date_time(last.input.time.ms))
+        .click();
+    h.run();
+    // Without a reason the delete button does nothing.
+    h.get_by_label("Delete reading").click();
+    h.run();
+    assert_eq!(
+        h.state()
+            .store()
+            .readings(id, None)
+            .expect("readings")
+            .len(),
+        4
+    );
+    type_into(
+        &mut h,
+        "Reason for the change",
+        "duplicate of the telemetry reading",
+    );
+    h.get_by_label("Delete reading").click();
+    h.run();
+    assert_eq!(
+        h.state()
+            .store()
+            .readings(id, None)
+            .expect("readings")
+            .len(),
+        3
+    );
+    let revs = h
+        .state()
+        .store()
+        .revisions("readings", last.id)
+        .expect("revisions");
+    assert_eq!(revs.len(), 1);
+    assert_eq!(revs[0].action, "delete");
+    assert!(
+        h.query_by_label(&app::fmt::date_time(last.input.time.ms))
+            .is_none()
+    );
+    assert!(h.query_by_label_contains("Reading deleted").is_some());
+}

@@ -1,0 +1,37 @@
+#!/usr/bin/env bash
+# Regenerates the README screenshots (assets/screenshots/*.png) from the real app under a private Xvfb.
+# Builds the binary (release, so the status bar's frame time is representative; PROFILE=debug for a
+# quicker build), writes a fictional demo database with the app's demo_db example, then opens each page
+# through CRYOLEDGER_OPEN and captures the window with the shared `shoot` tool.
+# Usage: tools/screenshots.sh [SHOOT]   (SHOOT: path of the shoot tool; default ../shared/tools/shoot)
+set -euo pipefail
+cd "$(dirname "$0")/.."
+shoot=${1:-${SHOOT:-../shared/tools/shoot}}
+export CARGO_TARGET_DIR=${CARGO_TARGET_DIR:-target}
+work=$(mktemp -d)
+trap 'rm -rf "$work"' EXIT
+db=$work/demo.db
+profile=${PROFILE:-release}
+if [[ $profile == release ]]; then cargo build -q --release -p cryoledger; else cargo build -q -p cryoledger; fi
+cargo run -q -p app --example demo_db -- "$db"
+bin=$CARGO_TARGET_DIR/$profile/cryoledger
+# Keep eframe's remembered settings out of the user's data directory.
+export XDG_DATA_HOME=$work/data XDG_CONFIG_HOME=$work/config
+out=assets/screenshots
+mkdir -p "$out"
+shot() { # NAME PAGE UNITS (retried: a private X server occasionally fails to start)
+  for _ in 1 2 3; do
+    CRYOLEDGER_OPEN=$2 CRYOLEDGER_UNITS=$3 "$shoot" "$out/$1.png" --wait 4 --size 1360x860 -- "$bin" --db "$db" && return 0
+    sleep 1
+  done
+  return 1
+}
+shot now tank:LF-N2-1:now si
+shot now-horizontal-us tank:LF-AR-1:now us
+shot now-open-finding tank:SW-AR-1:now si
+shot readings tank:LF-N2-1:readings:latest si
+shot deliveries tank:LF-N2-1:deliveries si
+shot trend tank:LF-N2-1:trend si
+shot trend-oxygen-us tank:CR-O2-1:trend us
+shot setup setup:LF-AR-1 si
+shot help help si
