@@ -40,7 +40,7 @@ def write_inputs(folder, rows, tanks):
             for i in range(per_tank):
                 s = t0 + i * 3600
                 stamp = time.strftime("%Y-%m-%dT%H:%M:%SZ", time.gmtime(s))
-                w.writerow([name, stamp, f"{60 + (i * 7919 % 2400) / 10:.1f}", "inH2O", f"{10 + (i % 50) / 10:.1f}", "barg"])
+                w.writerow([name, stamp, f"{40 + (i * 7919 % 1600) / 10:.1f}", "inH2O", f"{10 + (i % 50) / 10:.1f}", "barg"])
     return tanks_csv, readings_csv, per_tank * tanks
 
 

@@ -37,7 +37,8 @@ pub fn import(a: ImportArgs) -> Result<ExitCode> {
         readings: a.readings,
         deliveries: a.deliveries,
     };
-    let check = ledger::check_reading_against_tank;
+    let checker = ledger::ReadingChecker::new();
+    let check = |t: &store::Tank, r: &store::ReadingInput| checker.check(t, r);
     let opts = ImportOptions {
         max_errors: a.max_errors,
         reading_check: Some(&check),

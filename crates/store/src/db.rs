@@ -413,7 +413,7 @@ impl Store {
         // WAL with NORMAL keeps every commit atomic across crashes and kills (SQLite docs, "WAL mode").
         conn.pragma_update(None, "synchronous", "NORMAL")?;
         conn.pragma_update(None, "foreign_keys", "ON")?;
-        conn.pragma_update(None, "cache_size", -65_536)?; // 64 MiB page cache
+        conn.pragma_update(None, "cache_size", -131_072)?; // up to 128 MiB page cache: large imports spill less
         conn.busy_timeout(std::time::Duration::from_secs(5))?;
         migrations().to_latest(&mut conn)?;
         Ok(Self { conn })
@@ -734,12 +734,14 @@ impl Store {
             Some(id) => {
                 let sql = format!("{base} AND d.tank_id = ?1 ORDER BY d.start_ms, d.ticket");
                 let mut st = self.conn.prepare_cached(&sql)?;
-                st.query_map([id], delivery_from_row)?.collect::<Result<_, _>>()?
+                st.query_map([id], delivery_from_row)?
+                    .collect::<Result<_, _>>()?
             }
             None => {
                 let sql = format!("{base} ORDER BY d.start_ms, d.ticket");
                 let mut st = self.conn.prepare_cached(&sql)?;
-                st.query_map([], delivery_from_row)?.collect::<Result<_, _>>()?
+                st.query_map([], delivery_from_row)?
+                    .collect::<Result<_, _>>()?
             }
         };
         Ok(rows)

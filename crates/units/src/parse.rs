@@ -101,6 +101,21 @@ fn key(unit: &str) -> Key {
         len: 0,
         overflow: false,
     };
+    if unit.is_ascii() {
+        for &b in unit.as_bytes() {
+            if b.is_ascii_whitespace() || b == b'(' || b == b')' {
+                continue;
+            }
+            match k.buf.get_mut(k.len) {
+                Some(dst) => {
+                    *dst = b.to_ascii_lowercase();
+                    k.len += 1;
+                }
+                None => k.overflow = true,
+            }
+        }
+        return k;
+    }
     let mut tmp = [0u8; 4];
     for c in unit.chars() {
         if c.is_whitespace() || c == '°' || c == '(' || c == ')' {
