@@ -170,7 +170,7 @@ impl CryoApp {
         egui::Panel::bottom("status_bar").show(ui, |ui| panels::top::status_ui(ui, view, &mut out));
         egui::Panel::left("fleet")
             .resizable(true)
-            .default_size(300.0)
+            .default_size(330.0)
             .min_size(240.0)
             .show(ui, |ui| panels::fleet::fleet_ui(ui, view, &mut out));
         egui::CentralPanel::default().show(ui, |ui| match view.page {

@@ -241,7 +241,7 @@ const DEMO_SITES: [&str; 12] = [
     "Elmstead Food Freezing",
     "Foxglove Research Campus",
     "Gannet Bay Fish Processing",
-    "Heathrow Lane Laser Cutting",
+    "Hollowell Lane Laser Cutting",
     "Inchmoor Glassworks",
     "Juniper Court Clinic",
     "Kestrel Park Semiconductor",
