@@ -201,6 +201,7 @@ impl Fluid {
         const MAX_ITER: usize = 200;
         let mut rho = start;
         let mut residual = f64::NAN;
+        let mut last_step = f64::INFINITY;
         for _ in 0..MAX_ITER {
             let (p_now, dp) = self.p_dpdrho(iso, t, rho);
             let f = p_now - p;
@@ -218,6 +219,16 @@ impl Fluid {
             if dp > 0.0 && step.abs() <= 1e-14 * rho {
                 return Ok(rho + step);
             }
+            // Converging quadratically (this step a thousandth of the last or less) and small: the error
+            // left after this step is of the order of step²/last step, far below 1e-12, so take it and stop
+            // instead of paying one more evaluation to confirm.
+            if dp > 0.0 && step.abs() <= 1e-7 * rho && step.abs() <= 1e-3 * last_step.abs() {
+                let next = rho + step;
+                if next > lo && next < hi {
+                    return Ok(next);
+                }
+            }
+            last_step = step;
             let mut next = rho + step;
             let long_jump = !(next.is_finite() && next < 1.5 * rho);
             if !hi.is_finite() && long_jump {
