@@ -84,7 +84,7 @@ pub(crate) fn to_monomial(c: &[f64; LEN]) -> [f64; LEN] {
 
 /// Estrin's scheme for `M` polynomials of degree 16 sharing one x: a short dependency chain (4 levels),
 /// unlike Horner's or Clenshaw's 16, which is what bounds the speed of a fast-curve lookup.
-#[inline]
+#[inline(always)]
 pub(crate) fn estrin_many<const M: usize>(a: &[[f64; M]; LEN], x: f64) -> [f64; M] {
     let x2 = x * x;
     let x4 = x2 * x2;
@@ -102,6 +102,29 @@ pub(crate) fn estrin_many<const M: usize>(a: &[[f64; M]; LEN], x: f64) -> [f64; 
         out[m] = r0 + r1 * x8 + a[16][m] * x16;
     }
     out
+}
+
+/// The map of [lo, hi] onto [-1, 1] as a multiply and a subtract (no division on the lookup path).
+#[derive(Debug, Clone, Copy)]
+pub(crate) struct UnitMap {
+    scale: f64,
+    offset: f64,
+}
+
+impl UnitMap {
+    /// The map of [lo, hi] onto [-1, 1].
+    pub(crate) fn new(lo: f64, hi: f64) -> Self {
+        Self {
+            scale: 2.0 / (hi - lo),
+            offset: (lo + hi) / (hi - lo),
+        }
+    }
+
+    /// `v` mapped onto [-1, 1] (to within rounding of [`to_unit`]).
+    #[inline]
+    pub(crate) fn apply(self, v: f64) -> f64 {
+        v * self.scale - self.offset
+    }
 }
 
 /// Maps `v` in [lo, hi] to [-1, 1].

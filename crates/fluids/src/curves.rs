@@ -53,6 +53,8 @@ struct Piece {
     /// bounds in the expansion's own variable
     lo: f64,
     hi: f64,
+    /// [lo, hi] onto [-1, 1]
+    map: chebyshev::UnitMap,
     c: [[f64; N_FUN]; LEN],
 }
 
@@ -60,6 +62,8 @@ struct Piece {
 struct InversePiece {
     lo: f64,
     hi: f64,
+    /// [lo, hi] onto [-1, 1]
+    map: chebyshev::UnitMap,
     c: [[f64; 1]; LEN],
 }
 
@@ -175,6 +179,7 @@ impl SatCurves {
                     var,
                     lo,
                     hi,
+                    map: chebyshev::UnitMap::new(lo, hi),
                     c: monomial(&c),
                 });
             } else {
@@ -205,6 +210,7 @@ impl SatCurves {
             var: Var::Critical,
             lo: 0.0,
             hi: x_last,
+            map: chebyshev::UnitMap::new(0.0, x_last),
             c,
         });
         let upper = |p: &Piece| match p.var {
@@ -267,6 +273,7 @@ impl SatCurves {
                 inverse.push(InversePiece {
                     lo,
                     hi,
+                    map: chebyshev::UnitMap::new(lo, hi),
                     c: chebyshev::to_monomial(&c).map(|v| [v]),
                 });
             } else {
@@ -292,10 +299,10 @@ impl SatCurves {
             return [f64::NAN; N_FUN];
         };
         match p.var {
-            Var::T => chebyshev::estrin_many(&p.c, chebyshev::to_unit(t, p.lo, p.hi)),
+            Var::T => chebyshev::estrin_many(&p.c, p.map.apply(t)),
             Var::SqrtFromCritical => {
                 let x = (self.tc - t).max(0.0).sqrt();
-                chebyshev::estrin_many(&p.c, chebyshev::to_unit(x, p.lo, p.hi))
+                chebyshev::estrin_many(&p.c, p.map.apply(x))
             }
             Var::Critical => {
                 let x = ((self.tc - t).max(0.0).sqrt() / p.hi).min(1.0);
@@ -319,7 +326,7 @@ impl SatCurves {
         let Some(p) = self.inverse.get(i) else {
             return f64::NAN;
         };
-        chebyshev::estrin_many(&p.c, chebyshev::to_unit(ln_p, p.lo, p.hi))[0]
+        chebyshev::estrin_many(&p.c, p.map.apply(ln_p))[0]
     }
 
     /// The saturation state at T (validated by the caller).
