@@ -120,17 +120,11 @@ impl UnitMap {
         }
     }
 
-    /// `v` mapped onto [-1, 1] (to within rounding of [`to_unit`]).
+    /// `v` mapped onto [-1, 1]: (2 v - lo - hi) / (hi - lo), to within rounding.
     #[inline]
     pub(crate) fn apply(self, v: f64) -> f64 {
         v * self.scale - self.offset
     }
-}
-
-/// Maps `v` in [lo, hi] to [-1, 1].
-#[inline]
-pub(crate) fn to_unit(v: f64, lo: f64, hi: f64) -> f64 {
-    (2.0 * v - (lo + hi)) / (hi - lo)
 }
 
 /// Maps `u` in [-1, 1] to [lo, hi].

@@ -60,7 +60,6 @@ struct Piece {
 
 #[derive(Debug, Clone)]
 struct InversePiece {
-    lo: f64,
     hi: f64,
     /// [lo, hi] onto [-1, 1]
     map: chebyshev::UnitMap,
@@ -271,7 +270,6 @@ impl SatCurves {
             let tail = c[LEN - 1].abs().max(c[LEN - 2].abs());
             if tail <= 0.1 * TOL * tc || depth >= MAX_DEPTH {
                 inverse.push(InversePiece {
-                    lo,
                     hi,
                     map: chebyshev::UnitMap::new(lo, hi),
                     c: chebyshev::to_monomial(&c).map(|v| [v]),
