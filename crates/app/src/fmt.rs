@@ -223,26 +223,13 @@ pub fn date(ms: i64) -> String {
 
 /// Milliseconds since the epoch as `YYYY-MM-DDTHH:MM:SSZ`, as the entry forms expect.
 pub fn rfc3339(ms: i64) -> String {
-    let (y, m, d, hh, mm) = civil(ms);
-    let ss = (ms.div_euclid(1000)).rem_euclid(60);
-    format!("{y:04}-{m:02}-{d:02}T{hh:02}:{mm:02}:{ss:02}Z")
+    units::rfc3339_from_ms(ms)
 }
 
-/// Year, month, day, hour, minute (UTC) of an instant, by the "civil from days" algorithm.
+/// Year, month, day, hour, minute (UTC) of an instant.
 fn civil(ms: i64) -> (i64, i64, i64, i64, i64) {
-    let s = ms.div_euclid(1000);
-    let days = s.div_euclid(86_400);
-    let sod = s.rem_euclid(86_400);
-    let z = days + 719_468;
-    let era = z.div_euclid(146_097);
-    let doe = z - era * 146_097;
-    let yoe = (doe - doe / 1460 + doe / 36_524 - doe / 146_096) / 365;
-    let doy = doe - (365 * yoe + yoe / 4 - yoe / 100);
-    let mp = (5 * doy + 2) / 153;
-    let d = doy - (153 * mp + 2) / 5 + 1;
-    let m = if mp < 10 { mp + 3 } else { mp - 9 };
-    let y = yoe + era * 400 + i64::from(m <= 2);
-    (y, m, d, sod / 3600, (sod / 60) % 60)
+    let c = units::civil_from_ms(ms);
+    (c.year, c.month, c.day, c.hour, c.minute)
 }
 
 /// An age in words: `5 h`, `3 d`, `2 min`.

@@ -12,15 +12,7 @@
 use simulate::{Fault, FleetConfig, Naming, simulate};
 use std::io::Write;
 
-fn days_from_civil(y: i64, m: i64, d: i64) -> i64 {
-    let y = if m <= 2 { y - 1 } else { y };
-    let era = y.div_euclid(400);
-    let yoe = y - era * 400;
-    let mp = (m + 9) % 12;
-    let doy = (153 * mp + 2) / 5 + d - 1;
-    let doe = yoe * 365 + yoe / 4 - yoe / 100 + doy;
-    era * 146_097 + doe - 719_468
-}
+use units::days_from_civil;
 
 fn pair(s: &str) -> (f64, f64) {
     let (a, b) = s.split_once(',').expect("two numbers separated by a comma");

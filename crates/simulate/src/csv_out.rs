@@ -6,27 +6,7 @@ use units::Unit as _;
 
 use crate::fleet::Fleet;
 
-/// RFC 3339 UTC text of an instant in ms (whole seconds), by the "civil from days" algorithm.
-pub fn rfc3339_from_ms(ms: i64) -> String {
-    let secs = ms.div_euclid(1000);
-    let days = secs.div_euclid(86_400);
-    let sod = secs.rem_euclid(86_400);
-    let z = days + 719_468;
-    let era = z.div_euclid(146_097);
-    let doe = z - era * 146_097;
-    let yoe = (doe - doe / 1460 + doe / 36_524 - doe / 146_096) / 365;
-    let doy = doe - (365 * yoe + yoe / 4 - yoe / 100);
-    let mp = (5 * doy + 2) / 153;
-    let d = doy - (153 * mp + 2) / 5 + 1;
-    let m = if mp < 10 { mp + 3 } else { mp - 9 };
-    let y = yoe + era * 400 + i64::from(m <= 2);
-    format!(
-        "{y:04}-{m:02}-{d:02}T{:02}:{:02}:{:02}Z",
-        sod / 3600,
-        sod % 3600 / 60,
-        sod % 60
-    )
-}
+pub use units::rfc3339_from_ms;
 
 fn quote(s: &str) -> String {
     if s.contains([',', '"', '\n']) {

@@ -94,7 +94,7 @@ impl Stamp {
     /// Fractions beyond milliseconds are truncated.
     pub fn parse(text: &str) -> Result<Self, String> {
         let t = text.trim();
-        let ms = parse_rfc3339_ms(t)
+        let ms = units::ms_from_rfc3339(t)
             .ok_or_else(|| format!("'{t}' is not an RFC 3339 time such as 2026-03-01T08:00:00Z"))?;
         Ok(Self {
             text: t.to_owned(),
@@ -110,87 +110,6 @@ impl Stamp {
             .unwrap_or_else(|| ms.to_string());
         Self { text, ms }
     }
-}
-
-/// Milliseconds since 1970-01-01 UTC of a strict RFC 3339 date-time, or None. Written out (rather than
-/// through a general date library) because importers parse one per row.
-fn parse_rfc3339_ms(t: &str) -> Option<i64> {
-    let b = t.as_bytes();
-    let num = |from: usize, len: usize| -> Option<i64> {
-        let digits = b.get(from..from + len)?;
-        digits.iter().try_fold(0i64, |acc, &d| {
-            d.is_ascii_digit().then(|| acc * 10 + i64::from(d - b'0'))
-        })
-    };
-    let at = |i: usize, c: u8| b.get(i) == Some(&c);
-    if !(at(4, b'-')
-        && at(7, b'-')
-        && matches!(b.get(10), Some(b'T' | b't' | b' '))
-        && at(13, b':')
-        && at(16, b':'))
-    {
-        return None;
-    }
-    let (year, month, day) = (num(0, 4)?, num(5, 2)?, num(8, 2)?);
-    let (hour, minute, second) = (num(11, 2)?, num(14, 2)?, num(17, 2)?);
-    let leap = (year % 4 == 0 && year % 100 != 0) || year % 400 == 0;
-    let month_days = [
-        31,
-        if leap { 29 } else { 28 },
-        31,
-        30,
-        31,
-        30,
-        31,
-        31,
-        30,
-        31,
-        30,
-        31,
-    ];
-    let max_day = *month_days.get(usize::try_from(month - 1).ok()?)?;
-    if !(1..=max_day).contains(&day) || hour > 23 || minute > 59 || second > 59 {
-        return None;
-    }
-    let mut i = 19;
-    let mut millis = 0i64;
-    if at(i, b'.') {
-        i += 1;
-        let start = i;
-        while b.get(i).is_some_and(u8::is_ascii_digit) {
-            if i - start < 3 {
-                millis = millis * 10 + i64::from(b[i] - b'0');
-            }
-            i += 1;
-        }
-        if i == start {
-            return None;
-        }
-        for _ in (i - start)..3 {
-            millis *= 10;
-        }
-    }
-    let offset_s = match b.get(i) {
-        Some(b'Z' | b'z') if b.len() == i + 1 => 0,
-        Some(&sign @ (b'+' | b'-')) if b.len() == i + 6 && at(i + 3, b':') => {
-            let (oh, om) = (num(i + 1, 2)?, num(i + 4, 2)?);
-            if oh > 23 || om > 59 {
-                return None;
-            }
-            let s = oh * 3600 + om * 60;
-            if sign == b'+' { s } else { -s }
-        }
-        _ => return None,
-    };
-    // Days from 1970-01-01 of a proleptic Gregorian date (the "days from civil" algorithm).
-    let y = if month <= 2 { year - 1 } else { year };
-    let era = y.div_euclid(400);
-    let yoe = y - era * 400;
-    let mp = (month + 9) % 12;
-    let doy = (153 * mp + 2) / 5 + day - 1;
-    let doe = yoe * 365 + yoe / 4 - yoe / 100 + doy;
-    let days = era * 146_097 + doe - 719_468;
-    Some((days * 86_400 + hour * 3600 + minute * 60 + second - offset_s) * 1000 + millis)
 }
 
 /// A site: a customer's location holding one or more tanks.

@@ -284,3 +284,23 @@ fn icao_barometer() {
         2e-4
     ));
 }
+
+proptest! {
+    /// Writing an instant and reading it back returns it (whole seconds; round trip, common practice,
+    /// no source); the parser itself is checked against the `time` crate in the store's tests.
+    #[test]
+    fn instants_round_trip(secs in -5_000_000_000i64..10_000_000_000) {
+        let text = rfc3339_from_ms(secs * 1000);
+        prop_assert_eq!(ms_from_rfc3339(&text), Some(secs * 1000), "{}", text);
+    }
+}
+
+/// 2000-02-29T00:00:00Z is 951 782 400 s after the epoch (date -d 2000-02-29T00:00:00Z +%s).
+#[test]
+fn instant_of_a_leap_day() {
+    assert_eq!(days_from_civil(2000, 2, 29) * 86_400, 951_782_400);
+    assert_eq!(
+        rfc3339_from_ms(951_782_400_000 + 3_723_000),
+        "2000-02-29T01:02:03Z"
+    );
+}
