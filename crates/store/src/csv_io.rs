@@ -11,7 +11,7 @@
 use crate::StoreError;
 use crate::check::{DeliveryFields, FieldError, ReadingFields, TankFields, format_strapping};
 use crate::db::{
-    INSERT_READING, Store, insert_delivery, insert_reading_with, insert_tank, is_unique_violation,
+    INSERT_READING, Store, as_duplicate, insert_delivery, insert_reading_with, insert_tank,
     site_id_for, vehicle_ids,
 };
 use crate::records::{ReadingInput, Tank};
@@ -617,17 +617,14 @@ fn import_tanks(
                     },
                 );
             }
-            Err(e) if is_unique_violation(&e) => {
-                sink.push(
-                    &file,
-                    line,
-                    FieldError::new(
-                        "tank",
-                        format!("duplicate: tank '{}' already exists", spec.name),
-                    ),
-                );
-            }
-            Err(e) => sink.push(&file, line, FieldError::new("row", e.to_string())),
+            Err(e) => sink.push(
+                &file,
+                line,
+                as_duplicate(e, "tank", || {
+                    format!("duplicate: tank '{}' already exists", spec.name)
+                })
+                .unwrap_or_else(|e| FieldError::new("row", e.to_string())),
+            ),
         }
     })
 }
@@ -698,18 +695,17 @@ fn import_readings(
         }
         match insert_reading_with(&mut insert, tank.id, &r) {
             Ok(_) => summary.readings += 1,
-            Err(e) if is_unique_violation(&e) => sink.push(
+            Err(e) => sink.push(
                 &file,
                 line,
-                FieldError::new(
-                    "time",
+                as_duplicate(e, "time", || {
                     format!(
                         "duplicate: tank '{name}' already has a reading at {}",
                         r.time.text
-                    ),
-                ),
+                    )
+                })
+                .unwrap_or_else(|e| FieldError::new("row", e.to_string())),
             ),
-            Err(e) => sink.push(&file, line, FieldError::new("row", e.to_string())),
         }
     })
 }
@@ -761,15 +757,14 @@ fn import_deliveries(
         };
         match insert_delivery(conn, tank.id, cid, vid, &d) {
             Ok(_) => summary.deliveries += 1,
-            Err(e) if is_unique_violation(&e) => sink.push(
+            Err(e) => sink.push(
                 &file,
                 line,
-                FieldError::new(
-                    "ticket",
-                    format!("duplicate: ticket '{}' is already recorded", d.ticket),
-                ),
+                as_duplicate(e, "ticket", || {
+                    format!("duplicate: ticket '{}' is already recorded", d.ticket)
+                })
+                .unwrap_or_else(|e| FieldError::new("row", e.to_string())),
             ),
-            Err(e) => sink.push(&file, line, FieldError::new("row", e.to_string())),
         }
     })
 }

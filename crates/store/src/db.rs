@@ -153,9 +153,34 @@ fn delivery_from_row(r: &Row<'_>) -> rusqlite::Result<Delivery> {
 }
 
 /// Is this error a UNIQUE constraint failure?
-pub(crate) fn is_unique_violation(e: &rusqlite::Error) -> bool {
+fn is_unique_violation(e: &rusqlite::Error) -> bool {
     matches!(e, rusqlite::Error::SqliteFailure(f, _)
         if f.extended_code == rusqlite::ffi::SQLITE_CONSTRAINT_UNIQUE)
+}
+
+/// A failed write as the user's field error when it broke a uniqueness rule, else the database error.
+pub(crate) fn as_duplicate(
+    e: rusqlite::Error,
+    field: &str,
+    duplicate: impl FnOnce() -> String,
+) -> Result<FieldError, rusqlite::Error> {
+    if is_unique_violation(&e) {
+        Ok(FieldError::new(field, duplicate()))
+    } else {
+        Err(e)
+    }
+}
+
+/// [`as_duplicate`] for the single-record methods.
+fn duplicate_or_sql(
+    e: rusqlite::Error,
+    field: &str,
+    duplicate: impl FnOnce() -> String,
+) -> StoreError {
+    match as_duplicate(e, field, duplicate) {
+        Ok(f) => StoreError::Invalid(vec![f]),
+        Err(e) => e.into(),
+    }
 }
 
 // Row writers shared by the importer (inside its transaction) and the single-record methods.
@@ -552,14 +577,9 @@ impl Store {
         let site_id =
             site_id_for(&tx, &spec.site, None, None).map_err(|e| StoreError::Invalid(vec![e]))?;
         let id = insert_tank(&tx, site_id, spec).map_err(|e| {
-            if is_unique_violation(&e) {
-                StoreError::Invalid(vec![FieldError::new(
-                    "tank",
-                    format!("a tank named '{}' already exists", spec.name),
-                )])
-            } else {
-                e.into()
-            }
+            duplicate_or_sql(e, "tank", || {
+                format!("a tank named '{}' already exists", spec.name)
+            })
         })?;
         tx.commit()?;
         Ok(id)
@@ -610,14 +630,9 @@ impl Store {
     /// Add one reading to a tank.
     pub fn add_reading(&mut self, tank_id: i64, r: &ReadingInput) -> Result<i64, StoreError> {
         insert_reading(&self.conn, tank_id, r).map_err(|e| {
-            if is_unique_violation(&e) {
-                StoreError::Invalid(vec![FieldError::new(
-                    "time",
-                    format!("this tank already has a reading at {}", r.time.text),
-                )])
-            } else {
-                e.into()
-            }
+            duplicate_or_sql(e, "time", || {
+                format!("this tank already has a reading at {}", r.time.text)
+            })
         })
     }
 
@@ -677,16 +692,7 @@ impl Store {
                 new.note,
             ],
         )
-        .map_err(|e| {
-            if is_unique_violation(&e) {
-                StoreError::Invalid(vec![FieldError::new(
-                    "time",
-                    format!("this tank already has a reading at {}", new.time.text),
-                )])
-            } else {
-                e.into()
-            }
-        })?;
+        .map_err(|e| duplicate_or_sql(e, "time", || format!("this tank already has a reading at {}", new.time.text)))?;
         tx.commit()?;
         Ok(())
     }
@@ -710,14 +716,9 @@ impl Store {
         let (cid, vid) =
             vehicle_ids(&tx, &d.carrier, &d.vehicle).map_err(|e| StoreError::Invalid(vec![e]))?;
         let id = insert_delivery(&tx, tank_id, cid, vid, d).map_err(|e| {
-            if is_unique_violation(&e) {
-                StoreError::Invalid(vec![FieldError::new(
-                    "ticket",
-                    format!("ticket '{}' is already recorded", d.ticket),
-                )])
-            } else {
-                e.into()
-            }
+            duplicate_or_sql(e, "ticket", || {
+                format!("ticket '{}' is already recorded", d.ticket)
+            })
         })?;
         tx.commit()?;
         Ok(id)
