@@ -9,10 +9,14 @@ use crate::SolverOptions;
 use crate::chebyshev::{self, LEN};
 use crate::error::FluidError;
 use crate::fluid::Fluid;
+use crate::helmholtz::ResidualAtTau;
 use crate::saturation::{Saturation, bracketed_root};
 
 /// ln p, rho_L, ln rho_V, h_L, h_V
 const N_FUN: usize = 5;
+/// The liquid side for density solves: ln p, rho_L, dp/drho and d2p/drho2 of the saturated liquid (mass
+/// units). The slopes only start Newton's method, so their fit is not held to the tolerance.
+const N_LIQ: usize = 4;
 /// Relative size below which the two last coefficients count as converged.
 const TOL: f64 = 1e-12;
 /// Deepest bisection of a starting interval.
@@ -34,9 +38,9 @@ enum Var {
 }
 
 /// Per-function Chebyshev coefficients turned into monomial ones on [-1, 1].
-fn monomial(c: &[[f64; N_FUN]; LEN]) -> [[f64; N_FUN]; LEN] {
-    let mut out = [[0.0; N_FUN]; LEN];
-    for f in 0..N_FUN {
+fn monomial<const M: usize>(c: &[[f64; M]; LEN]) -> [[f64; M]; LEN] {
+    let mut out = [[0.0; M]; LEN];
+    for f in 0..M {
         let column: [f64; LEN] = std::array::from_fn(|k| c[k][f]);
         for (k, a) in chebyshev::to_monomial(&column).iter().enumerate() {
             out[k][f] = *a;
@@ -56,6 +60,8 @@ struct Piece {
     /// [lo, hi] onto [-1, 1]
     map: chebyshev::UnitMap,
     c: [[f64; N_FUN]; LEN],
+    /// the same for [`N_LIQ`] liquid functions
+    liq: [[f64; N_LIQ]; LEN],
 }
 
 #[derive(Debug, Clone)]
@@ -104,7 +110,7 @@ impl SatCurves {
         };
         let mut solutions = 0usize;
         let mut last: Option<crate::saturation::SatMolar> = None;
-        let mut values = |t: f64| -> Result<[f64; N_FUN], FluidError> {
+        let mut values = |t: f64| -> Result<([f64; N_FUN], [f64; 2]), FluidError> {
             solutions += 1;
             let s = match fluid.solve_saturation_molar(t, &opts) {
                 Ok(s) => s,
@@ -117,14 +123,18 @@ impl SatCurves {
                 },
             };
             last = Some(s);
+            let slopes = liquid_slopes(fluid, s.t, s.rho_l);
             let s = s.to_mass(m);
-            Ok([
-                s.pressure_pa.ln(),
-                s.liquid_density_kg_m3,
-                s.vapor_density_kg_m3.ln(),
-                s.liquid_enthalpy_j_kg,
-                s.vapor_enthalpy_j_kg,
-            ])
+            Ok((
+                [
+                    s.pressure_pa.ln(),
+                    s.liquid_density_kg_m3,
+                    s.vapor_density_kg_m3.ln(),
+                    s.liquid_enthalpy_j_kg,
+                    s.vapor_enthalpy_j_kg,
+                ],
+                slopes,
+            ))
         };
         let t_split = tc * (1.0 - SPLIT_FRACTION);
         let x_split = (tc - t_split).sqrt();
@@ -142,13 +152,14 @@ impl SatCurves {
         let mut pieces = Vec::new();
         while let Some((var, lo, hi, depth, parent_excess)) = todo.pop() {
             let mut table = [[0.0; N_FUN]; LEN];
-            for (row, u) in table.iter_mut().zip(nodes) {
+            let mut slopes = [[0.0; 2]; LEN];
+            for ((row, slope), u) in table.iter_mut().zip(&mut slopes).zip(nodes) {
                 let v = chebyshev::from_unit(u, lo, hi);
                 let t = match var {
                     Var::T => v,
                     Var::SqrtFromCritical | Var::Critical => tc - v * v,
                 };
-                *row = values(t.clamp(tt, tc))?;
+                (*row, *slope) = values(t.clamp(tt, tc))?;
             }
             // close to T_c the full solution itself is only good to ~2e-14 / (separation of the reduced
             // densities)^3 (an ill-conditioned Newton system): do not chase that noise
@@ -174,12 +185,27 @@ impl SatCurves {
             let stalled = excess > 0.1 * parent_excess;
             let converged = excess <= 1.0 || stalled;
             if converged || depth >= MAX_DEPTH {
+                let mut liq = [[0.0; N_LIQ]; LEN];
+                for (f, column) in [
+                    std::array::from_fn(|k| table[k][0]),
+                    std::array::from_fn(|k| table[k][1]),
+                    std::array::from_fn(|k| slopes[k][0]),
+                    std::array::from_fn(|k| slopes[k][1]),
+                ]
+                .iter()
+                .enumerate()
+                {
+                    for (k, ck) in chebyshev::coefficients(column).iter().enumerate() {
+                        liq[k][f] = *ck;
+                    }
+                }
                 pieces.push(Piece {
                     var,
                     lo,
                     hi,
                     map: chebyshev::UnitMap::new(lo, hi),
                     c: monomial(&c),
+                    liq: monomial(&liq),
                 });
             } else {
                 let mid = 0.5 * (lo + hi);
@@ -199,11 +225,25 @@ impl SatCurves {
                 s.vapor_enthalpy_j_kg,
             ]
         };
-        let end = values(tc - x_last * x_last)?;
+        let (end, end_slopes) = values(tc - x_last * x_last)?;
         let mut c = [[0.0; N_FUN]; LEN];
         for f in 0..N_FUN {
             c[0][f] = crit[f];
             c[1][f] = end[f] - crit[f];
+        }
+        // the liquid's slopes vanish at the critical point
+        let mut liq = [[0.0; N_LIQ]; LEN];
+        for (f, (at_crit, at_end)) in [
+            (crit[0], end[0]),
+            (crit[1], end[1]),
+            (0.0, end_slopes[0]),
+            (0.0, end_slopes[1]),
+        ]
+        .into_iter()
+        .enumerate()
+        {
+            liq[0][f] = at_crit;
+            liq[1][f] = at_end - at_crit;
         }
         pieces.push(Piece {
             var: Var::Critical,
@@ -211,6 +251,7 @@ impl SatCurves {
             hi: x_last,
             map: chebyshev::UnitMap::new(0.0, x_last),
             c,
+            liq,
         });
         let upper = |p: &Piece| match p.var {
             Var::T => p.hi,
@@ -289,25 +330,42 @@ impl SatCurves {
     /// [ln p, rho_L, ln rho_V, h_L, h_V] at T in [T_t, T_c] (mass units).
     #[inline]
     pub(crate) fn at_t(&self, t: f64) -> [f64; N_FUN] {
+        self.eval_at_t(t, |p| &p.c)
+    }
+
+    /// [ln p, rho_L, dp/drho, d2p/drho2] of the saturated liquid at T in [T_t, T_c] (mass units; the
+    /// slopes are approximate, for starting a density solve).
+    #[inline]
+    pub(crate) fn liquid_at_t(&self, t: f64) -> [f64; N_LIQ] {
+        self.eval_at_t(t, |p| &p.liq)
+    }
+
+    #[inline(always)]
+    fn eval_at_t<const M: usize>(
+        &self,
+        t: f64,
+        table: impl Fn(&Piece) -> &[[f64; M]; LEN],
+    ) -> [f64; M] {
         let i = self
             .t_upper
             .partition_point(|&u| u < t)
             .min(self.pieces.len().saturating_sub(1));
         let Some(p) = self.pieces.get(i) else {
-            return [f64::NAN; N_FUN];
+            return [f64::NAN; M];
         };
+        let c = table(p);
         match p.var {
-            Var::T => chebyshev::estrin_many(&p.c, p.map.apply(t)),
+            Var::T => chebyshev::estrin_many(c, p.map.apply(t)),
             Var::SqrtFromCritical => {
                 let x = (self.tc - t).max(0.0).sqrt();
-                chebyshev::estrin_many(&p.c, p.map.apply(x))
+                chebyshev::estrin_many(c, p.map.apply(x))
             }
             Var::Critical => {
                 let x = ((self.tc - t).max(0.0).sqrt() / p.hi).min(1.0);
-                let mut out = [0.0; N_FUN];
+                let mut out = [0.0; M];
                 for (f, slot) in out.iter_mut().enumerate() {
                     let w = if f == 0 { x * x } else { x };
-                    *slot = p.c[0][f] + w * p.c[1][f];
+                    *slot = c[0][f] + w * c[1][f];
                 }
                 out
             }
@@ -346,4 +404,16 @@ impl SatCurves {
             vapor_enthalpy_j_kg: v[4],
         }
     }
+}
+
+/// dp/drho and d2p/drho2 (mass units) of the liquid at (T, rho_L molar): the first analytic, the second
+/// by a central difference of it (good to ~1e-9, plenty for a Newton start).
+fn liquid_slopes(fluid: &Fluid, t: f64, rho_l: f64) -> [f64; 2] {
+    let iso = ResidualAtTau::new(fluid.data, fluid.t_r / t);
+    let h = 1e-5 * rho_l;
+    let d1 = fluid.p_dpdrho(&iso, t, rho_l).1;
+    let d2 =
+        (fluid.p_dpdrho(&iso, t, rho_l + h).1 - fluid.p_dpdrho(&iso, t, rho_l - h).1) / (2.0 * h);
+    let m = fluid.m;
+    [d1 / m, d2 / (m * m)]
 }

@@ -117,12 +117,11 @@ impl Fluid {
             } else {
                 ideal
             };
-            return Ok(self.solve_density(&iso, t_k, p_pa, 0.0, f64::INFINITY, start)? * self.m);
+            return Ok(
+                self.solve_density(&iso, t_k, p_pa, 0.0, f64::INFINITY, start, f64::NAN)? * self.m,
+            );
         }
-        let v = self.curves()?.at_t(t_k);
-        let p_sat = v[0].exp();
-        let rho_l_sat = v[1] / self.m;
-        let rho_v_sat = v[2].exp() / self.m;
+        let curves = self.curves()?;
         let absent = || {
             let t_sat = if p_pa >= self.triple.pressure_pa && p_pa <= self.critical.pressure_pa {
                 self.curves().ok().map(|c| c.t_from_ln_p(p_pa.ln()))
@@ -137,21 +136,54 @@ impl Fluid {
                 saturation_temperature_k: t_sat,
             }
         };
+        let m = self.m;
         let rho = match phase {
             Phase::Liquid => {
+                let [ln_p_sat, rho_l_sat, slope, curvature] = curves.liquid_at_t(t_k);
+                let p_sat = ln_p_sat.exp();
                 if p_pa < p_sat {
                     return Err(absent());
                 }
-                self.solve_density(&iso, t_k, p_pa, rho_l_sat, f64::INFINITY, rho_l_sat)?
+                // p(rho) about the saturated liquid to second order, inverted: a start within ~1e-8 for
+                // a tank's few bar of subcooling, so that one Newton step usually finishes
+                let mut start = rho_l_sat;
+                if slope > 0.0 {
+                    let u = (p_pa - p_sat) / slope;
+                    let bend = 0.5 * curvature / slope * u;
+                    start += if bend.abs() < 0.25 {
+                        u * (1.0 - bend)
+                    } else {
+                        u
+                    };
+                }
+                self.solve_density(
+                    &iso,
+                    t_k,
+                    p_pa,
+                    rho_l_sat / m,
+                    f64::INFINITY,
+                    start.max(rho_l_sat) / m,
+                    curvature * m * m,
+                )?
             }
             Phase::Gas => {
-                if p_pa > p_sat {
+                let v = curves.at_t(t_k);
+                if p_pa > v[0].exp() {
                     return Err(absent());
                 }
-                self.solve_density(&iso, t_k, p_pa, 0.0, rho_v_sat, ideal.min(rho_v_sat))?
+                let rho_v_sat = v[2].exp() / m;
+                self.solve_density(
+                    &iso,
+                    t_k,
+                    p_pa,
+                    0.0,
+                    rho_v_sat,
+                    ideal.min(rho_v_sat),
+                    f64::NAN,
+                )?
             }
         };
-        Ok(rho * self.m)
+        Ok(rho * m)
     }
 
     /// A density above the root of p(rho) = p on a dense isotherm: 1.5 times the triple-point liquid's,
@@ -188,7 +220,9 @@ impl Fluid {
     }
 
     /// Newton's method on p(rho) = p along an isotherm, kept inside a bracket [lo, hi] where p(lo) <= p <=
-    /// p(hi) (hi may be infinite: then a failed step raises rho by 10 %). Molar units.
+    /// p(hi) (hi may be infinite: then a failed step raises rho by 10 %). Molar units. `curvature` is
+    /// d2p/drho2 near the start when known (NaN otherwise): it bounds the error left after a step.
+    #[allow(clippy::too_many_arguments)]
     fn solve_density(
         &self,
         iso: &ResidualAtTau<'_>,
@@ -197,6 +231,7 @@ impl Fluid {
         mut lo: f64,
         mut hi: f64,
         start: f64,
+        curvature: f64,
     ) -> Result<f64, FluidError> {
         const MAX_ITER: usize = 200;
         let mut rho = start;
@@ -218,6 +253,17 @@ impl Fluid {
             let step = -f / dp;
             if dp > 0.0 && step.abs() <= 1e-14 * rho {
                 return Ok(rho + step);
+            }
+            // Newton leaves an error of about (p''/2p') step²: with the curvature known and that four
+            // times over still below 1e-14, take the step and stop
+            if dp > 0.0
+                && step.abs() <= 1e-7 * rho
+                && 2.0 * (curvature / dp).abs() * step * step <= 1e-14 * rho
+            {
+                let next = rho + step;
+                if next > lo && next < hi {
+                    return Ok(next);
+                }
             }
             // Converging quadratically (this step a thousandth of the last or less) and small: the error
             // left after this step is of the order of step²/last step, far below 1e-12, so take it and stop
