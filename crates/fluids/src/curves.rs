@@ -4,6 +4,8 @@
 //!
 //! Below T_split the variable is T. Between T_split and T_c it is x = sqrt(T_c - T): along an analytic
 //! equation the coexisting densities go as rho_c ± a x + b x² ..., which is smooth in x but not in T.
+//! The nodes there come from the double-double refinement of the full solution (see `extended`), so the
+//! octaves of x reach to 1e-12 T_c below T_c.
 
 use crate::SolverOptions;
 use crate::chebyshev::{self, LEN};
@@ -23,8 +25,10 @@ const TOL: f64 = 1e-12;
 const MAX_DEPTH: u32 = 12;
 /// Width of the near-critical region fitted in x = sqrt(T_c - T), as a fraction of T_c.
 const SPLIT_FRACTION: f64 = 0.03;
+/// Distance below T_c (fraction of T_c) within which a node starts from its neighbour.
+const NEAR_CRITICAL_FIT: f64 = 1e-3;
 /// Width of the last sliver below T_c (fraction of T_c) where the curves interpolate to the critical point.
-const CRITICAL_PIECE: f64 = 1e-7;
+const CRITICAL_PIECE: f64 = 1e-12;
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 enum Var {
@@ -112,16 +116,24 @@ impl SatCurves {
         let mut last: Option<crate::saturation::SatMolar> = None;
         let mut values = |t: f64| -> Result<([f64; N_FUN], [f64; 2]), FluidError> {
             solutions += 1;
-            let s = match fluid.solve_saturation_molar(t, &opts) {
+            // near T_c the neighbouring node's solution, scaled, is a close start (one double-double
+            // solve instead of the solver's chain of solutions farther out)
+            let near_critical = |t: f64| tc - t < NEAR_CRITICAL_FIT * tc;
+            let from_last = match last {
+                Some(prev) if near_critical(t) && near_critical(prev.t) => {
+                    fluid.solve_saturation_near(t, &prev, &opts)
+                }
+                _ => None,
+            };
+            let s = match from_last.map_or_else(|| fluid.solve_saturation_molar(t, &opts), Ok) {
                 Ok(s) => s,
-                // near T_c a neighbouring node's solution is the better start
+                // a neighbouring node's solution is the better start
                 Err(e) => match last {
-                    Some(prev) => fluid
-                        .akasaka(t, prev.rho_l, prev.rho_v, &opts)
-                        .map_err(|_| e)?,
+                    Some(prev) => fluid.solve_saturation_near(t, &prev, &opts).ok_or(e)?,
                     None => return Err(e),
                 },
             };
+            let s = fluid.refine_saturation(s);
             last = Some(s);
             let slopes = liquid_slopes(fluid, s.t, s.rho_l);
             let s = s.to_mass(m);
@@ -161,13 +173,13 @@ impl SatCurves {
                 };
                 (*row, *slope) = values(t.clamp(tt, tc))?;
             }
-            // close to T_c the full solution itself is only good to ~2e-14 / (separation of the reduced
-            // densities)^3 (an ill-conditioned Newton system): do not chase that noise
+            // close to T_c the full solution is refined in double-double and good to ~2e-30 / (separation
+            // of the reduced densities)^3 (an ill-conditioned Newton system): do not chase noise below that
             let separation = table
                 .iter()
                 .map(|r| (r[1] - r[2].exp()) / fluid.critical.density_kg_m3)
                 .fold(f64::INFINITY, f64::min);
-            let noise = (2e-14 / separation.powi(3)).max(TOL);
+            let noise = (2e-30 / separation.powi(3)).max(TOL);
             let mut c = [[0.0; N_FUN]; LEN];
             let mut excess: f64 = 0.0;
             for f in 0..N_FUN {
@@ -214,7 +226,7 @@ impl SatCurves {
             }
         }
         // the last sliver next to T_c: from the critical point to the nearest fitted node, ln p linear in
-        // T and the rest linear in x (accurate to ~1e-4 there; see the crate docs)
+        // T and the rest linear in x (1e-12 T_c wide: the error there is set by the critical density's, ~1e-9)
         let crit = {
             let s = fluid.critical_saturation().to_mass(m);
             [

@@ -5,6 +5,7 @@
 //! eq. (6.5) and Table 32 (derivatives).
 
 use crate::data::{FluidData, GaussianTerm, IdealTerm, NonAnalyticTerm, PowerTerm};
+use crate::real::Real;
 
 /// Largest number of power + Gaussian terms of any fluid here (checked by a test).
 pub(crate) const MAX_TERMS: usize = 48;
@@ -133,62 +134,77 @@ fn gaussian_term(
     s.dt += base * x * y;
 }
 
-/// Span and Wagner's non-analytic term, unscaled derivatives added to `r`.
-fn non_analytic_term(r: &mut ResidualDerivatives, na: &NonAnalyticTerm, delta: f64, tau: f64) {
+/// Span and Wagner's non-analytic term: ar and its unscaled derivatives, in the [`Real`] type asked.
+#[derive(Clone, Copy)]
+struct NonAnalytic<R> {
+    a: R,
+    a_d: R,
+    a_dd: R,
+    a_t: R,
+    a_tt: R,
+    a_dt: R,
+}
+
+fn non_analytic_term<R: Real>(na: &NonAnalyticTerm, delta: R, tau: R) -> NonAnalytic<R> {
     // the derivatives contain (delta - 1)^-k factors that cancel analytically; step off delta = 1 exactly
     let mut d1 = delta - 1.0;
-    if d1.abs() < 1e-12 {
-        d1 = 1e-12;
+    if d1 < R::from(1e-12) && d1 > R::from(-1e-12) {
+        d1 = R::from(1e-12);
     }
-    let delta = 1.0 + d1;
+    let delta = d1 + 1.0;
     let d1sq = d1 * d1;
     let inv_2beta = 1.0 / (2.0 * na.beta);
     // powers of (delta-1)^2 and of Delta from one logarithm each
     let ln_d1sq = d1sq.ln();
-    let d1sq_inv_2beta = (inv_2beta * ln_d1sq).exp();
-    let d1sq_a = (na.a * ln_d1sq).exp();
-    let theta = (1.0 - tau) + na.big_a * d1sq_inv_2beta;
-    let big_delta = (theta * theta + na.big_b * d1sq_a).max(1e-300);
+    let d1sq_inv_2beta = (ln_d1sq * inv_2beta).exp();
+    let d1sq_a = (ln_d1sq * na.a).exp();
+    let theta = -(tau - 1.0) + d1sq_inv_2beta * na.big_a;
+    let mut big_delta = theta * theta + d1sq_a * na.big_b;
+    if big_delta < R::from(1e-300) {
+        big_delta = R::from(1e-300);
+    }
     let t1 = tau - 1.0;
-    let psi = (-na.big_c * d1sq - na.big_d * t1 * t1).exp();
-    let psi_d = -2.0 * na.big_c * d1 * psi;
-    let psi_dd = (2.0 * na.big_c * d1sq - 1.0) * 2.0 * na.big_c * psi;
-    let psi_t = -2.0 * na.big_d * t1 * psi;
-    let psi_tt = (2.0 * na.big_d * t1 * t1 - 1.0) * 2.0 * na.big_d * psi;
-    let psi_dt = 4.0 * na.big_c * na.big_d * d1 * t1 * psi;
+    let psi = (-(d1sq * na.big_c) - t1 * t1 * na.big_d).exp();
+    let psi_d = -(d1 * psi * (2.0 * na.big_c));
+    let psi_dd = (d1sq * (2.0 * na.big_c) - 1.0) * psi * (2.0 * na.big_c);
+    let psi_t = -(t1 * psi * (2.0 * na.big_d));
+    let psi_tt = (t1 * t1 * (2.0 * na.big_d) - 1.0) * psi * (2.0 * na.big_d);
+    let psi_dt = d1 * t1 * psi * (4.0 * na.big_c * na.big_d);
 
     let w = d1sq_inv_2beta / d1sq;
     let big_delta_d =
-        d1 * (na.big_a * theta * (2.0 / na.beta) * w + 2.0 * na.big_b * na.a * d1sq_a / d1sq);
+        d1 * (theta * w * (na.big_a * 2.0 / na.beta) + d1sq_a / d1sq * (2.0 * na.big_b * na.a));
     let big_delta_dd = big_delta_d / d1
         + d1sq
-            * (4.0 * na.big_b * na.a * (na.a - 1.0) * d1sq_a / (d1sq * d1sq)
-                + 2.0 * na.big_a * na.big_a * (1.0 / na.beta).powi(2) * w * w
-                + na.big_a * theta * (4.0 / na.beta) * (inv_2beta - 1.0) * w / d1sq);
-    let db = (na.b * big_delta.ln()).exp();
+            * (d1sq_a / (d1sq * d1sq) * (4.0 * na.big_b * na.a * (na.a - 1.0))
+                + w * w * (2.0 * na.big_a * na.big_a * (1.0 / na.beta).powi(2))
+                + theta * w / d1sq * (na.big_a * (4.0 / na.beta) * (inv_2beta - 1.0)));
+    let db = (big_delta.ln() * na.b).exp();
     let db_m1 = db / big_delta;
     let db_m2 = db_m1 / big_delta;
-    let db_d = na.b * db_m1 * big_delta_d;
-    let db_dd = na.b * (db_m1 * big_delta_dd + (na.b - 1.0) * db_m2 * big_delta_d * big_delta_d);
-    let db_t = -2.0 * theta * na.b * db_m1;
-    let db_tt = 2.0 * na.b * db_m1 + 4.0 * theta * theta * na.b * (na.b - 1.0) * db_m2;
-    let db_dt = -na.big_a * na.b * (2.0 / na.beta) * db_m1 * d1 * w
-        - 2.0 * theta * na.b * (na.b - 1.0) * db_m2 * big_delta_d;
+    let db_d = db_m1 * big_delta_d * na.b;
+    let db_dd = (db_m1 * big_delta_dd + db_m2 * big_delta_d * big_delta_d * (na.b - 1.0)) * na.b;
+    let db_t = -(theta * db_m1 * (2.0 * na.b));
+    let db_tt = db_m1 * (2.0 * na.b) + theta * theta * db_m2 * (4.0 * na.b * (na.b - 1.0));
+    let db_dt = -(db_m1 * d1 * w * (na.big_a * na.b * 2.0 / na.beta))
+        - theta * db_m2 * big_delta_d * (2.0 * na.b * (na.b - 1.0));
 
     let n = na.n;
-    r.a += n * db * delta * psi;
-    r.a_d += n * (db * (psi + delta * psi_d) + db_d * delta * psi);
-    r.a_dd += n
-        * (db * (2.0 * psi_d + delta * psi_dd)
-            + 2.0 * db_d * (psi + delta * psi_d)
-            + db_dd * delta * psi);
-    r.a_t += n * delta * (db_t * psi + db * psi_t);
-    r.a_tt += n * delta * (db_tt * psi + 2.0 * db_t * psi_t + db * psi_tt);
-    r.a_dt += n
-        * (db * (psi_t + delta * psi_dt)
+    NonAnalytic {
+        a: db * delta * psi * n,
+        a_d: (db * (psi + delta * psi_d) + db_d * delta * psi) * n,
+        a_dd: (db * (psi_d * 2.0 + delta * psi_dd)
+            + db_d * (psi + delta * psi_d) * 2.0
+            + db_dd * delta * psi)
+            * n,
+        a_t: delta * (db_t * psi + db * psi_t) * n,
+        a_tt: delta * (db_tt * psi + db_t * psi_t * 2.0 + db * psi_tt) * n,
+        a_dt: (db * (psi_t + delta * psi_dt)
             + delta * db_d * psi_t
             + db_t * (psi + delta * psi_d)
-            + db_dt * delta * psi);
+            + db_dt * delta * psi)
+            * n,
+    }
 }
 
 fn delta_powers_l(delta: f64) -> [f64; 8] {
@@ -222,38 +238,60 @@ pub(crate) fn residual(data: &FluidData, tau: f64, delta: f64) -> ResidualDeriva
         a_dt: s.dt / (delta * tau),
     };
     for na in data.non_analytic {
-        non_analytic_term(&mut r, na, delta, tau);
+        let t = non_analytic_term(na, delta, tau);
+        r.a += t.a;
+        r.a_d += t.a_d;
+        r.a_dd += t.a_dd;
+        r.a_t += t.a_t;
+        r.a_tt += t.a_tt;
+        r.a_dt += t.a_dt;
     }
     r
 }
 
 /// ar and its delta derivatives along one isotherm, with everything that depends on tau alone computed
-/// once: the density solvers call [`ResidualAtTau::eval`] several times per temperature.
-pub(crate) struct ResidualAtTau<'a> {
+/// once: the density solvers call [`ResidualAtTau::eval`] several times per temperature. `R` is `f64`, or
+/// double-double for the extended-precision saturation refinement.
+pub(crate) struct ResidualAtTau<'a, R = f64> {
     data: &'a FluidData,
-    tau: f64,
+    tau: R,
     /// n tau^t for power terms, then n tau^t exp(-beta (tau - gamma)^2) for Gaussian terms
-    coef: [f64; MAX_TERMS],
+    coef: [R; MAX_TERMS],
     /// largest l of the power terms: exp(-delta^l) is needed for l = 1..=max_l
     max_l: usize,
 }
 
 /// ar, delta * d ar/d delta and delta^2 * d2 ar / d delta2 at one density.
 #[derive(Debug, Clone, Copy, Default)]
-pub(crate) struct DeltaDerivatives {
-    pub a: f64,
-    pub delta_a_d: f64,
-    pub delta2_a_dd: f64,
+pub(crate) struct DeltaDerivatives<R = f64> {
+    pub a: R,
+    pub delta_a_d: R,
+    pub delta2_a_dd: R,
 }
 
-impl<'a> ResidualAtTau<'a> {
-    pub(crate) fn new(data: &'a FluidData, tau: f64) -> Self {
+/// x^n for n >= 0 by repeated squaring.
+fn powi_real<R: Real>(x: R, n: i32) -> R {
+    let mut out = R::from(1.0);
+    let mut base = x;
+    let mut n = n.max(0);
+    while n > 0 {
+        if n & 1 == 1 {
+            out = out * base;
+        }
+        base = base * base;
+        n >>= 1;
+    }
+    out
+}
+
+impl<'a, R: Real> ResidualAtTau<'a, R> {
+    pub(crate) fn new(data: &'a FluidData, tau: R) -> Self {
         let ln_tau = tau.ln();
-        let mut coef = [0.0; MAX_TERMS];
-        let powers = data.power.iter().map(|p| p.n * (p.t * ln_tau).exp());
+        let mut coef = [R::from(0.0); MAX_TERMS];
+        let powers = data.power.iter().map(|p| (ln_tau * p.t).exp() * p.n);
         let gaussians = data.gaussian.iter().map(|g| {
             let tt = tau - g.gamma;
-            g.n * (g.t * ln_tau - g.beta * tt * tt).exp()
+            (ln_tau * g.t - tt * tt * g.beta).exp() * g.n
         });
         for (slot, c) in coef.iter_mut().zip(powers.chain(gaussians)) {
             *slot = c;
@@ -272,40 +310,42 @@ impl<'a> ResidualAtTau<'a> {
         }
     }
 
-    pub(crate) fn eval(&self, delta: f64) -> DeltaDerivatives {
-        let mut pow_d = [1.0; 12];
+    pub(crate) fn eval(&self, delta: R) -> DeltaDerivatives<R> {
+        let one = R::from(1.0);
+        let mut pow_d = [one; 12];
         for i in 1..pow_d.len() {
             pow_d[i] = pow_d[i - 1] * delta;
         }
-        let mut exp_l = [1.0; 8];
+        let mut exp_l = [one; 8];
         for (l, slot) in exp_l.iter_mut().enumerate().take(self.max_l + 1).skip(1) {
-            *slot = (-pow_d.get(l).copied().unwrap_or(0.0)).exp();
+            *slot = (-pow_d.get(l).copied().unwrap_or(one)).exp();
         }
-        let (mut a, mut d, mut dd) = (0.0, 0.0, 0.0);
+        let zero = R::from(0.0);
+        let (mut a, mut d, mut dd) = (zero, zero, zero);
         let n_power = self.data.power.len();
-        for (p, c) in self.data.power.iter().zip(&self.coef) {
+        for (p, &c) in self.data.power.iter().zip(&self.coef) {
             let dpow = pow_d
                 .get(p.d as usize)
                 .copied()
-                .unwrap_or_else(|| delta.powi(p.d));
+                .unwrap_or_else(|| powi_real(delta, p.d));
             let df = f64::from(p.d);
             let (base, x, xx) = if p.l > 0 {
-                let dl = pow_d.get(p.l as usize).copied().unwrap_or(0.0);
+                let dl = pow_d.get(p.l as usize).copied().unwrap_or(zero);
                 let l = f64::from(p.l);
-                let x = df - l * dl;
+                let x = -(dl * l) + df;
                 (
-                    c * dpow * exp_l.get(p.l as usize).copied().unwrap_or(0.0),
+                    c * dpow * exp_l.get(p.l as usize).copied().unwrap_or(zero),
                     x,
-                    x * (x - 1.0) - l * l * dl,
+                    x * (x - 1.0) - dl * (l * l),
                 )
             } else {
-                (c * dpow, df, df * (df - 1.0))
+                (c * dpow, R::from(df), R::from(df * (df - 1.0)))
             };
             a += base;
             d += base * x;
             dd += base * xx;
         }
-        for (g, c) in self
+        for (g, &c) in self
             .data
             .gaussian
             .iter()
@@ -316,27 +356,23 @@ impl<'a> ResidualAtTau<'a> {
             let dpow = pow_d
                 .get(g.d as usize)
                 .copied()
-                .unwrap_or_else(|| delta.powi(g.d));
-            let base = c * dpow * (-g.eta * ddl * ddl).exp();
-            let x = df - 2.0 * g.eta * delta * ddl;
+                .unwrap_or_else(|| powi_real(delta, g.d));
+            let base = c * dpow * (-(ddl * ddl * g.eta)).exp();
+            let x = -(delta * ddl * (2.0 * g.eta)) + df;
             a += base;
             d += base * x;
-            dd += base * (x * x - df - 2.0 * g.eta * delta * delta);
+            dd += base * (x * x - df - delta * delta * (2.0 * g.eta));
         }
-        let mut out = DeltaDerivatives {
+        for na in self.data.non_analytic {
+            let t = non_analytic_term(na, delta, self.tau);
+            a += t.a;
+            d += delta * t.a_d;
+            dd += delta * delta * t.a_dd;
+        }
+        DeltaDerivatives {
             a,
             delta_a_d: d,
             delta2_a_dd: dd,
-        };
-        if !self.data.non_analytic.is_empty() {
-            let mut r = ResidualDerivatives::default();
-            for na in self.data.non_analytic {
-                non_analytic_term(&mut r, na, delta, self.tau);
-            }
-            out.a += r.a;
-            out.delta_a_d += delta * r.a_d;
-            out.delta2_a_dd += delta * delta * r.a_dd;
         }
-        out
     }
 }

@@ -68,7 +68,8 @@ impl Fluid {
         opts: &SolverOptions,
     ) -> Result<Saturation, FluidError> {
         let t_k = self.check_saturation_temperature(t_k)?;
-        Ok(self.solve_saturation_molar(t_k, opts)?.to_mass(self.m))
+        let s = self.solve_saturation_molar(t_k, opts)?;
+        Ok(self.refine_saturation(s).to_mass(self.m))
     }
 
     /// Saturation at a pressure by the full equation of state: Newton on T (Clausius-Clapeyron slope)
@@ -110,6 +111,18 @@ impl Fluid {
                 Err(_) => self.solve_saturation_molar(t, opts)?,
             };
             if step.abs() <= opts.tol * t {
+                // near T_c the double-precision p(T) is noisy: finish on the refined one
+                for _ in 0..4 {
+                    let refined = self.refine_saturation(sat);
+                    let dt = -(refined.p.ln() - ln_p) / dlnp_dt;
+                    sat = refined;
+                    let t_new = (t + dt).clamp(tt, tc);
+                    if !t_new.is_finite() || (t_new - t).abs() <= 1e-15 * t {
+                        break;
+                    }
+                    t = t_new;
+                    sat = self.akasaka(t, sat.rho_l, sat.rho_v, opts)?;
+                }
                 // report the asked pressure: the state is at T_sat(p) to within tol
                 sat.p = p_pa;
                 return Ok(sat.to_mass(self.m));
@@ -214,29 +227,14 @@ impl Fluid {
             return first;
         }
         let t_far = (tc - 10.0 * (tc - t)).max(tc * (1.0 - 2.0 * NEAR_CRITICAL));
-        let far = self.solve_saturation_molar(t_far, opts)?;
-        let rc = self.rho_c;
-        let k = ((tc - t) / (tc - t_far)).sqrt();
-        let mut last = Err(FluidError::NotConverged {
-            fluid: self.id,
-            what: "saturation at fixed temperature",
-            iterations: 0,
-            residual: f64::NAN,
-        });
-        // square-root scaling first; the equation's effective exponent is nearer 0.35-0.4 this far out,
-        // so try a little wider too
-        for kk in [k, k.powf(0.8), k.powf(0.7), k.powf(1.2)] {
-            last = self.akasaka(
-                t,
-                rc + kk * (far.rho_l - rc),
-                rc + kk * (far.rho_v - rc),
-                opts,
-            );
-            if last.is_ok() {
-                break;
-            }
-        }
-        last
+        let far = self.refine_saturation(self.solve_saturation_molar(t_far, opts)?);
+        self.solve_saturation_near(t, &far, opts)
+            .ok_or(FluidError::NotConverged {
+                fluid: self.id,
+                what: "saturation at fixed temperature",
+                iterations: 0,
+                residual: f64::NAN,
+            })
     }
 
     /// Newton's method on J(delta) = delta (1 + delta ar_delta) and K(delta) = delta ar_delta + ar + ln delta,

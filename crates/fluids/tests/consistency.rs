@@ -156,9 +156,12 @@ fn maxwell_equal_areas() {
 }
 
 /// Source: the acceptance, fast curves within 1e-9 of the full solver, checked densely from the
-/// triple point to 1e-4 T_c below the critical point (10-30 mK). Closer in, the full solver's own round-off
-/// grows as the phases merge (~2e-14 / (reduced density gap)^3: ~1e-10 at 1e-5 T_c, ~1e-8 at 1e-6 T_c), so
-/// there the comparison is bounded by that: 3e-7 down to 1e-6 T_c (measured worst 1.0e-7, parahydrogen). Enthalpies against the scale R T_c / M.
+/// triple point to 1e-4 T_c below the critical point (10-30 mK), then from there to 1e-10 T_c (10-30 nK),
+/// where the full solver runs in double-double (in double precision alone it would be good to only ~1e-7
+/// at 1e-6 T_c). Measured worst: 7e-13 to 1e-4 T_c, 1.8e-10 to 1e-10 T_c (carbon dioxide). Between
+/// 1e-10 and 1e-12 T_c every fluid stays within 1e-9 (measured 6e-10, methane) except carbon dioxide,
+/// whose Span-Wagner non-analytic terms make the curve non-smooth there (measured 2.3e-9, allowed 3e-9).
+/// Enthalpies against the scale R T_c / M.
 #[test]
 fn fast_curves_agree_with_full_solver() {
     let opts = SolverOptions {
@@ -169,13 +172,14 @@ fn fast_curves_agree_with_full_solver() {
         let f = fluid(id);
         let (tt, tc) = (f.triple().temperature_k, f.critical().temperature_k);
         let h_scale = f.gas_constant_j_mol_k() * tc / f.molar_mass_kg_mol();
-        let mut worst = [0.0f64; 2];
+        let mut worst = [0.0f64; 3];
         // 400 T spread evenly, 40 crowding toward 1e-4 T_c below T_c, 20 from there to 1e-6 T_c
         let even = lin(tt, tc * (1.0 - 1e-4), 400).map(|t| (t, 0));
         let near = (0..40).map(|k| (tc * (1.0 - 10f64.powf(-1.0 - 3.0 * f64::from(k) / 39.0)), 0));
         let nearest =
-            (0..20).map(|k| (tc * (1.0 - 10f64.powf(-4.0 - 2.0 * f64::from(k) / 19.0)), 1));
-        for (t, band) in even.chain(near).chain(nearest) {
+            (0..40).map(|k| (tc * (1.0 - 10f64.powf(-4.0 - 6.0 * f64::from(k) / 39.0)), 1));
+        let closest = (0..10).map(|k| (tc * (1.0 - 10f64.powf(-10.2 - 0.2 * f64::from(k))), 2));
+        for (t, band) in even.chain(near).chain(nearest).chain(closest) {
             let fast = f.saturation_from_temperature(t).unwrap();
             let full = f
                 .solve_saturation_from_temperature(t, &opts)
@@ -188,7 +192,12 @@ fn fast_curves_agree_with_full_solver() {
                 (fast.vapor_enthalpy_j_kg - full.vapor_enthalpy_j_kg).abs() / h_scale,
             ];
             let d = devs.iter().copied().fold(0.0, f64::max);
-            let tol = [1e-9, 3e-7][band];
+            let closest_tol = if id == FluidId::CarbonDioxide {
+                3e-9
+            } else {
+                1e-9
+            };
+            let tol = [1e-9, 1e-9, closest_tol][band];
             assert!(
                 d <= tol,
                 "{id} at T = {t} K (1 - T/Tc = {:.1e}): deviations {devs:?}",
@@ -197,8 +206,8 @@ fn fast_curves_agree_with_full_solver() {
             worst[band] = worst[band].max(d);
         }
         println!(
-            "{id}: fast vs full saturation, worst {:.2e} up to 1e-4 Tc below Tc, {:.2e} from there to 1e-6 Tc",
-            worst[0], worst[1]
+            "{id}: fast vs full saturation, worst {:.2e} up to 1e-4 Tc below Tc, {:.2e} from there to 1e-10 Tc, {:.2e} to 1e-12 Tc",
+            worst[0], worst[1], worst[2]
         );
     }
 }
