@@ -64,8 +64,9 @@ struct Piece {
     /// [lo, hi] onto [-1, 1]
     map: chebyshev::UnitMap,
     c: [[f64; N_FUN]; LEN],
-    /// the same for [`N_LIQ`] liquid functions
-    liq: [[f64; N_LIQ]; LEN],
+    /// the same for the [`N_LIQ`] liquid functions, kept apart so that the saturation lookups' table
+    /// stays compact in cache
+    liq: Box<[[f64; N_LIQ]; LEN]>,
 }
 
 #[derive(Debug, Clone)]
@@ -217,7 +218,7 @@ impl SatCurves {
                     hi,
                     map: chebyshev::UnitMap::new(lo, hi),
                     c: monomial(&c),
-                    liq: monomial(&liq),
+                    liq: Box::new(monomial(&liq)),
                 });
             } else {
                 let mid = 0.5 * (lo + hi);
@@ -263,7 +264,7 @@ impl SatCurves {
             hi: x_last,
             map: chebyshev::UnitMap::new(0.0, x_last),
             c,
-            liq,
+            liq: Box::new(liq),
         });
         let upper = |p: &Piece| match p.var {
             Var::T => p.hi,
@@ -349,7 +350,7 @@ impl SatCurves {
     /// slopes are approximate, for starting a density solve).
     #[inline]
     pub(crate) fn liquid_at_t(&self, t: f64) -> [f64; N_LIQ] {
-        self.eval_at_t(t, |p| &p.liq)
+        self.eval_at_t(t, |p| &*p.liq)
     }
 
     #[inline(always)]

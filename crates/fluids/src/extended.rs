@@ -23,7 +23,7 @@ impl Fluid {
     /// small; `s` unchanged where it is not, or where the refinement does not converge.
     pub(crate) fn refine_saturation(&self, s: SatMolar) -> SatMolar {
         let gap = (s.rho_l - s.rho_v) / self.rho_c;
-        if !(gap > 0.0 && gap < REFINE_BELOW_GAP) {
+        if s.extended || !(gap > 0.0 && gap < REFINE_BELOW_GAP) {
             return s;
         }
         match self.solve_saturation_extended(s.t, s.rho_l, s.rho_v) {
@@ -94,6 +94,8 @@ impl Fluid {
         let dc = self.rho_c / self.rho_r;
         let (mut dl, mut dv) = (Dd::from(rho_l0 / self.rho_r), Dd::from(rho_v0 / self.rho_r));
         let mut converged = false;
+        // the last full step's size, for judging quadratic convergence
+        let mut last_full = f64::NAN;
         for _ in 0..MAX_STEPS {
             let (l, v) = (iso.eval(dl), iso.eval(dv));
             let jl = dl * (l.delta_a_d + 1.0);
@@ -134,6 +136,17 @@ impl Fluid {
                 converged = true;
                 break;
             }
+            // or when converging quadratically (size = c last², so the next would be c size²) and the
+            // next step would be far below double precision: skip paying for it
+            if gamma == 1.0 {
+                if size * size * size <= 1e-20 * last_full * last_full && size < 1e-6 {
+                    converged = true;
+                    break;
+                }
+                last_full = size;
+            } else {
+                last_full = f64::NAN;
+            }
         }
         if !converged {
             return None;
@@ -149,6 +162,7 @@ impl Fluid {
             rho_v,
             h_l: self.molar_state(t, rho_l).h,
             h_v: self.molar_state(t, rho_v).h,
+            extended: true,
         })
     }
 }

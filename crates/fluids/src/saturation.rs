@@ -44,6 +44,8 @@ pub(crate) struct SatMolar {
     pub rho_v: f64,
     pub h_l: f64,
     pub h_v: f64,
+    /// solved in double-double (nothing left to refine)
+    pub extended: bool,
 }
 
 impl SatMolar {
@@ -194,6 +196,7 @@ impl Fluid {
             rho_v: rho,
             h_l: st.h,
             h_v: st.h,
+            extended: true,
         }
     }
 
@@ -321,6 +324,7 @@ impl Fluid {
                     rho_v,
                     h_l,
                     h_v,
+                    extended: false,
                 });
             }
         }
