@@ -9,6 +9,7 @@
 
 use crate::SolverOptions;
 use crate::chebyshev::{self, LEN};
+use crate::double_double::Dd;
 use crate::error::FluidError;
 use crate::fluid::Fluid;
 use crate::helmholtz::ResidualAtTau;
@@ -115,26 +116,36 @@ impl SatCurves {
         };
         let mut solutions = 0usize;
         let mut last: Option<crate::saturation::SatMolar> = None;
-        let mut values = |t: f64| -> Result<([f64; N_FUN], [f64; 2]), FluidError> {
+        // the node's temperature in double-double: next to T_c, T = T_c - x² rounded to f64 would move the
+        // node off its x by up to 1e-5 of the distance to T_c (1e-9 in the densities at 1e-11 T_c)
+        let mut values = |t_exact: Dd| -> Result<([f64; N_FUN], [f64; 2]), FluidError> {
             solutions += 1;
+            let t = t_exact.to_f64();
             // near T_c the neighbouring node's solution, scaled, is a close start (one double-double
             // solve instead of the solver's chain of solutions farther out)
             let near_critical = |t: f64| tc - t < NEAR_CRITICAL_FIT * tc;
             let from_last = match last {
                 Some(prev) if near_critical(t) && near_critical(prev.t) => {
-                    fluid.solve_saturation_near(t, &prev, &opts)
+                    fluid.solve_saturation_near(t_exact, &prev, &opts)
                 }
                 _ => None,
             };
-            let s = match from_last.map_or_else(|| fluid.solve_saturation_molar(t, &opts), Ok) {
-                Ok(s) => s,
-                // a neighbouring node's solution is the better start
-                Err(e) => match last {
-                    Some(prev) => fluid.solve_saturation_near(t, &prev, &opts).ok_or(e)?,
-                    None => return Err(e),
-                },
+            let s = match from_last {
+                Some(s) => s,
+                None => {
+                    let s = match fluid.solve_saturation_molar(t, &opts) {
+                        Ok(s) => s,
+                        // a neighbouring node's solution is the better start
+                        Err(e) => match last {
+                            Some(prev) => fluid
+                                .solve_saturation_near(t_exact, &prev, &opts)
+                                .ok_or(e)?,
+                            None => return Err(e),
+                        },
+                    };
+                    fluid.refine_saturation_at(s, t_exact)
+                }
             };
-            let s = fluid.refine_saturation(s);
             last = Some(s);
             let slopes = liquid_slopes(fluid, s.t, s.rho_l);
             let s = s.to_mass(m);
@@ -155,10 +166,17 @@ impl SatCurves {
         // (variable, lo, hi, depth) still to fit: T below the split, then octaves of x toward T_c
         // the last field is the parent's tail over its tolerance (infinite for a starting interval)
         let mut todo = vec![(Var::T, tt, t_split, 0u32, f64::INFINITY)];
+        let x_kink = non_analytic_kink(fluid, &opts);
         let mut x_hi = x_split;
         while x_hi > x_min {
-            todo.push((Var::SqrtFromCritical, 0.5 * x_hi, x_hi, 0, f64::INFINITY));
-            x_hi *= 0.5;
+            let lo = 0.5 * x_hi;
+            if x_kink > lo && x_kink < x_hi {
+                todo.push((Var::SqrtFromCritical, lo, x_kink, 0, f64::INFINITY));
+                todo.push((Var::SqrtFromCritical, x_kink, x_hi, 0, f64::INFINITY));
+            } else {
+                todo.push((Var::SqrtFromCritical, lo, x_hi, 0, f64::INFINITY));
+            }
+            x_hi = lo;
         }
         let x_last = x_hi;
         let nodes = chebyshev::lobatto_nodes();
@@ -169,10 +187,10 @@ impl SatCurves {
             for ((row, slope), u) in table.iter_mut().zip(&mut slopes).zip(nodes) {
                 let v = chebyshev::from_unit(u, lo, hi);
                 let t = match var {
-                    Var::T => v,
-                    Var::SqrtFromCritical | Var::Critical => tc - v * v,
+                    Var::T => Dd::from(v.clamp(tt, tc)),
+                    Var::SqrtFromCritical | Var::Critical => tc_minus_square(tc, v),
                 };
-                (*row, *slope) = values(t.clamp(tt, tc))?;
+                (*row, *slope) = values(t)?;
             }
             // close to T_c the full solution is refined in double-double and good to ~2e-30 / (separation
             // of the reduced densities)^3 (an ill-conditioned Newton system): do not chase noise below that
@@ -195,7 +213,9 @@ impl SatCurves {
             }
             // halving a smooth stretch shrinks the tail by orders of magnitude; when it does not, the
             // tail is the full solution's round-off and bisecting further would only chase it
-            let stalled = excess > 0.1 * parent_excess;
+            // (not next to the non-analytic kink, where the tail shrinks only algebraically)
+            let at_kink = lo == x_kink || hi == x_kink;
+            let stalled = !at_kink && excess > 0.1 * parent_excess;
             let converged = excess <= 1.0 || stalled;
             if converged || depth >= MAX_DEPTH {
                 let mut liq = [[0.0; N_LIQ]; LEN];
@@ -227,7 +247,8 @@ impl SatCurves {
             }
         }
         // the last sliver next to T_c: from the critical point to the nearest fitted node, ln p linear in
-        // T and the rest linear in x (1e-12 T_c wide: the error there is set by the critical density's, ~1e-9)
+        // T and the rest linear in x (within 1e-12 T_c of T_c, where T itself is resolved only to ~1e-4 of
+        // its distance to T_c)
         let crit = {
             let s = fluid.critical_saturation().to_mass(m);
             [
@@ -238,7 +259,7 @@ impl SatCurves {
                 s.vapor_enthalpy_j_kg,
             ]
         };
-        let (end, end_slopes) = values(tc - x_last * x_last)?;
+        let (end, end_slopes) = values(tc_minus_square(tc, x_last))?;
         let mut c = [[0.0; N_FUN]; LEN];
         for f in 0..N_FUN {
             c[0][f] = crit[f];
@@ -285,7 +306,7 @@ impl SatCurves {
                 full_solutions: 0,
             },
         };
-        curves.fit_inverse(fluid)?;
+        curves.fit_inverse(fluid, tc - x_kink * x_kink)?;
         curves.info.forward_pieces = curves.pieces.len();
         curves.info.inverse_pieces = curves.inverse.len();
         curves.info.full_solutions = solutions;
@@ -293,13 +314,19 @@ impl SatCurves {
     }
 
     /// T(ln p) fitted to the forward ln p(T), each node found by a bracketed root.
-    fn fit_inverse(&mut self, fluid: &Fluid) -> Result<(), FluidError> {
+    /// `t_kink` (NaN for none) is where the forward curve has a kink: a piece boundary sits on its ln p.
+    fn fit_inverse(&mut self, fluid: &Fluid, t_kink: f64) -> Result<(), FluidError> {
         let tt = fluid.triple.temperature_k;
         let tc = self.tc;
         let lnp_lo = self.at_t(tt)[0];
         let lnp_hi = self.at_t(tc)[0];
         let nodes = chebyshev::lobatto_nodes();
-        let mut todo = vec![(lnp_lo, lnp_hi, 0u32)];
+        let lnp_kink = self.at_t(t_kink)[0];
+        let mut todo = if lnp_kink > lnp_lo && lnp_kink < lnp_hi {
+            vec![(lnp_lo, lnp_kink, 0u32), (lnp_kink, lnp_hi, 0u32)]
+        } else {
+            vec![(lnp_lo, lnp_hi, 0u32)]
+        };
         let mut inverse = Vec::new();
         while let Some((lo, hi, depth)) = todo.pop() {
             let mut column = [0.0; LEN];
@@ -416,6 +443,43 @@ impl SatCurves {
             liquid_enthalpy_j_kg: v[3],
             vapor_enthalpy_j_kg: v[4],
         }
+    }
+}
+
+/// Span and Wagner's non-analytic terms are singular where theta = (1 - tau) + A |delta - 1|^(1/beta)
+/// vanishes. The coexistence curve of carbon dioxide crosses that line a hair below the equation's T_c
+/// (1e-11 T_c), and the densities have a kink there (they go as |T - T_kink|^(2b), 2b ~ 1.8): a piece
+/// boundary must sit on it. Returns its x = sqrt(T_c - T), found by fixed-point iteration on the liquid's
+/// delta from T = T_r; NaN when the fluid has no such terms or the crossing is not below T_c.
+fn non_analytic_kink(fluid: &Fluid, opts: &SolverOptions) -> f64 {
+    let tc = fluid.critical.temperature_k;
+    let Some(na) = fluid.data.non_analytic.first() else {
+        return f64::NAN;
+    };
+    let t_r = Dd::from(fluid.t_r);
+    let mut t = t_r;
+    for _ in 0..4 {
+        let t_f = t.to_f64();
+        if t_f.is_nan() || t_f >= tc {
+            return f64::NAN;
+        }
+        let Ok(s) = fluid.solve_saturation_molar(t_f, opts) else {
+            return f64::NAN;
+        };
+        let s = fluid.refine_saturation_at(s, t);
+        let d1 = s.rho_l / fluid.rho_r - 1.0;
+        t = t_r / (Dd::from(1.0) + na.big_a * d1.abs().powf(1.0 / na.beta));
+    }
+    let gap = (Dd::from(tc) - t).to_f64();
+    if gap > 0.0 { gap.sqrt() } else { f64::NAN }
+}
+
+/// T_c - x² in double-double (T_c itself for x <= 0).
+fn tc_minus_square(tc: f64, x: f64) -> Dd {
+    if x > 0.0 {
+        Dd::from(tc) - Dd::from(x) * Dd::from(x)
+    } else {
+        Dd::from(tc)
     }
 }
 

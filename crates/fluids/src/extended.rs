@@ -22,11 +22,20 @@ impl Fluid {
     /// `s` with its densities and pressure refined in double-double arithmetic where the density gap is
     /// small; `s` unchanged where it is not, or where the refinement does not converge.
     pub(crate) fn refine_saturation(&self, s: SatMolar) -> SatMolar {
-        let gap = (s.rho_l - s.rho_v) / self.rho_c;
-        if s.extended || !(gap > 0.0 && gap < REFINE_BELOW_GAP) {
+        if s.extended {
             return s;
         }
-        match self.solve_saturation_extended(s.t, s.rho_l, s.rho_v) {
+        self.refine_saturation_at(s, Dd::from(s.t))
+    }
+
+    /// Like [`Fluid::refine_saturation`], at the temperature `t` (in double-double, which may differ from
+    /// `s.t` by its rounding: near T_c that rounding is a sizeable part of the distance to T_c).
+    pub(crate) fn refine_saturation_at(&self, s: SatMolar, t: Dd) -> SatMolar {
+        let gap = (s.rho_l - s.rho_v) / self.rho_c;
+        if !(gap > 0.0 && gap < REFINE_BELOW_GAP) {
+            return s;
+        }
+        match self.solve_saturation_extended(t, s.rho_l, s.rho_v) {
             // a refinement moves the densities by the double-precision noise; a gap that changes a lot is
             // the trivial solution (both phases at one density), not a refinement
             Some(r)
@@ -48,10 +57,11 @@ impl Fluid {
     /// density gap is far from the scaled one is the trivial solution or a spurious one, and is refused.
     pub(crate) fn solve_saturation_near(
         &self,
-        t: f64,
+        t_exact: Dd,
         near: &SatMolar,
         opts: &SolverOptions,
     ) -> Option<SatMolar> {
+        let t = t_exact.to_f64();
         let tc = self.critical.temperature_k;
         if !(near.t < tc && t < tc) {
             return None;
@@ -66,7 +76,7 @@ impl Fluid {
         let guess = |kk: f64| (rc + kk * (near.rho_l - rc), rc + kk * (near.rho_v - rc));
         let (rho_l, rho_v) = guess(k);
         if let Some(s) = self
-            .solve_saturation_extended(t, rho_l, rho_v)
+            .solve_saturation_extended(t_exact, rho_l, rho_v)
             .filter(plausible)
         {
             return Some(s);
@@ -77,7 +87,7 @@ impl Fluid {
                 let (rho_l, rho_v) = guess(kk);
                 self.akasaka(t, rho_l, rho_v, opts).ok().filter(plausible)
             })
-            .map(|s| self.refine_saturation(s))
+            .map(|s| self.refine_saturation_at(s, t_exact))
     }
 
     /// Newton's method on Akasaka's J(delta_L) = J(delta_V), K(delta_L) = K(delta_V) with the residuals in
@@ -85,11 +95,12 @@ impl Fluid {
     /// `None` when it does not converge.
     pub(crate) fn solve_saturation_extended(
         &self,
-        t: f64,
+        t_exact: Dd,
         rho_l0: f64,
         rho_v0: f64,
     ) -> Option<SatMolar> {
-        let tau = Dd::from(self.t_r) / Dd::from(t);
+        let t = t_exact.to_f64();
+        let tau = Dd::from(self.t_r) / t_exact;
         let iso = ResidualAtTau::<Dd>::new(self.data, tau);
         let dc = self.rho_c / self.rho_r;
         let (mut dl, mut dv) = (Dd::from(rho_l0 / self.rho_r), Dd::from(rho_v0 / self.rho_r));
@@ -153,7 +164,7 @@ impl Fluid {
         }
         // the vapour side gives p without cancellation at low density
         let v = iso.eval(dv);
-        let p = (dv * (v.delta_a_d + 1.0) * (self.rho_r * self.r * t)).to_f64();
+        let p = (dv * (v.delta_a_d + 1.0) * t_exact * (self.rho_r * self.r)).to_f64();
         let (rho_l, rho_v) = (dl.to_f64() * self.rho_r, dv.to_f64() * self.rho_r);
         Some(SatMolar {
             t,
@@ -166,3 +177,4 @@ impl Fluid {
         })
     }
 }
+

@@ -12,8 +12,8 @@
 //!   [`Fluid::solve_saturation_from_temperature`], [`Fluid::solve_saturation_from_pressure`]) and fast
 //!   curves fitted to it at first use (piecewise Chebyshev "superancillaries",
 //!   [`Fluid::saturation_from_temperature`], [`Fluid::saturation_from_pressure`]), within 1e-9 from the
-//!   triple point to 1e-10 T_c below T_c (carbon dioxide 3e-9 closer still). Next to T_c, where double
-//!   precision cannot resolve the merging phases, the full solver finishes in double-double arithmetic.
+//!   triple point to 1e-12 T_c below T_c. Next to T_c, where double precision cannot resolve the merging
+//!   phases, the full solver finishes in double-double arithmetic.
 //! * Single-phase density from (T, p) on the asked branch ([`Fluid::density_from_temperature_pressure`],
 //!   [`Phase`]), the phase of a state ([`Fluid::phase_at`], [`PhaseKind`]), the saturated liquid of a given
 //!   enthalpy ([`Fluid::saturation_from_liquid_enthalpy`]) and the real-gas densities behind Nm³ and scf.

@@ -3,6 +3,7 @@
 //! started from the ancillary equations.
 
 use crate::SolverOptions;
+use crate::double_double::Dd;
 use crate::error::{FluidError, Quantity};
 use crate::fluid::{Fluid, check_positive};
 use crate::helmholtz::ResidualAtTau;
@@ -123,7 +124,10 @@ impl Fluid {
                         break;
                     }
                     t = t_new;
-                    sat = self.akasaka(t, sat.rho_l, sat.rho_v, opts)?;
+                    sat = match self.solve_saturation_extended(Dd::from(t), sat.rho_l, sat.rho_v) {
+                        Some(s) => s,
+                        None => self.refine_saturation(self.solve_saturation_molar(t, opts)?),
+                    };
                 }
                 // report the asked pressure: the state is at T_sat(p) to within tol
                 sat.p = p_pa;
@@ -231,7 +235,7 @@ impl Fluid {
         }
         let t_far = (tc - 10.0 * (tc - t)).max(tc * (1.0 - 2.0 * NEAR_CRITICAL));
         let far = self.refine_saturation(self.solve_saturation_molar(t_far, opts)?);
-        self.solve_saturation_near(t, &far, opts)
+        self.solve_saturation_near(Dd::from(t), &far, opts)
             .ok_or(FluidError::NotConverged {
                 fluid: self.id,
                 what: "saturation at fixed temperature",

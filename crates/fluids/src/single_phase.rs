@@ -7,6 +7,10 @@ use crate::helmholtz::ResidualAtTau;
 use crate::saturation::{Saturation, bracketed_root};
 use crate::{Phase, PhaseKind};
 
+/// Distance below T_c (fraction of T_c) within which saturation from pressure takes a Newton step on the
+/// forward curve after the inverse one.
+const POLISH_NEAR_CRITICAL: f64 = 1e-3;
+
 impl Fluid {
     /// The fast saturation curves, fitted at first use (a few tens of milliseconds, once per fluid).
     pub(crate) fn curves(&self) -> Result<&SatCurves, FluidError> {
@@ -34,8 +38,21 @@ impl Fluid {
         let p_pa = self.check_saturation_pressure(p_pa)?;
         let c = self.curves()?;
         let (tt, tc) = (self.triple.temperature_k, self.critical.temperature_k);
-        let t = c.t_from_ln_p(p_pa.ln()).clamp(tt, tc);
-        Ok(c.saturation_with_pressure(t, p_pa, &c.at_t(t)))
+        let ln_p = p_pa.ln();
+        let mut t = c.t_from_ln_p(ln_p).clamp(tt, tc);
+        let mut v = c.at_t(t);
+        if tc - t < POLISH_NEAR_CRITICAL * tc {
+            // Next to T_c the inverse expansion carries the roughness of the critical region (carbon
+            // dioxide: up to 2e-11 in T, which the steep densities there magnify): one Newton step on the
+            // forward ln p(T), slope by Clausius-Clapeyron, brings T to the forward curve's accuracy.
+            let slope = (v[4] - v[3]) / (t * (1.0 / v[2].exp() - 1.0 / v[1]) * v[0].exp());
+            let next = t - (v[0] - ln_p) / slope;
+            if slope > 0.0 && next.is_finite() {
+                t = next.clamp(tt, tc);
+                v = c.at_t(t);
+            }
+        }
+        Ok(c.saturation_with_pressure(t, p_pa, &v))
     }
 
     /// The saturated liquid whose specific enthalpy is `h_j_kg` (inverse of h_L(T) on the fast curves),

@@ -156,11 +156,12 @@ fn maxwell_equal_areas() {
 }
 
 /// Source: the acceptance, fast curves within 1e-9 of the full solver, checked densely from the
-/// triple point to 1e-4 T_c below the critical point (10-30 mK), then from there to 1e-10 T_c (10-30 nK),
-/// where the full solver runs in double-double (in double precision alone it would be good to only ~1e-7
-/// at 1e-6 T_c). Measured worst: 7e-13 to 1e-4 T_c, 1.8e-10 to 1e-10 T_c (carbon dioxide). Between
-/// 1e-10 and 1e-12 T_c every fluid stays within 1e-9 (measured 6e-10, methane) except carbon dioxide,
-/// whose Span-Wagner non-analytic terms make the curve non-smooth there (measured 2.3e-9, allowed 3e-9).
+/// triple point to 1e-4 T_c below the critical point (10-30 mK), from there to 1e-10 T_c (10-30 nK), and on
+/// to 1e-12 T_c, where the full solver runs in double-double (in double precision alone it is good to only
+/// ~1e-7 at 1e-6 T_c). Measured worst: 7e-13 to 1e-4 T_c, 2e-13 to 1e-10 T_c, 4e-13 to 1e-12 T_c (carbon
+/// dioxide, whose curve has a kink where it crosses the non-analytic terms' singular line). Within the last
+/// 1e-12 T_c (a few hundred units in the last place of T) the curves run straight to the critical point and
+/// T's own rounding sets the agreement: the bound there is 1e-5 (measured 8e-7 to 7e-6).
 /// Enthalpies against the scale R T_c / M.
 #[test]
 fn fast_curves_agree_with_full_solver() {
@@ -172,14 +173,15 @@ fn fast_curves_agree_with_full_solver() {
         let f = fluid(id);
         let (tt, tc) = (f.triple().temperature_k, f.critical().temperature_k);
         let h_scale = f.gas_constant_j_mol_k() * tc / f.molar_mass_kg_mol();
-        let mut worst = [0.0f64; 3];
+        let mut worst = [0.0f64; 4];
         // 400 T spread evenly, 40 crowding toward 1e-4 T_c below T_c, 20 from there to 1e-6 T_c
         let even = lin(tt, tc * (1.0 - 1e-4), 400).map(|t| (t, 0));
         let near = (0..40).map(|k| (tc * (1.0 - 10f64.powf(-1.0 - 3.0 * f64::from(k) / 39.0)), 0));
         let nearest =
             (0..40).map(|k| (tc * (1.0 - 10f64.powf(-4.0 - 6.0 * f64::from(k) / 39.0)), 1));
         let closest = (0..10).map(|k| (tc * (1.0 - 10f64.powf(-10.2 - 0.2 * f64::from(k))), 2));
-        for (t, band) in even.chain(near).chain(nearest).chain(closest) {
+        let sliver = (0..10).map(|k| (tc * (1.0 - 10f64.powf(-12.2 - 0.2 * f64::from(k))), 3));
+        for (t, band) in even.chain(near).chain(nearest).chain(closest).chain(sliver) {
             let fast = f.saturation_from_temperature(t).unwrap();
             let full = f
                 .solve_saturation_from_temperature(t, &opts)
@@ -192,12 +194,7 @@ fn fast_curves_agree_with_full_solver() {
                 (fast.vapor_enthalpy_j_kg - full.vapor_enthalpy_j_kg).abs() / h_scale,
             ];
             let d = devs.iter().copied().fold(0.0, f64::max);
-            let closest_tol = if id == FluidId::CarbonDioxide {
-                3e-9
-            } else {
-                1e-9
-            };
-            let tol = [1e-9, 1e-9, closest_tol][band];
+            let tol = [1e-9, 1e-9, 1e-9, 1e-5][band];
             assert!(
                 d <= tol,
                 "{id} at T = {t} K (1 - T/Tc = {:.1e}): deviations {devs:?}",
@@ -206,8 +203,8 @@ fn fast_curves_agree_with_full_solver() {
             worst[band] = worst[band].max(d);
         }
         println!(
-            "{id}: fast vs full saturation, worst {:.2e} up to 1e-4 Tc below Tc, {:.2e} from there to 1e-10 Tc, {:.2e} to 1e-12 Tc",
-            worst[0], worst[1], worst[2]
+            "{id}: fast vs full saturation, worst {:.2e} up to 1e-4 Tc below Tc, {:.2e} from there to 1e-10 Tc, {:.2e} to 1e-12 Tc, {:.2e} closer (allowed 1e-5)",
+            worst[0], worst[1], worst[2], worst[3]
         );
     }
 }
@@ -362,4 +359,31 @@ fn liquid_density_from_t_p_converged_to_round_off() {
         }
     }
     println!("worst density residual {worst:.2} of the allowance");
+}
+
+/// Source: the same acceptance next to the critical pressure, 1e-4 to 1e-8 p_c below p_c (T within 2e-9
+/// T_c of T_c), where the full solver finishes in double-double: T_sat and both densities within 1e-9.
+/// Closer still, one unit in the last place of T moves the densities by more than that.
+#[test]
+fn saturation_from_pressure_fast_vs_full_near_critical() {
+    let opts = SolverOptions::default();
+    for id in FluidId::ALL {
+        let f = fluid(id);
+        let pc = f.critical().pressure_pa;
+        let mut worst: f64 = 0.0;
+        for k in 0..21 {
+            let p = pc * (1.0 - 10f64.powf(-4.0 - 0.2 * f64::from(k)));
+            let fast = f.saturation_from_pressure(p).unwrap();
+            let full = f.solve_saturation_from_pressure(p, &opts).unwrap();
+            let devs = [
+                rel(fast.temperature_k, full.temperature_k),
+                rel(fast.liquid_density_kg_m3, full.liquid_density_kg_m3),
+                rel(fast.vapor_density_kg_m3, full.vapor_density_kg_m3),
+            ];
+            let d = devs.iter().copied().fold(0.0, f64::max);
+            assert!(d <= 1e-9, "{id} at {p} Pa: deviations {devs:?}");
+            worst = worst.max(d);
+        }
+        println!("{id}: fast vs full saturation from p within 1e-4 p_c of p_c, worst {worst:.2e}");
+    }
 }
