@@ -97,8 +97,11 @@ pub(crate) struct SatCurves {
     tc: f64,
     /// upper T bound of each forward piece, ascending
     t_upper: Vec<f64>,
+    /// finds the piece of a T without a binary search
+    t_index: PieceIndex,
     pieces: Vec<Piece>,
     lnp_upper: Vec<f64>,
+    lnp_index: PieceIndex,
     inverse: Vec<InversePiece>,
     pub(crate) info: CurveInfo,
 }
@@ -295,9 +298,11 @@ impl SatCurves {
         let t_upper: Vec<f64> = pieces.iter().map(upper).collect();
         let mut curves = SatCurves {
             tc,
+            t_index: PieceIndex::new(tt, &t_upper),
             t_upper,
             pieces,
             lnp_upper: Vec::new(),
+            lnp_index: PieceIndex::new(0.0, &[]),
             inverse: Vec::new(),
             info: CurveInfo {
                 degree: chebyshev::DEGREE,
@@ -363,6 +368,7 @@ impl SatCurves {
         }
         inverse.sort_by(|a, b| a.hi.total_cmp(&b.hi));
         self.lnp_upper = inverse.iter().map(|p| p.hi).collect();
+        self.lnp_index = PieceIndex::new(lnp_lo, &self.lnp_upper);
         self.inverse = inverse;
         Ok(())
     }
@@ -386,10 +392,7 @@ impl SatCurves {
         t: f64,
         table: impl Fn(&Piece) -> &[[f64; M]; LEN],
     ) -> [f64; M] {
-        let i = self
-            .t_upper
-            .partition_point(|&u| u < t)
-            .min(self.pieces.len().saturating_sub(1));
+        let i = self.t_index.find(&self.t_upper, t);
         let Some(p) = self.pieces.get(i) else {
             return [f64::NAN; M];
         };
@@ -415,10 +418,7 @@ impl SatCurves {
     /// T_sat at ln p (ln p within the curve's range).
     #[inline]
     pub(crate) fn t_from_ln_p(&self, ln_p: f64) -> f64 {
-        let i = self
-            .lnp_upper
-            .partition_point(|&u| u < ln_p)
-            .min(self.inverse.len().saturating_sub(1));
+        let i = self.lnp_index.find(&self.lnp_upper, ln_p);
         let Some(p) = self.inverse.get(i) else {
             return f64::NAN;
         };
@@ -493,4 +493,94 @@ fn liquid_slopes(fluid: &Fluid, t: f64, rho_l: f64) -> [f64; 2] {
         (fluid.p_dpdrho(&iso, t, rho_l + h).1 - fluid.p_dpdrho(&iso, t, rho_l - h).1) / (2.0 * h);
     let m = fluid.m;
     [d1 / m, d2 / (m * m)]
+}
+
+/// The piece holding a value, found through a uniform grid over the pieces' span: each cell stores the
+/// first piece whose upper bound reaches the cell, and a short forward scan finishes (usually no step).
+/// A binary search over 25-40 pieces costs several mispredicted branches per lookup.
+#[derive(Debug, Clone)]
+struct PieceIndex {
+    lo: f64,
+    /// cells per unit of the variable
+    scale: f64,
+    first: Vec<u32>,
+}
+
+impl PieceIndex {
+    const CELLS: usize = 512;
+
+    /// An index over pieces spanning [lo, last upper bound], with ascending upper bounds `upper`.
+    fn new(lo: f64, upper: &[f64]) -> Self {
+        let hi = upper.last().copied().unwrap_or(lo);
+        let scale = if hi > lo {
+            Self::CELLS as f64 / (hi - lo)
+        } else {
+            0.0
+        };
+        // each cell's start taken a hundredth of a cell early, so that rounding in `find` can never land
+        // past the piece it wants
+        let first = (0..Self::CELLS)
+            .map(|c| {
+                let start = lo + (c as f64 - 0.01) / scale;
+                upper.partition_point(|&u| u < start) as u32
+            })
+            .collect();
+        PieceIndex { lo, scale, first }
+    }
+
+    /// Index of the first piece whose upper bound is >= v (the last piece for v beyond all of them).
+    #[inline(always)]
+    fn find(&self, upper: &[f64], v: f64) -> usize {
+        let last = upper.len().saturating_sub(1);
+        let cell = ((v - self.lo) * self.scale).max(0.0) as usize;
+        let mut i = self
+            .first
+            .get(cell.min(Self::CELLS - 1))
+            .map_or(0, |&f| f as usize);
+        while i < last && upper.get(i).is_some_and(|&u| u < v) {
+            i += 1;
+        }
+        i.min(last)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    #![allow(clippy::unwrap_used)]
+    use crate::{FluidId, fluid};
+
+    /// Source: definition (the grid index must find what a binary search finds), at random values, at every
+    /// piece boundary and just either side of it, and outside the span.
+    #[test]
+    fn piece_index_agrees_with_binary_search() {
+        let binary = |upper: &[f64], v: f64| {
+            upper
+                .partition_point(|&u| u < v)
+                .min(upper.len().saturating_sub(1))
+        };
+        let mut state = 0x2545_f491_4f6c_dd1d_u64;
+        let mut next = || {
+            state ^= state << 13;
+            state ^= state >> 7;
+            state ^= state << 17;
+            (state >> 11) as f64 / (1u64 << 53) as f64
+        };
+        for id in FluidId::ALL {
+            let c = fluid(id).curves().unwrap();
+            for (index, upper, lo) in [
+                (&c.t_index, &c.t_upper, c.t_index.lo),
+                (&c.lnp_index, &c.lnp_upper, c.lnp_index.lo),
+            ] {
+                let hi = *upper.last().unwrap();
+                let mut probes: Vec<f64> = (0..20_000).map(|_| lo + (hi - lo) * next()).collect();
+                for &u in upper.iter() {
+                    probes.extend([u, u.next_down(), u.next_up()]);
+                }
+                probes.extend([lo - 1.0, lo, hi, hi + 1.0, f64::NAN]);
+                for v in probes {
+                    assert_eq!(index.find(upper, v), binary(upper, v), "{id} at {v}");
+                }
+            }
+        }
+    }
 }
