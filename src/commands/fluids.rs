@@ -112,13 +112,20 @@ pub fn state(a: StateArgs) -> Result<ExitCode> {
     match a.format {
         Format::Json => print_json(&r)?,
         Format::Table => {
-            let v = serde_json::to_value(r)?;
             println!("{} at {} and {}", id.name(), a.temperature, a.pressure);
-            if let serde_json::Value::Object(m) = v {
-                for (k, v) in m {
-                    println!("  {k:<24} {v}");
-                }
-            }
+            println!("  phase              {:>14}", r.phase);
+            println!(
+                "  temperature        {:>14.4} K  ({:.2} C)",
+                r.temperature_k,
+                r.temperature_k - 273.15
+            );
+            println!(
+                "  pressure           {:>14.2} Pa ({:.4} bara)",
+                r.pressure_pa,
+                r.pressure_pa / 1e5
+            );
+            println!("  density            {:>14.4} kg/m3", r.density_kg_m3);
+            println!("  enthalpy           {:>14.1} J/kg", r.enthalpy_j_kg);
         }
     }
     Ok(ExitCode::SUCCESS)

@@ -108,6 +108,34 @@ fn saturation_and_state_commands() {
     );
     assert_eq!(st["phase"], "liquid");
     assert!(st["density_kg_m3"].as_f64().unwrap() > 700.0);
+    // Without --format json: a short table with units (common practice, no source), the same density.
+    let out = bin()
+        .args([
+            "state",
+            "--fluid",
+            "nitrogen",
+            "--temperature",
+            "90 K",
+            "--pressure",
+            "10 bara",
+        ])
+        .output()
+        .unwrap();
+    assert!(out.status.success());
+    let text = String::from_utf8_lossy(&out.stdout);
+    let density_line = text
+        .lines()
+        .find(|l| l.trim_start().starts_with("density"))
+        .unwrap_or_else(|| panic!("no density line in {text}"));
+    assert!(density_line.ends_with("kg/m3"), "{density_line}");
+    let shown: f64 = density_line
+        .split_whitespace()
+        .nth(1)
+        .unwrap()
+        .parse()
+        .unwrap();
+    assert!((shown - st["density_kg_m3"].as_f64().unwrap()).abs() < 1e-4);
+    assert!(text.contains("liquid"), "{text}");
     // Errors: CO2 below its triple-point pressure (517.95 kPa, Span & Wagner 1996) is refused with words.
     let out = bin()
         .args([

@@ -178,7 +178,7 @@ pub enum PhaseKind {
 
 impl std::fmt::Display for PhaseKind {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        f.write_str(match self {
+        f.pad(match self {
             PhaseKind::Liquid => "liquid",
             PhaseKind::Gas => "gas",
             PhaseKind::Supercritical => "supercritical",
