@@ -7,6 +7,8 @@ use std::process::ExitCode;
 use store::{ImportFiles, ImportOptions, Store, StoreError};
 
 /// Arguments of `import`.
+// the optional CSV columns are written in brackets in the --help text, not as doc links
+#[allow(rustdoc::broken_intra_doc_links)]
 #[derive(Args)]
 pub struct ImportArgs {
     /// Database file (created if missing)

@@ -37,7 +37,7 @@ enum Var {
     T,
     /// Chebyshev in x = sqrt(T_c - T)
     SqrtFromCritical,
-    /// the sliver [0, hi] in x next to T_c: c[0] at the critical point, c[0] + c[1] at x = hi; ln p goes
+    /// the sliver \[0, hi\] in x next to T_c: c\[0\] at the critical point, c\[0\] + c\[1\] at x = hi; ln p goes
     /// linearly in T, the others linearly in x
     Critical,
 }

@@ -58,7 +58,7 @@ pub struct StateProperties {
 }
 
 /// A fluid: its equation of state, saturation solvers and fast saturation curves. Get one with
-/// [`crate::fluid`]; all methods take `&self` and the type is `Sync`.
+/// [`crate::fluid()`]; all methods take `&self` and the type is `Sync`.
 #[derive(Debug)]
 pub struct Fluid {
     pub(crate) id: FluidId,

@@ -1,7 +1,7 @@
 //! Reference equations of state of the cryogenic fluids cryoledger meets, and what a tank reading needs
 //! from them.
 //!
-//! * [`FluidId`] names a fluid; [`fluid`] returns its [`Fluid`] (built once, shared, `Sync`).
+//! * [`FluidId`] names a fluid; [`fluid()`] returns its [`Fluid`] (built once, shared, `Sync`).
 //! * Each [`Fluid`] is a Helmholtz-energy equation of state, a/RT = a0(delta, tau) + ar(delta, tau), with
 //!   analytic derivatives: [`Fluid::state`] gives p, dp/drho, h, s, cv, cp and the speed of sound at (T, rho).
 //!   Equations: nitrogen (Span et al. 2000), oxygen (Schmidt and Wagner 1985), argon (Tegeler et al. 1999),
