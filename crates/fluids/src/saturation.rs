@@ -97,38 +97,44 @@ impl Fluid {
         } else {
             bracketed_root(g, tt, tc, 1e-12, 200).unwrap_or(0.5 * (tt + tc))
         };
-        let mut sat = self.solve_saturation_molar(t, opts)?;
+        // the state at a new T from the one at the last T: in double precision, or, next to T_c where the
+        // last one needed double-double, in double-double from it scaled toward the critical point (p(T)
+        // from double precision alone is too noisy there for Newton's method to settle)
+        let next = |t: f64, prev: &SatMolar| -> Result<SatMolar, FluidError> {
+            let s = if prev.extended {
+                self.solve_saturation_near(Dd::from(t), prev, opts)
+            } else {
+                self.akasaka(t, prev.rho_l, prev.rho_v, opts).ok()
+            };
+            let s = match s {
+                Some(s) => s,
+                None => self.solve_saturation_molar(t, opts)?,
+            };
+            Ok(self.refine_saturation(s))
+        };
+        let mut sat = self.refine_saturation(self.solve_saturation_molar(t, opts)?);
         let mut residual = f64::INFINITY;
+        let mut dlnp_dt = f64::NAN;
         for _ in 0..opts.max_iter {
             residual = sat.p.ln() - ln_p;
-            let dlnp_dt = (sat.h_v - sat.h_l) / (t * (1.0 / sat.rho_v - 1.0 / sat.rho_l) * sat.p);
+            // Clausius-Clapeyron; at the critical point itself (0/0) the last slope stands in for its limit
+            let slope = (sat.h_v - sat.h_l) / (t * (1.0 / sat.rho_v - 1.0 / sat.rho_l) * sat.p);
+            if slope.is_finite() && slope > 0.0 {
+                dlnp_dt = slope;
+            }
             let mut t_new = t - residual / dlnp_dt;
             if !t_new.is_finite() {
                 break;
             }
-            t_new = t_new.clamp(tt, tc);
+            if t_new >= tc {
+                // stay below T_c, where two phases exist: halve the distance to it instead
+                t_new = 0.5 * (t + tc);
+            }
+            let t_new = t_new.max(tt);
             let step = t_new - t;
             t = t_new;
-            sat = match self.akasaka(t, sat.rho_l, sat.rho_v, opts) {
-                Ok(s) => s,
-                Err(_) => self.solve_saturation_molar(t, opts)?,
-            };
+            sat = next(t, &sat)?;
             if step.abs() <= opts.tol * t {
-                // near T_c the double-precision p(T) is noisy: finish on the refined one
-                for _ in 0..4 {
-                    let refined = self.refine_saturation(sat);
-                    let dt = -(refined.p.ln() - ln_p) / dlnp_dt;
-                    sat = refined;
-                    let t_new = (t + dt).clamp(tt, tc);
-                    if !t_new.is_finite() || (t_new - t).abs() <= 1e-15 * t {
-                        break;
-                    }
-                    t = t_new;
-                    sat = match self.solve_saturation_extended(Dd::from(t), sat.rho_l, sat.rho_v) {
-                        Some(s) => s,
-                        None => self.refine_saturation(self.solve_saturation_molar(t, opts)?),
-                    };
-                }
                 // report the asked pressure: the state is at T_sat(p) to within tol
                 sat.p = p_pa;
                 return Ok(sat.to_mass(self.m));

@@ -387,3 +387,33 @@ fn saturation_from_pressure_fast_vs_full_near_critical() {
         println!("{id}: fast vs full saturation from p within 1e-4 p_c of p_c, worst {worst:.2e}");
     }
 }
+
+/// Source: definition (a saturation state exists from the triple point up to the critical point, so both
+/// solvers must return one): 1 - T/T_c and 1 - p/p_c at 10^-k for k = 0 to 16 in steps of 0.05, the fast
+/// curves and the full solver, no error anywhere (the full solver's Newton on T must neither overshoot T_c
+/// nor stall on the 0/0 Clausius-Clapeyron slope at the critical point).
+#[test]
+fn saturation_exists_all_the_way_to_the_critical_point() {
+    let opts = SolverOptions::default();
+    for id in FluidId::ALL {
+        let f = fluid(id);
+        let (tc, pc) = (f.critical().temperature_k, f.critical().pressure_pa);
+        for i in 0..=320 {
+            let d = 10f64.powf(-f64::from(i) / 20.0);
+            let t = tc * (1.0 - d);
+            if t >= f.triple().temperature_k {
+                f.saturation_from_temperature(t)
+                    .unwrap_or_else(|e| panic!("{id} fast at 1 - T/Tc = {d:e}: {e}"));
+                f.solve_saturation_from_temperature(t, &opts)
+                    .unwrap_or_else(|e| panic!("{id} full at 1 - T/Tc = {d:e}: {e}"));
+            }
+            let p = pc * (1.0 - d);
+            if p >= f.triple().pressure_pa {
+                f.saturation_from_pressure(p)
+                    .unwrap_or_else(|e| panic!("{id} fast at 1 - p/pc = {d:e}: {e}"));
+                f.solve_saturation_from_pressure(p, &opts)
+                    .unwrap_or_else(|e| panic!("{id} full at 1 - p/pc = {d:e}: {e}"));
+            }
+        }
+    }
+}
