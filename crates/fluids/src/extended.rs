@@ -40,14 +40,7 @@ impl Fluid {
         match self.solve_saturation_extended(t, s.rho_l, s.rho_v) {
             // a refinement moves the densities by the double-precision noise; a gap that changes a lot is
             // the trivial solution (both phases at one density), not a refinement
-            Some(r)
-                if {
-                    let ratio = (r.rho_l - r.rho_v) / (s.rho_l - s.rho_v);
-                    ratio > 0.5 && ratio < 2.0
-                } =>
-            {
-                r
-            }
+            Some(r) if gap_near(&r, s.rho_l - s.rho_v) => r,
             _ => s,
         }
     }
@@ -71,10 +64,7 @@ impl Fluid {
         let k = ((tc - t) / (tc - near.t)).sqrt();
         let rc = self.rho_c;
         let expected_gap = k * (near.rho_l - near.rho_v);
-        let plausible = |s: &SatMolar| {
-            let ratio = (s.rho_l - s.rho_v) / expected_gap;
-            ratio > 0.5 && ratio < 2.0
-        };
+        let plausible = |s: &SatMolar| gap_near(s, expected_gap);
         let guess = |kk: f64| (rc + kk * (near.rho_l - rc), rc + kk * (near.rho_v - rc));
         let (rho_l, rho_v) = guess(k);
         if let Some(s) = self
@@ -178,4 +168,11 @@ impl Fluid {
             extended: true,
         })
     }
+}
+
+/// Whether the density gap of `s` is within a factor of two of `gap`: a solution, not the trivial one with
+/// both phases at one density.
+fn gap_near(s: &SatMolar, gap: f64) -> bool {
+    let ratio = (s.rho_l - s.rho_v) / gap;
+    ratio > 0.5 && ratio < 2.0
 }
