@@ -3,7 +3,7 @@
 
 use crate::action::Action;
 use crate::fmt;
-use crate::panels::widgets::{self, Column};
+use crate::panels::widgets::{self, Column, LogRow};
 use crate::style;
 use crate::view::{DeliveryForm, ViewState};
 use egui::{RichText, Ui};
@@ -38,61 +38,41 @@ pub fn deliveries_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
         ))
         .color(style::MUTED),
     );
-    egui::ScrollArea::horizontal()
-        .id_salt("deliveries_h")
-        .show(ui, |ui| {
-            ui.vertical(|ui| {
-                ui.spacing_mut().item_spacing.y = 0.0;
-                widgets::header(ui, &cols);
-                let editing = view.delivery_form.editing;
-                egui::ScrollArea::vertical()
-                    .id_salt("deliveries_v")
-                    .auto_shrink([false, false])
-                    .show_rows(ui, widgets::ROW_HEIGHT, t.deliveries.len(), |ui, range| {
-                        for i in range {
-                            let Some(d) = t.deliveries.get(i) else {
-                                continue;
-                            };
-                            let cells = vec![
-                                d.ticket.clone(),
-                                fmt::date_time(d.start_ms),
-                                fmt::num((d.end_ms - d.start_ms) as f64 / 60_000.0, 0),
-                                d.quantity_text.clone(),
-                                d.supply_text.clone(),
-                                d.vehicle.clone(),
-                                d.carrier.clone(),
-                            ];
-                            if widgets::row(
-                                ui,
-                                &cols,
-                                &cells,
-                                editing == Some(d.id),
-                                i % 2 == 1,
-                                None,
-                            ) {
-                                out.push(Action::SelectDelivery(Some(d.id)));
-                            }
-                        }
-                    });
-            });
-        });
+    let clicked = widgets::record_log(
+        ui,
+        "deliveries",
+        &cols,
+        t.deliveries.len(),
+        view.delivery_form.editing,
+        |i| {
+            let d = t.deliveries.get(i)?;
+            Some(LogRow {
+                id: d.id,
+                cells: vec![
+                    d.ticket.clone(),
+                    fmt::date_time(d.start_ms),
+                    fmt::num((d.end_ms - d.start_ms) as f64 / 60_000.0, 0),
+                    d.quantity_text.clone(),
+                    d.supply_text.clone(),
+                    d.vehicle.clone(),
+                    d.carrier.clone(),
+                ],
+                colour: None,
+            })
+        },
+    );
+    if let Some(id) = clicked {
+        out.push(Action::SelectDelivery(Some(id)));
+    }
 }
 
 fn form_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
     let f = &view.delivery_form;
     let check = &view.delivery_check;
     let editing = f.editing.is_some();
-    ui.add_space(4.0);
-    ui.horizontal(|ui| {
-        ui.heading(if editing {
-            "Edit delivery"
-        } else {
-            "New delivery"
-        });
-        if editing && ui.small_button("New delivery").clicked() {
-            out.push(Action::SelectDelivery(None));
-        }
-    });
+    if widgets::form_heading(ui, "delivery", editing) {
+        out.push(Action::SelectDelivery(None));
+    }
     let mut next: Option<DeliveryForm> = None;
     let mut set = |g: &mut dyn FnMut(&mut DeliveryForm)| {
         let mut n = next.clone().unwrap_or_else(|| f.clone());
@@ -167,17 +147,8 @@ fn form_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
         }
     });
     widgets::messages(ui, check, "supply_pressure");
-    if editing {
-        if let Some(v) = widgets::text_field(
-            ui,
-            "Reason for the change",
-            &f.reason,
-            300.0,
-            "required to edit or delete",
-        ) {
-            set(&mut |n| n.reason = v.clone());
-        }
-        widgets::messages(ui, check, "reason");
+    if editing && let Some(v) = widgets::reason_field(ui, &f.reason, check) {
+        set(&mut |n| n.reason = v.clone());
     }
     if let Some(n) = next {
         out.push(Action::EditDeliveryForm(n));
@@ -186,38 +157,16 @@ fn form_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
         ui.label(RichText::new(line).color(style::MUTED));
     }
     ui.add_space(6.0);
-    ui.horizontal(|ui| {
-        let label = if editing {
-            "Save change"
-        } else {
-            "Save delivery"
-        };
-        if widgets::action_button(ui, label, check.ok) {
-            out.push(Action::SaveDelivery);
-        }
-        if editing && widgets::action_button(ui, "Delete delivery", !f.reason.trim().is_empty()) {
-            out.push(Action::DeleteDelivery);
-        }
-    });
+    let (save, delete) = widgets::save_and_delete(ui, "delivery", editing, check.ok, &f.reason);
+    if save {
+        out.push(Action::SaveDelivery);
+    }
+    if delete {
+        out.push(Action::DeleteDelivery);
+    }
     if let Some(t) = &view.tank
         && editing
     {
-        ui.add_space(8.0);
-        ui.label(RichText::new("History of this delivery").strong());
-        if t.history.is_empty() {
-            ui.label(
-                RichText::new("No earlier versions.")
-                    .small()
-                    .color(style::MUTED),
-            );
-        }
-        for h in &t.history {
-            ui.label(RichText::new(format!("{} — {}: {}", h.when, h.action, h.reason)).small());
-            ui.label(
-                RichText::new(format!("was {}", h.old))
-                    .small()
-                    .color(style::MUTED),
-            );
-        }
+        widgets::record_history(ui, "delivery", &t.history);
     }
 }

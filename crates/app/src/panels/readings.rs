@@ -4,7 +4,7 @@
 
 use crate::action::Action;
 use crate::fmt::{self, UnitSystem};
-use crate::panels::widgets::{self, Column};
+use crate::panels::widgets::{self, Column, LogRow};
 use crate::style;
 use crate::view::{ReadingForm, ViewState};
 use egui::{RichText, Ui};
@@ -42,85 +42,64 @@ pub fn readings_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
         ))
         .color(style::MUTED),
     );
-    egui::ScrollArea::horizontal()
-        .id_salt("readings_h")
-        .show(ui, |ui| {
-            ui.vertical(|ui| {
-                ui.spacing_mut().item_spacing.y = 0.0;
-                widgets::header(ui, &cols);
-                let editing = view.reading_form.editing;
-                egui::ScrollArea::vertical()
-                    .id_salt("readings_v")
-                    .auto_shrink([false, false])
-                    .show_rows(ui, widgets::ROW_HEIGHT, t.readings.len(), |ui, range| {
-                        for i in range {
-                            let Some(r) = t.readings.get(i) else { continue };
-                            let dp = r.dp_text.split(' ').next().unwrap_or("").to_owned();
-                            let cells: Vec<String> = match &r.contents {
-                                Ok(c) => {
-                                    let vd = if units == UnitSystem::Si { 3 } else { 0 };
-                                    vec![
-                                        fmt::date_time(r.time_ms),
-                                        dp,
-                                        r.pressure_text.clone(),
-                                        fmt::num(units.mass(c.mass_kg.value), 0),
-                                        c.mass_kg
-                                            .u
-                                            .map(|u| fmt::num(units.mass(u), 0))
-                                            .unwrap_or_default(),
-                                        fmt::num(c.fill.value * 100.0, 1),
-                                        fmt::num(units.volume(c.volume_m3.value), vd),
-                                        fmt::num(
-                                            fmt::gas(units, c.gas_nm3.value, c.gas_scf.value),
-                                            0,
-                                        ),
-                                        r.note.clone(),
-                                    ]
-                                }
-                                Err(e) => vec![
-                                    fmt::date_time(r.time_ms),
-                                    dp,
-                                    r.pressure_text.clone(),
-                                    "refused".into(),
-                                    String::new(),
-                                    String::new(),
-                                    String::new(),
-                                    String::new(),
-                                    e.clone(),
-                                ],
-                            };
-                            let colour = r.contents.is_err().then_some(style::ERROR);
-                            if widgets::row(
-                                ui,
-                                &cols,
-                                &cells,
-                                editing == Some(r.id),
-                                i % 2 == 1,
-                                colour,
-                            ) {
-                                out.push(Action::SelectReading(Some(r.id)));
-                            }
-                        }
-                    });
-            });
-        });
+    let clicked = widgets::record_log(
+        ui,
+        "readings",
+        &cols,
+        t.readings.len(),
+        view.reading_form.editing,
+        |i| {
+            let r = t.readings.get(i)?;
+            let dp = r.dp_text.split(' ').next().unwrap_or("").to_owned();
+            let cells: Vec<String> = match &r.contents {
+                Ok(c) => {
+                    let vd = if units == UnitSystem::Si { 3 } else { 0 };
+                    vec![
+                        fmt::date_time(r.time_ms),
+                        dp,
+                        r.pressure_text.clone(),
+                        fmt::num(units.mass(c.mass_kg.value), 0),
+                        c.mass_kg
+                            .u
+                            .map(|u| fmt::num(units.mass(u), 0))
+                            .unwrap_or_default(),
+                        fmt::num(c.fill.value * 100.0, 1),
+                        fmt::num(units.volume(c.volume_m3.value), vd),
+                        fmt::num(fmt::gas(units, c.gas_nm3.value, c.gas_scf.value), 0),
+                        r.note.clone(),
+                    ]
+                }
+                Err(e) => vec![
+                    fmt::date_time(r.time_ms),
+                    dp,
+                    r.pressure_text.clone(),
+                    "refused".into(),
+                    String::new(),
+                    String::new(),
+                    String::new(),
+                    String::new(),
+                    e.clone(),
+                ],
+            };
+            Some(LogRow {
+                id: r.id,
+                cells,
+                colour: r.contents.is_err().then_some(style::ERROR),
+            })
+        },
+    );
+    if let Some(id) = clicked {
+        out.push(Action::SelectReading(Some(id)));
+    }
 }
 
 fn form_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
     let f = &view.reading_form;
     let check = &view.reading_check;
     let editing = f.editing.is_some();
-    ui.add_space(4.0);
-    ui.horizontal(|ui| {
-        ui.heading(if editing {
-            "Edit reading"
-        } else {
-            "New reading"
-        });
-        if editing && ui.small_button("New reading").clicked() {
-            out.push(Action::SelectReading(None));
-        }
-    });
+    if widgets::form_heading(ui, "reading", editing) {
+        out.push(Action::SelectReading(None));
+    }
     let mut next: Option<ReadingForm> = None;
     let mut set = |g: &mut dyn FnMut(&mut ReadingForm)| {
         let mut n = next.clone().unwrap_or_else(|| f.clone());
@@ -192,17 +171,8 @@ fn form_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
     if let Some(v) = widgets::text_field(ui, "Note (optional)", &f.note, 300.0, "") {
         set(&mut |n| n.note = v.clone());
     }
-    if editing {
-        if let Some(v) = widgets::text_field(
-            ui,
-            "Reason for the change",
-            &f.reason,
-            300.0,
-            "required to edit or delete",
-        ) {
-            set(&mut |n| n.reason = v.clone());
-        }
-        widgets::messages(ui, check, "reason");
+    if editing && let Some(v) = widgets::reason_field(ui, &f.reason, check) {
+        set(&mut |n| n.reason = v.clone());
     }
     if let Some(n) = next {
         out.push(Action::EditReadingForm(n));
@@ -232,38 +202,16 @@ fn form_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
         );
     }
     ui.add_space(6.0);
-    ui.horizontal(|ui| {
-        let label = if editing {
-            "Save change"
-        } else {
-            "Save reading"
-        };
-        if widgets::action_button(ui, label, check.ok) {
-            out.push(Action::SaveReading);
-        }
-        if editing && widgets::action_button(ui, "Delete reading", !f.reason.trim().is_empty()) {
-            out.push(Action::DeleteReading);
-        }
-    });
+    let (save, delete) = widgets::save_and_delete(ui, "reading", editing, check.ok, &f.reason);
+    if save {
+        out.push(Action::SaveReading);
+    }
+    if delete {
+        out.push(Action::DeleteReading);
+    }
     if let Some(t) = &view.tank
         && editing
     {
-        ui.add_space(8.0);
-        ui.label(RichText::new("History of this reading").strong());
-        if t.history.is_empty() {
-            ui.label(
-                RichText::new("No earlier versions.")
-                    .small()
-                    .color(style::MUTED),
-            );
-        }
-        for h in &t.history {
-            ui.label(RichText::new(format!("{} — {}: {}", h.when, h.action, h.reason)).small());
-            ui.label(
-                RichText::new(format!("was {}", h.old))
-                    .small()
-                    .color(style::MUTED),
-            );
-        }
+        widgets::record_history(ui, "reading", &t.history);
     }
 }

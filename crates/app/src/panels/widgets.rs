@@ -2,7 +2,7 @@
 //! table cells. Every interactive widget gets an accessible name.
 
 use crate::style;
-use crate::view::FormCheck;
+use crate::view::{FormCheck, HistoryRow};
 use egui::{Align, Color32, Layout, Rect, RichText, Role, Ui, UiBuilder, WidgetInfo, vec2};
 
 /// A single-line text field with a label above it; returns the new text when it changed.
@@ -227,4 +227,126 @@ pub fn message_line(ui: &mut Ui, notice: Option<&str>, error: Option<&str>) -> b
         });
     }
     dismissed
+}
+
+/// One line of a record log: the record's id, its cells, and an ink colour when it is not the usual one.
+pub struct LogRow {
+    /// The record's id (what a click selects).
+    pub id: i64,
+    /// One text per column.
+    pub cells: Vec<String>,
+    /// Ink of the whole line, e.g. for a refused reading.
+    pub colour: Option<Color32>,
+}
+
+/// A record log: the header, then the lines (only those in view are laid out) inside a horizontal and a
+/// vertical scroll area named after `salt`. `line(i)` gives line i; returns the id of a clicked line.
+pub fn record_log(
+    ui: &mut Ui,
+    salt: &str,
+    cols: &[Column],
+    len: usize,
+    selected: Option<i64>,
+    mut line: impl FnMut(usize) -> Option<LogRow>,
+) -> Option<i64> {
+    let mut clicked = None;
+    egui::ScrollArea::horizontal()
+        .id_salt(format!("{salt}_h"))
+        .show(ui, |ui| {
+            ui.vertical(|ui| {
+                ui.spacing_mut().item_spacing.y = 0.0;
+                header(ui, cols);
+                egui::ScrollArea::vertical()
+                    .id_salt(format!("{salt}_v"))
+                    .auto_shrink([false, false])
+                    .show_rows(ui, ROW_HEIGHT, len, |ui, range| {
+                        for i in range {
+                            let Some(r) = line(i) else { continue };
+                            if row(
+                                ui,
+                                cols,
+                                &r.cells,
+                                selected == Some(r.id),
+                                i % 2 == 1,
+                                r.colour,
+                            ) {
+                                clicked = Some(r.id);
+                            }
+                        }
+                    });
+            });
+        });
+    clicked
+}
+
+/// The heading of a record form, "New {noun}" or "Edit {noun}", with a button back to a new record while
+/// editing; true when that button is clicked.
+pub fn form_heading(ui: &mut Ui, noun: &str, editing: bool) -> bool {
+    ui.add_space(4.0);
+    ui.horizontal(|ui| {
+        ui.heading(if editing {
+            format!("Edit {noun}")
+        } else {
+            format!("New {noun}")
+        });
+        editing && ui.small_button(format!("New {noun}")).clicked()
+    })
+    .inner
+}
+
+/// The reason asked for an edit or a deletion, with its messages; the new text when it changed.
+pub fn reason_field(ui: &mut Ui, reason: &str, check: &FormCheck) -> Option<String> {
+    let changed = text_field(
+        ui,
+        "Reason for the change",
+        reason,
+        300.0,
+        "required to edit or delete",
+    );
+    messages(ui, check, "reason");
+    changed
+}
+
+/// "Save {noun}" (or "Save change" while editing), enabled when the form checks out, and, while editing,
+/// "Delete {noun}", enabled once a reason is given. Returns (save clicked, delete clicked).
+pub fn save_and_delete(
+    ui: &mut Ui,
+    noun: &str,
+    editing: bool,
+    ok: bool,
+    reason: &str,
+) -> (bool, bool) {
+    ui.horizontal(|ui| {
+        let label = if editing {
+            "Save change".to_owned()
+        } else {
+            format!("Save {noun}")
+        };
+        let save = action_button(ui, &label, ok);
+        let delete =
+            editing && action_button(ui, &format!("Delete {noun}"), !reason.trim().is_empty());
+        (save, delete)
+    })
+    .inner
+}
+
+/// The earlier versions of the record being edited.
+pub fn record_history(ui: &mut Ui, noun: &str, history: &[HistoryRow]) {
+    ui.add_space(8.0);
+    ui.label(RichText::new(format!("History of this {noun}")).strong());
+    if history.is_empty() {
+        ui.label(
+            RichText::new("No earlier versions.")
+                .small()
+                .color(style::MUTED),
+        );
+    }
+    for h in history {
+        ui.label(RichText::new(format!("{} — {}: {}", h.when, h.action, h.reason)).small());
+        ui.label(
+            RichText::new(format!("was {}", h.old))
+                .small()
+                .color(style::MUTED),
+        );
+    }
 }
