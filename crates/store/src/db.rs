@@ -3,7 +3,8 @@
 use crate::StoreError;
 use crate::check::FieldError;
 use crate::records::*;
-use rusqlite::{Connection, OptionalExtension, Row, params};
+use rusqlite::types::Value;
+use rusqlite::{Connection, OptionalExtension, Row, params, params_from_iter};
 use rusqlite_migration::{M, Migrations};
 use std::path::Path;
 use time::OffsetDateTime;
@@ -228,40 +229,70 @@ pub(crate) fn site_id_for(
     }
 }
 
+/// The tank columns written from a [`TankSpec`], in the order of [`tank_values`].
+const TANK_WRITE_COLUMNS: [&str; 20] = [
+    "site_id",
+    "name",
+    "fluid",
+    "orientation",
+    "diameter_m",
+    "length_m",
+    "heads",
+    "crown_ratio",
+    "knuckle_ratio",
+    "line_temperature_c",
+    "line_temperature_k",
+    "dp_unit",
+    "gauge_span",
+    "gauge_span_pa",
+    "gauge_accuracy_percent",
+    "relief_pressure_value",
+    "relief_pressure_unit",
+    "relief_pressure_pa",
+    "reorder_percent",
+    "ner_percent_per_day",
+];
+
+/// The values of [`TANK_WRITE_COLUMNS`] for a tank at site `site_id`.
+fn tank_values(site_id: i64, t: &TankSpec) -> [Value; 20] {
+    [
+        site_id.into(),
+        t.name.clone().into(),
+        t.fluid.as_str().to_owned().into(),
+        t.orientation.as_str().to_owned().into(),
+        t.diameter_m.into(),
+        t.length_m.into(),
+        t.heads.as_str().to_owned().into(),
+        t.crown_ratio.into(),
+        t.knuckle_ratio.into(),
+        t.line_temperature_c.into(),
+        t.line_temperature_k().into(),
+        t.dp_unit.symbol().to_owned().into(),
+        t.gauge_span.into(),
+        t.gauge_span_pa().into(),
+        t.gauge_accuracy_percent.into(),
+        t.relief_pressure.map(|p| p.value).into(),
+        t.relief_pressure.map(|p| p.unit.symbol().to_owned()).into(),
+        t.relief_pressure.map(|p| p.si_value()).into(),
+        t.reorder_percent.into(),
+        t.ner_percent_per_day.into(),
+    ]
+}
+
 pub(crate) fn insert_tank(
     conn: &Connection,
     site_id: i64,
     t: &TankSpec,
 ) -> Result<i64, rusqlite::Error> {
-    conn.execute(
-        "INSERT INTO tanks (site_id, name, fluid, orientation, diameter_m, length_m, heads, crown_ratio, \
-         knuckle_ratio, line_temperature_c, line_temperature_k, dp_unit, gauge_span, gauge_span_pa, \
-         gauge_accuracy_percent, relief_pressure_value, relief_pressure_unit, relief_pressure_pa, \
-         reorder_percent, ner_percent_per_day) \
-         VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11, ?12, ?13, ?14, ?15, ?16, ?17, ?18, ?19, ?20)",
-        params![
-            site_id,
-            t.name,
-            t.fluid.as_str(),
-            t.orientation.as_str(),
-            t.diameter_m,
-            t.length_m,
-            t.heads.as_str(),
-            t.crown_ratio,
-            t.knuckle_ratio,
-            t.line_temperature_c,
-            t.line_temperature_k(),
-            t.dp_unit.symbol(),
-            t.gauge_span,
-            t.gauge_span_pa(),
-            t.gauge_accuracy_percent,
-            t.relief_pressure.map(|p| p.value),
-            t.relief_pressure.map(|p| p.unit.symbol()),
-            t.relief_pressure.map(|p| p.si_value()),
-            t.reorder_percent,
-            t.ner_percent_per_day,
-        ],
-    )?;
+    let places: Vec<String> = (1..=TANK_WRITE_COLUMNS.len())
+        .map(|i| format!("?{i}"))
+        .collect();
+    let sql = format!(
+        "INSERT INTO tanks ({}) VALUES ({})",
+        TANK_WRITE_COLUMNS.join(", "),
+        places.join(", ")
+    );
+    conn.execute(&sql, params_from_iter(tank_values(site_id, t)))?;
     let id = conn.last_insert_rowid();
     write_strapping(conn, id, &t.strapping)?;
     Ok(id)
@@ -592,36 +623,20 @@ impl Store {
         record_revision(&tx, "tanks", id, "edit", reason, &old.spec)?;
         let site_id =
             site_id_for(&tx, &spec.site, None, None).map_err(|e| StoreError::Invalid(vec![e]))?;
-        tx.execute(
-            "UPDATE tanks SET site_id = ?2, name = ?3, fluid = ?4, orientation = ?5, diameter_m = ?6, \
-             length_m = ?7, heads = ?8, crown_ratio = ?9, knuckle_ratio = ?10, line_temperature_c = ?11, \
-             line_temperature_k = ?12, dp_unit = ?13, gauge_span = ?14, gauge_span_pa = ?15, \
-             gauge_accuracy_percent = ?16, relief_pressure_value = ?17, relief_pressure_unit = ?18, \
-             relief_pressure_pa = ?19, reorder_percent = ?20, ner_percent_per_day = ?21 WHERE id = ?1",
-            params![
-                id,
-                site_id,
-                spec.name,
-                spec.fluid.as_str(),
-                spec.orientation.as_str(),
-                spec.diameter_m,
-                spec.length_m,
-                spec.heads.as_str(),
-                spec.crown_ratio,
-                spec.knuckle_ratio,
-                spec.line_temperature_c,
-                spec.line_temperature_k(),
-                spec.dp_unit.symbol(),
-                spec.gauge_span,
-                spec.gauge_span_pa(),
-                spec.gauge_accuracy_percent,
-                spec.relief_pressure.map(|p| p.value),
-                spec.relief_pressure.map(|p| p.unit.symbol()),
-                spec.relief_pressure.map(|p| p.si_value()),
-                spec.reorder_percent,
-                spec.ner_percent_per_day,
-            ],
-        )?;
+        let sets: Vec<String> = TANK_WRITE_COLUMNS
+            .iter()
+            .enumerate()
+            .map(|(i, c)| format!("{c} = ?{}", i + 1))
+            .collect();
+        let sql = format!(
+            "UPDATE tanks SET {} WHERE id = ?{}",
+            sets.join(", "),
+            TANK_WRITE_COLUMNS.len() + 1
+        );
+        let values = tank_values(site_id, spec)
+            .into_iter()
+            .chain([Value::from(id)]);
+        tx.execute(&sql, params_from_iter(values))?;
         write_strapping(&tx, id, &spec.strapping)?;
         tx.commit()?;
         Ok(())

@@ -109,6 +109,32 @@ fn tank_and_delivery_edits_keep_history() {
     spec.diameter_m = 2.2;
     s.edit_tank(t, &spec, "measured on site").unwrap();
     assert_eq!(s.tank(t).unwrap().spec.diameter_m, 2.2);
+    // every column an edit writes comes back as written (definition: a store returns what it stored)
+    let full = TankFields {
+        site: "Quarry Lane East",
+        tank: "QL-N2-B",
+        fluid: "argon",
+        orientation: "horizontal",
+        diameter_m: "2.4",
+        length_m: "7.5",
+        heads: "torispherical",
+        line_temperature_c: "12",
+        crown_ratio: "1.0",
+        knuckle_ratio: "0.06",
+        dp_unit: "kPa",
+        gauge_span: "60",
+        gauge_accuracy_percent: "1.0",
+        relief_pressure: "17.2",
+        relief_pressure_unit: "barg",
+        reorder_percent: "25",
+        ner_percent_per_day: "0.4",
+        ..Default::default()
+    }
+    .check()
+    .unwrap();
+    s.edit_tank(t, &full, "rebuilt").unwrap();
+    assert_eq!(s.tank(t).unwrap().spec, full);
+    s.edit_tank(t, &spec, "put back").unwrap();
     assert!(
         s.revisions("tanks", t).unwrap()[0]
             .old_row
