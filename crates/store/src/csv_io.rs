@@ -288,47 +288,18 @@ impl Store {
         let tx = self.conn.transaction()?;
 
         if let Some(path) = &files.tanks
-            && let Some(mut t) = Table::open(
-                path,
-                &[
-                    "site",
-                    "tank",
-                    "fluid",
-                    "orientation",
-                    "diameter_m",
-                    "length_m",
-                    "heads",
-                    "line_temperature_c",
-                ],
-                &mut sink,
-            )?
+            && let Some(mut t) = Table::open(path, &TANK_HEADER[..TANK_REQUIRED], &mut sink)?
         {
             import_tanks(&tx, &mut t, &mut sink, &mut tanks, &mut summary)?;
         }
         if let Some(path) = &files.readings
-            && let Some(mut t) = Table::open(
-                path,
-                &["tank", "time", "dp", "dp_unit", "pressure", "pressure_unit"],
-                &mut sink,
-            )?
+            && let Some(mut t) = Table::open(path, &READING_HEADER[..READING_REQUIRED], &mut sink)?
         {
             import_readings(&tx, &mut t, &mut sink, &tanks, opts, &mut summary)?;
         }
         if let Some(path) = &files.deliveries
-            && let Some(mut t) = Table::open(
-                path,
-                &[
-                    "tank",
-                    "ticket",
-                    "start",
-                    "end",
-                    "quantity",
-                    "quantity_unit",
-                    "carrier",
-                    "vehicle",
-                ],
-                &mut sink,
-            )?
+            && let Some(mut t) =
+                Table::open(path, &DELIVERY_HEADER[..DELIVERY_REQUIRED], &mut sink)?
         {
             import_deliveries(&tx, &mut t, &mut sink, &tanks, &mut summary)?;
         }
@@ -451,6 +422,11 @@ impl Store {
         Ok(())
     }
 }
+
+/// The required columns lead each header; the optional ones follow.
+const TANK_REQUIRED: usize = 8;
+const READING_REQUIRED: usize = 6;
+const DELIVERY_REQUIRED: usize = 8;
 
 /// Header of the tanks CSV as exported.
 pub const TANK_HEADER: [&str; 20] = [
