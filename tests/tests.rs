@@ -26,3 +26,12 @@ mod audit;
 /// `demo`: writes the embedded fleet once; its audit finds the planted faults.
 #[path = "e2e/demo.rs"]
 mod demo;
+
+/// The window and the command line audit through one bridge and agree; a failing tank is named.
+#[path = "e2e/one_path.rs"]
+mod one_path;
+
+/// Errors at the edges: each cause named once, no file left behind by a failed command, sizes
+/// outside any real tank refused with the plausible range.
+#[path = "e2e/edges.rs"]
+mod edges;

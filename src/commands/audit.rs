@@ -3,15 +3,15 @@
 //! Tanks stream through the engine in batches (read from the store in this thread, audited on worker
 //! threads), so memory holds one batch of readings and every tank's balances, not the whole history.
 
-use std::collections::HashMap;
 use std::io::Write;
 use std::path::PathBuf;
 use std::process::ExitCode;
+use std::sync::atomic::AtomicBool;
 
-use anyhow::{Context, Result};
-use audit::{AuditOptions, DeliveryInput, FleetAudit, ReadingInput, TankAudit, TankInput};
+use anyhow::Result;
+use audit::{AuditOptions, FleetAudit};
 use clap::{Args, ValueEnum};
-use units::{AbsolutePressure, DpUnit, GasBasis, Unit};
+use evaluate::AuditRequest;
 
 /// Output format of `audit`.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum, Default)]
@@ -67,18 +67,6 @@ pub struct AuditArgs {
     pub threads: Option<usize>,
 }
 
-/// Resolution of a DP entered in `unit` as a standard uncertainty (step / √12; the steps are what
-/// gauges commonly display: common practice, no source).
-fn dp_resolution_u_pa(unit: DpUnit) -> f64 {
-    let step = match unit {
-        DpUnit::InH2O | DpUnit::InH2O60F | DpUnit::InH2O4C => 0.1,
-        DpUnit::MmH2O | DpUnit::Pa | DpUnit::Mbar => 1.0,
-        DpUnit::KPa | DpUnit::Psi => 0.01,
-        DpUnit::Bar => 0.001,
-    };
-    unit.si_from_value(step) / 12f64.sqrt()
-}
-
 /// Milliseconds since the epoch of `YYYY-MM-DD` (midnight UTC) or an RFC 3339 time.
 fn parse_since(text: &str) -> Result<i64> {
     let t = text.trim();
@@ -90,66 +78,6 @@ fn parse_since(text: &str) -> Result<i64> {
     store::Stamp::parse(&full)
         .map(|s| s.ms)
         .map_err(|e| anyhow::anyhow!("--since: {e}"))
-}
-
-/// The audit inputs of a stored tank.
-fn tank_input(
-    st: &store::Store,
-    t: &store::Tank,
-    stored_deliveries: Vec<store::Delivery>,
-    meters: &HashMap<String, Option<f64>>,
-    since_ms: Option<i64>,
-    opts: &AuditOptions,
-) -> Result<TankInput> {
-    let engine =
-        ledger::engine_tank(&t.spec).with_context(|| format!("tank {}: settings", t.spec.name))?;
-    let f = engine.fluid;
-    // readings from a usage window before `since` feed the history and the usage model
-    let from = since_ms.map(|s| s - ((opts.usage_window_days + 30.0) * 86_400_000.0) as i64);
-    let readings = st
-        .readings(t.id, from.map(|f| (f, i64::MAX)))?
-        .into_iter()
-        .map(|r| ReadingInput {
-            time_ms: r.input.time.ms,
-            dp_pa: r.input.dp.si_value(),
-            pressure_pa: ledger::pressure_abs_pa(t, &r.input),
-            liquid_temperature_k: r.input.liquid_temperature_k,
-        })
-        .collect();
-    let barometer = AbsolutePressure::from_pa(t.barometer_pa);
-    let deliveries = stored_deliveries
-        .into_iter()
-        .filter(|d| since_ms.is_none_or(|s| d.input.start.ms >= s))
-        .map(|d| {
-            let i = d.input;
-            let billed_kg = i.quantity.si().mass_kg(|basis| match basis {
-                GasBasis::Normal => f.gas_density_normal_kg_m3(),
-                GasBasis::Standard => f.gas_density_standard_kg_m3(),
-            });
-            DeliveryInput {
-                ticket: i.ticket,
-                meter_repeatability_percent: meters.get(&i.vehicle).copied().flatten(),
-                vehicle: i.vehicle,
-                carrier: i.carrier,
-                start_ms: i.start.ms,
-                end_ms: i.end.ms,
-                billed_kg,
-                supply_pressure_pa: i
-                    .supply_pressure
-                    .map(|p| p.si().to_absolute(barometer).pa()),
-            }
-        })
-        .collect();
-    Ok(TankInput {
-        name: t.spec.name.clone(),
-        ner_percent_per_day: t.spec.ner_percent_per_day,
-        reorder_percent: t.spec.reorder_percent,
-        line_temperature_k: t.spec.line_temperature_k(),
-        dp_noise_u_pa: dp_resolution_u_pa(t.spec.dp_unit),
-        tank: engine,
-        readings,
-        deliveries,
-    })
 }
 
 fn options(a: &AuditArgs) -> AuditOptions {
@@ -165,112 +93,19 @@ fn options(a: &AuditArgs) -> AuditOptions {
     }
 }
 
-/// Audit the stored fleet (or one tank): the engine's result.
-pub fn audit_store(
-    st: &store::Store,
-    tank: Option<&str>,
-    since_ms: Option<i64>,
-    opts: &AuditOptions,
-    threads: usize,
-) -> Result<FleetAudit> {
-    let tanks = match tank {
-        Some(name) => vec![st.tank_by_name(name)?],
-        None => st.tanks()?,
-    };
-    // every delivery in one query, grouped by tank (one query a tank would scan them all each time)
-    let mut by_tank: HashMap<i64, Vec<store::Delivery>> = HashMap::new();
-    for d in st.deliveries(None)? {
-        by_tank.entry(d.tank_id).or_default().push(d);
-    }
-    // the density tables cost about half a second to build and pay off only on large fleets
-    let large = AuditOptions {
-        exact_properties: opts.exact_properties || tanks.len() < 500,
-        ..opts.clone()
-    };
-    let opts = &large;
-    let meters: HashMap<String, Option<f64>> = st
-        .vehicles()?
-        .into_iter()
-        .map(|v| (v.name, v.meter_repeatability_percent))
-        .collect();
-    // a pipeline: this thread reads tanks from the store, workers audit them as they come
-    let threads = threads.max(1);
-    let (send, recv) = std::sync::mpsc::sync_channel::<(usize, TankInput)>(4 * threads);
-    let recv = std::sync::Mutex::new(recv);
-    let (audits, loaded) = std::thread::scope(|s| {
-        let workers: Vec<_> = (0..threads)
-            .map(|_| {
-                let recv = &recv;
-                s.spawn(move || {
-                    let mut done: Vec<(usize, Result<TankAudit, audit::AuditError>)> = Vec::new();
-                    loop {
-                        let next = match recv.lock() {
-                            Ok(r) => r.recv(),
-                            Err(_) => break,
-                        };
-                        let Ok((i, input)) = next else { break };
-                        done.push((i, audit::audit_tank(&input, opts)));
-                    }
-                    done
-                })
-            })
-            .collect();
-        let mut loaded: Result<()> = Ok(());
-        let mut load_s = 0.0;
-        for (i, t) in tanks.iter().enumerate() {
-            let t0 = std::time::Instant::now();
-            let stored = by_tank.remove(&t.id).unwrap_or_default();
-            let input = tank_input(st, t, stored, &meters, since_ms, opts);
-            load_s += t0.elapsed().as_secs_f64();
-            match input {
-                Ok(input) => {
-                    if send.send((i, input)).is_err() {
-                        break;
-                    }
-                }
-                Err(e) => {
-                    loaded = Err(e);
-                    break;
-                }
-            }
-        }
-        drop(send);
-        if std::env::var_os("CRYOLEDGER_TIMING").is_some() {
-            eprintln!("timing: reading the store {load_s:.2} s");
-        }
-        let mut all: Vec<(usize, Result<TankAudit, audit::AuditError>)> = Vec::new();
-        for w in workers {
-            all.extend(w.join().unwrap_or_default());
-        }
-        (all, loaded)
-    });
-    loaded?;
-    let mut audits = audits;
-    audits.sort_by_key(|a| a.0);
-    let audits = audits
-        .into_iter()
-        .map(|(_, r)| r)
-        .collect::<Result<Vec<_>, _>>()?;
-    let t0 = std::time::Instant::now();
-    let fleet = audit::audit_fleet(audits, opts);
-    if std::env::var_os("CRYOLEDGER_TIMING").is_some() {
-        eprintln!(
-            "timing: fleet statistics {:.2} s",
-            t0.elapsed().as_secs_f64()
-        );
-    }
-    Ok(fleet)
-}
-
 /// Run `audit`.
 pub fn run(a: AuditArgs) -> Result<ExitCode> {
     let st = super::open_existing(&a.db)?;
-    let since = a.since.as_deref().map(parse_since).transpose()?;
-    let opts = options(&a);
-    let threads = a.threads.unwrap_or_else(|| {
-        std::thread::available_parallelism().map_or(1, std::num::NonZeroUsize::get)
-    });
-    let fleet = audit_store(&st, a.tank.as_deref(), since, &opts, threads)?;
+    let mut req = AuditRequest {
+        tank: a.tank.clone(),
+        since_ms: a.since.as_deref().map(parse_since).transpose()?,
+        options: options(&a),
+        ..AuditRequest::default()
+    };
+    if let Some(n) = a.threads {
+        req.threads = n;
+    }
+    let fleet = evaluate::audit_fleet(&st, &req, &mut |_, _| {}, &AtomicBool::new(false))?;
     let mut out = std::io::BufWriter::new(std::io::stdout().lock());
     match a.format {
         AuditFormat::Json => {
@@ -344,41 +179,47 @@ fn write_json(out: &mut impl Write, fleet: &FleetAudit) -> Result<()> {
     Ok(())
 }
 
-fn quote(s: &str) -> String {
-    if s.contains([',', '"', '\n']) {
-        format!("\"{}\"", s.replace('"', "\"\""))
-    } else {
-        s.to_string()
-    }
-}
-
 fn csv(out: &mut impl Write, fleet: &FleetAudit) -> Result<()> {
-    writeln!(
-        out,
-        "ticket,tank,vehicle,carrier,start,end,verdict,billed_kg,gained_kg,drawn_kg,residual_kg,residual_percent,sigma_kg,limit_kg,ratio,explanation"
-    )?;
+    let mut w = csv::Writer::from_writer(out);
+    w.write_record([
+        "ticket",
+        "tank",
+        "vehicle",
+        "carrier",
+        "start",
+        "end",
+        "verdict",
+        "billed_kg",
+        "gained_kg",
+        "drawn_kg",
+        "residual_kg",
+        "residual_percent",
+        "sigma_kg",
+        "limit_kg",
+        "ratio",
+        "explanation",
+    ])?;
     for b in &fleet.fills {
-        writeln!(
-            out,
-            "{},{},{},{},{},{},{},{:.1},{:.1},{:.1},{:.1},{:.2},{:.1},{:.1},{:.4},{}",
-            quote(&b.ticket),
-            quote(&b.tank),
-            quote(&b.vehicle),
-            quote(&b.carrier),
+        w.write_record([
+            b.ticket.clone(),
+            b.tank.clone(),
+            b.vehicle.clone(),
+            b.carrier.clone(),
             when(b.start_ms),
             when(b.end_ms),
-            b.verdict.as_str(),
-            b.billed_kg,
-            b.gained_kg,
-            b.drawn_kg,
-            b.residual_kg,
-            b.residual_percent,
-            b.sigma_kg,
-            b.limit_kg,
-            b.ratio,
-            quote(&b.explanation)
-        )?;
+            b.verdict.as_str().to_owned(),
+            format!("{:.1}", b.billed_kg),
+            format!("{:.1}", b.gained_kg),
+            format!("{:.1}", b.drawn_kg),
+            format!("{:.1}", b.residual_kg),
+            format!("{:.2}", b.residual_percent),
+            format!("{:.1}", b.sigma_kg),
+            format!("{:.1}", b.limit_kg),
+            format!("{:.4}", b.ratio),
+            b.explanation.clone(),
+        ])?;
     }
+    w.flush()?;
     Ok(())
 }
 

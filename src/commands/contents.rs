@@ -1,40 +1,19 @@
 //! `contents`: what a DP reading means for a tank given on the command line or taken from the store.
 
-use super::fluids::{absolute_pa, parse_fluid};
+use super::fluids::{absolute_pa, barometer_pa};
 use super::{Format, open_existing, print_json};
 use anyhow::{Result, anyhow};
-use clap::{Args, ValueEnum};
-use fluids::fluid;
+use clap::Args;
+use fluids::{FluidId, fluid};
 use serde::Serialize;
 use std::path::PathBuf;
 use std::process::ExitCode;
+use store::Repository;
 use tank::{
     AccuracyBasis, ChartComparison, Conditions, Contents, ContentsOptions, Cylinder, Gauge,
-    GaugeAccuracy, Head, LiquidState, SafeFill, UncertaintyInputs,
+    GaugeAccuracy, HeadShape, LiquidState, Orientation, SafeFill, UncertaintyInputs,
 };
 use units::{parse_dp, parse_length, parse_temperature};
-
-/// Vessel orientation on the command line.
-#[derive(Clone, Copy, ValueEnum)]
-pub enum OrientationArg {
-    /// Axis vertical.
-    Vertical,
-    /// Axis horizontal.
-    Horizontal,
-}
-
-/// Head shape on the command line.
-#[derive(Clone, Copy, ValueEnum)]
-pub enum HeadsArg {
-    /// Flat heads.
-    Flat,
-    /// Hemispherical heads.
-    Hemispherical,
-    /// 2:1 ellipsoidal heads.
-    Ellipsoidal,
-    /// ASME flanged and dished heads (crown D, knuckle 0.06 D).
-    Torispherical,
-}
 
 /// Arguments of `contents`.
 #[derive(Args)]
@@ -46,21 +25,21 @@ pub struct ContentsArgs {
     /// Database holding --tank
     #[arg(long, value_name = "PATH", requires = "tank")]
     pub db: Option<PathBuf>,
-    /// nitrogen, oxygen, argon, carbon-dioxide, methane, hydrogen or parahydrogen
+    /// nitrogen, oxygen, argon, carbon-dioxide, methane, hydrogen or parahydrogen (or N2, O2, ...)
     #[arg(long, required_unless_present = "tank")]
-    pub fluid: Option<String>,
-    /// Axis orientation
-    #[arg(long, value_enum, required_unless_present = "tank")]
-    pub orientation: Option<OrientationArg>,
+    pub fluid: Option<FluidId>,
+    /// Axis orientation: vertical or horizontal
+    #[arg(long, required_unless_present = "tank")]
+    pub orientation: Option<Orientation>,
     /// Inner diameter, e.g. "2.4 m", "94.5 in"
     #[arg(long, required_unless_present = "tank")]
     pub diameter: Option<String>,
     /// Straight shell length, tangent to tangent
     #[arg(long, required_unless_present = "tank")]
     pub length: Option<String>,
-    /// Head shape
-    #[arg(long, value_enum, required_unless_present = "tank")]
-    pub heads: Option<HeadsArg>,
+    /// Head shape: flat, hemispherical, ellipsoidal (2:1) or torispherical (ASME F&D)
+    #[arg(long, required_unless_present = "tank")]
+    pub heads: Option<HeadShape>,
     /// The gauge's DP, e.g. "85 inH2O", "2150 mmH2O", "21.2 kPa"
     #[arg(long)]
     pub dp: String,
@@ -106,15 +85,13 @@ struct Report {
     cautions: Vec<&'static str>,
 }
 
-fn length_m(text: &str, flag: &str) -> Result<f64> {
+/// A dimension within the range a real tank has.
+fn length_m(text: &str, flag: &'static str, range: &std::ops::RangeInclusive<f64>) -> Result<f64> {
     let l = parse_length(text)
         .map_err(|e| anyhow!("{flag}: {e}"))?
         .si()
         .m();
-    if l <= 0.0 {
-        anyhow::bail!("{flag}: must be greater than zero, got {text}");
-    }
-    Ok(l)
+    Ok(tank::check_plausible(flag, l, range)?)
 }
 
 /// Run `contents`.
@@ -128,39 +105,35 @@ pub fn run(a: ContentsArgs) -> Result<ExitCode> {
         (Some(name), Some(db)) => Some(open_existing(db)?.tank_by_name(name)?),
         _ => None,
     };
-    let (id, geometry, mut gauge, default_baro, default_line) = match &stored {
+    let (id, geometry, mut gauge, default_baro_pa, default_line_k) = match &stored {
         Some(t) => (
-            ledger::fluid_id(t.spec.fluid),
-            ledger::geometry(&t.spec)?,
-            ledger::gauge(&t.spec)?,
-            format!("{} Pa", t.barometer_pa),
-            format!("{} C", t.spec.line_temperature_c),
+            t.spec.fluid,
+            evaluate::geometry(&t.spec)?,
+            evaluate::gauge(&t.spec)?,
+            t.barometer_pa,
+            t.spec.line_temperature_k(),
         ),
         None => {
             let need = |o: &Option<String>, f: &str| {
                 o.clone()
                     .ok_or_else(|| anyhow!("{f} is required without --tank"))
             };
-            let id = parse_fluid(&need(&a.fluid, "--fluid")?)?;
-            let orientation = match a.orientation {
-                Some(OrientationArg::Horizontal) => tank::Orientation::Horizontal,
-                _ => tank::Orientation::Vertical,
-            };
-            let head = match a.heads {
-                Some(HeadsArg::Flat) => Head::Flat,
-                Some(HeadsArg::Hemispherical) => Head::Hemispherical,
-                Some(HeadsArg::Ellipsoidal) => Head::ELLIPSOIDAL_2_1,
-                Some(HeadsArg::Torispherical) | None => Head::ASME_FD,
-            };
-            let d = length_m(&need(&a.diameter, "--diameter")?, "--diameter")?;
-            let l = length_m(&need(&a.length, "--length")?, "--length")?;
+            let id = a
+                .fluid
+                .ok_or_else(|| anyhow!("--fluid is required without --tank"))?;
+            let orientation = a.orientation.unwrap_or(Orientation::Vertical);
+            let head = a.heads.unwrap_or(HeadShape::Torispherical).head(None, None);
+            let d = need(&a.diameter, "--diameter")?;
+            let d = length_m(&d, "--diameter", &tank::PLAUSIBLE_DIAMETER_M)?;
+            let l = need(&a.length, "--length")?;
+            let l = length_m(&l, "--length", &tank::PLAUSIBLE_LENGTH_M)?;
             let cyl = Cylinder::new(orientation, d, l, head)?;
             (
                 id,
                 cyl.into(),
                 Gauge::default(),
-                "101.325 kPa".to_owned(),
-                "15 C".to_owned(),
+                units::STANDARD_ATMOSPHERE_PA,
+                units::CELSIUS_ZERO_K + 15.0,
             )
         }
     };
@@ -176,10 +149,15 @@ pub fn run(a: ContentsArgs) -> Result<ExitCode> {
         };
         gauge.accuracy = Some(GaugeAccuracy::new(class, basis)?);
     }
-    let barometer = a.barometer.clone().unwrap_or(default_baro);
-    let p = absolute_pa(&a.pressure, &barometer, "--pressure")?;
-    let line = parse_temperature(a.line_temperature.as_deref().unwrap_or(&default_line))
-        .map_err(|e| anyhow!("--line-temperature: {e}"))?;
+    let barometer = barometer_pa(a.barometer.as_deref(), default_baro_pa)?;
+    let p = absolute_pa(&a.pressure, barometer, "--pressure")?;
+    let line_k = match &a.line_temperature {
+        Some(t) => parse_temperature(t)
+            .map_err(|e| anyhow!("--line-temperature: {e}"))?
+            .si()
+            .k(),
+        None => default_line_k,
+    };
     let liquid = match (&a.liquid_temperature, &a.liquid_saturation_pressure) {
         (Some(t), _) => LiquidState::Temperature {
             temperature_k: parse_temperature(t)
@@ -188,13 +166,13 @@ pub fn run(a: ContentsArgs) -> Result<ExitCode> {
                 .k(),
         },
         (None, Some(ps)) => LiquidState::SaturatedAtPressure {
-            pressure_pa: absolute_pa(ps, &barometer, "--liquid-saturation-pressure")?,
+            pressure_pa: absolute_pa(ps, barometer, "--liquid-saturation-pressure")?,
         },
         (None, None) => LiquidState::SaturatedAtTankPressure,
     };
     let conditions = Conditions::saturated(p)
         .with_liquid(liquid)
-        .with_line_temperature_k(line.si().k());
+        .with_line_temperature_k(line_k);
     let engine = tank::Tank::new(geometry, fluid(id)).with_gauge(gauge);
     let opts = ContentsOptions::default();
     let contents = if gauge.accuracy.is_some() {
@@ -210,10 +188,10 @@ pub fn run(a: ContentsArgs) -> Result<ExitCode> {
         .chart_comparison(dp_pa, &conditions, chart_pa, &opts)
         .ok();
     let relief = match (&a.relief_pressure, &stored) {
-        (Some(r), _) => Some(absolute_pa(r, &barometer, "--relief-pressure")?),
+        (Some(r), _) => Some(absolute_pa(r, barometer, "--relief-pressure")?),
         (None, Some(t)) => t.spec.relief_pressure.map(|e| {
             e.si()
-                .to_absolute(units::AbsolutePressure::from_pa(t.barometer_pa))
+                .to_absolute(units::AbsolutePressure::from_pa(barometer))
                 .pa()
         }),
         (None, None) => None,

@@ -5,7 +5,10 @@ use std::process::ExitCode;
 
 use anyhow::{Context, Result};
 use clap::Args;
-use store::{ImportFiles, ImportOptions, ImportSummary, Store};
+use store::{
+    ImportOptions, ImportSource, ImportSources, ImportSummary, ReadingEntry, Repository, Store,
+    TankRecord,
+};
 
 /// The demo scenario's tanks (generated; see demo-data/README.md).
 pub const TANKS_CSV: &str = include_str!("../../demo-data/tanks.csv");
@@ -23,45 +26,33 @@ pub struct DemoArgs {
     pub db: Option<PathBuf>,
 }
 
-/// Import the embedded demo CSVs into the database at `db` (created if missing), all or nothing.
+/// Import the embedded demo CSVs into the database at `db` (created if missing), all or nothing; a
+/// database this created is removed again when the import fails.
 pub fn write_demo(db: &Path) -> Result<ImportSummary> {
     if let Some(dir) = db.parent().filter(|d| !d.as_os_str().is_empty()) {
         std::fs::create_dir_all(dir).with_context(|| format!("creating {}", dir.display()))?;
     }
-    let tmp = std::env::temp_dir().join(format!(
-        "cryoledger-demo-{}-{}",
-        std::process::id(),
-        std::time::SystemTime::now()
-            .duration_since(std::time::UNIX_EPOCH)
-            .map_or(0, |d| d.as_nanos())
-    ));
-    std::fs::create_dir_all(&tmp).with_context(|| format!("creating {}", tmp.display()))?;
+    let created = super::Created::database(db);
     let result = (|| -> Result<ImportSummary> {
-        let files = ImportFiles {
-            tanks: Some(tmp.join("tanks.csv")),
-            readings: Some(tmp.join("readings.csv")),
-            deliveries: Some(tmp.join("deliveries.csv")),
-        };
-        for (path, text) in [
-            (&files.tanks, TANKS_CSV),
-            (&files.readings, READINGS_CSV),
-            (&files.deliveries, DELIVERIES_CSV),
-        ] {
-            if let Some(p) = path {
-                std::fs::write(p, text).with_context(|| format!("writing {}", p.display()))?;
-            }
-        }
         let mut store = Store::open(db).with_context(|| format!("opening {}", db.display()))?;
-        let check = ledger::check_reading_against_tank;
+        let checker = evaluate::ReadingChecker::new();
+        let check = |t: &TankRecord, r: &ReadingEntry| checker.check(t, r);
         let opts = ImportOptions {
             reading_check: Some(&check),
             ..ImportOptions::default()
         };
+        let sources = ImportSources {
+            tanks: Some(ImportSource::text("demo tanks.csv", TANKS_CSV)),
+            readings: Some(ImportSource::text("demo readings.csv", READINGS_CSV)),
+            deliveries: Some(ImportSource::text("demo deliveries.csv", DELIVERIES_CSV)),
+        };
         store
-            .import(&files, &opts)
+            .import(sources, &opts)
             .with_context(|| format!("writing the demo into {}", db.display()))
     })();
-    let _ = std::fs::remove_dir_all(&tmp);
+    if result.is_err() {
+        created.remove();
+    }
     result
 }
 

@@ -4,7 +4,10 @@ use anyhow::{Context, Result};
 use clap::{Args, ValueEnum};
 use std::path::PathBuf;
 use std::process::ExitCode;
-use store::{ImportFiles, ImportOptions, Store, StoreError};
+use store::{
+    ImportFiles, ImportOptions, ImportSources, ReadingEntry, RecordKind, Repository, Store,
+    StoreError, TankRecord,
+};
 
 /// Arguments of `import`.
 // the optional CSV columns are written in brackets in the --help text, not as doc links
@@ -33,19 +36,27 @@ pub fn import(a: ImportArgs) -> Result<ExitCode> {
     if a.tanks.is_none() && a.readings.is_none() && a.deliveries.is_none() {
         anyhow::bail!("nothing to import: give --tanks, --readings and/or --deliveries");
     }
-    let mut store = Store::open(&a.db).with_context(|| format!("opening {}", a.db.display()))?;
     let files = ImportFiles {
         tanks: a.tanks,
         readings: a.readings,
         deliveries: a.deliveries,
     };
-    let checker = ledger::ReadingChecker::new();
-    let check = |t: &store::Tank, r: &store::ReadingInput| checker.check(t, r);
+    // every file is opened before the database, so a missing file creates nothing
+    let sources = ImportSources::open(&files)?;
+    let created = super::Created::database(&a.db);
+    let mut store = Store::open(&a.db).with_context(|| format!("opening {}", a.db.display()))?;
+    let checker = evaluate::ReadingChecker::new();
+    let check = |t: &TankRecord, r: &ReadingEntry| checker.check(t, r);
     let opts = ImportOptions {
         max_errors: a.max_errors,
         reading_check: Some(&check),
     };
-    match store.import(&files, &opts) {
+    let result = store.import(sources, &opts);
+    if result.is_err() {
+        drop(store);
+        created.remove();
+    }
+    match result {
         Ok(s) => {
             println!(
                 "imported {} tanks, {} readings, {} deliveries into {}",
@@ -92,12 +103,23 @@ pub struct ExportArgs {
 /// Run `export`.
 pub fn export(a: ExportArgs) -> Result<ExitCode> {
     let store = super::open_existing(&a.db)?;
+    let kind = match a.what {
+        ExportWhat::Tanks => RecordKind::Tanks,
+        ExportWhat::Readings => RecordKind::Readings,
+        ExportWhat::Deliveries => RecordKind::Deliveries,
+    };
+    let created = a.out.as_deref().map(super::Created::file);
     let mut sink = super::output(a.out.as_ref())?;
-    match a.what {
-        ExportWhat::Tanks => store.export_tanks(&mut sink)?,
-        ExportWhat::Readings => store.export_readings(&mut sink)?,
-        ExportWhat::Deliveries => store.export_deliveries(&mut sink)?,
+    let written = store
+        .export(kind, &mut sink)
+        .map_err(anyhow::Error::from)
+        .and_then(|()| Ok(sink.flush()?));
+    if written.is_err() {
+        drop(sink);
+        if let Some(c) = created {
+            c.remove();
+        }
     }
-    sink.flush()?;
+    written?;
     Ok(ExitCode::SUCCESS)
 }

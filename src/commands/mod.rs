@@ -30,6 +30,46 @@ pub fn open_existing(db: &Path) -> Result<store::Store> {
     store::Store::open(db).with_context(|| format!("opening {}", db.display()))
 }
 
+/// A file a command is about to create, removed again when the command fails (a failed command leaves
+/// no file it created; a file that was already there is left alone).
+pub struct Created {
+    paths: Vec<PathBuf>,
+}
+
+impl Created {
+    /// `path`, when it does not exist yet.
+    pub fn file(path: &Path) -> Self {
+        Self {
+            paths: if path.exists() {
+                Vec::new()
+            } else {
+                vec![path.to_path_buf()]
+            },
+        }
+    }
+
+    /// A database file with its write-ahead log and shared-memory files, when it does not exist yet.
+    pub fn database(path: &Path) -> Self {
+        let mut c = Self::file(path);
+        if !c.paths.is_empty() {
+            for suffix in ["-wal", "-shm", "-journal"] {
+                let mut p = path.as_os_str().to_owned();
+                p.push(suffix);
+                c.paths.push(PathBuf::from(p));
+            }
+        }
+        c
+    }
+
+    /// Remove what was created.
+    pub fn remove(self) {
+        for p in self.paths {
+            // best effort: a file that was never written is not there to remove
+            let _ = std::fs::remove_file(p);
+        }
+    }
+}
+
 /// Where to write: a file or standard output.
 pub fn output(out: Option<&PathBuf>) -> Result<Box<dyn Write>> {
     Ok(match out {

@@ -2,6 +2,7 @@
 
 use std::path::{Path, PathBuf};
 use std::process::Output;
+use store::Repository;
 
 /// The binary under test.
 pub fn bin() -> std::process::Command {

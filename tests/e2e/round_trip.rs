@@ -1,5 +1,6 @@
 use crate::common::*;
 use std::path::Path;
+use store::Repository;
 
 fn export(db: &Path, what: &str) -> String {
     let out = bin()

@@ -9,6 +9,7 @@
 mod common;
 
 use common::{DAY_MS, add_history, tank_fields};
+use store::Repository;
 use store::Store;
 
 fn main() {
@@ -69,7 +70,7 @@ fn main() {
             });
         }
         if i % 3 == 1 {
-            spec.heads = store::Heads::Ellipsoidal;
+            spec.heads = store::HeadShape::Ellipsoidal;
         }
         let id = s.add_tank(&spec).expect("add tank");
         let pressure = if *fluid == "carbon-dioxide" {
@@ -95,7 +96,7 @@ fn main() {
             .last()
             .cloned()
     {
-        let mut input = d.input.clone();
+        let mut input = d.entry.clone();
         input.quantity.value = (input.quantity.value * 1.06).round();
         s.edit_delivery(d.id, &input, "demo: the ticket was keyed 6 % high")
             .expect("edit delivery");
@@ -104,8 +105,8 @@ fn main() {
     if let Ok(t) = s.tank_by_name("LF-N2-1")
         && let Some(r) = s.readings(t.id, None).expect("readings").last().cloned()
     {
-        let mut corrected = r.input.clone();
-        corrected.dp.value = ((r.input.dp.value - 0.6) * 10.0).round() / 10.0;
+        let mut corrected = r.entry.clone();
+        corrected.dp.value = ((r.entry.dp.value - 0.6) * 10.0).round() / 10.0;
         corrected.note = Some("re-read after the needle settled".into());
         s.edit_reading(
             r.id,

@@ -1,13 +1,15 @@
 //! User intents and the one place that carries them out: [`Core::handle`] is the only code that writes
 //! to the store. After a write it rebuilds exactly the view state that depends on it.
 
-use crate::build;
+use crate::build::{self, FleetSummary};
+use crate::flow::{self, DeliveryFlow, Flow, ReadingFlow};
 use crate::fmt::{self, UnitSystem};
 use crate::view::*;
+use crate::{AppError, describe};
 use std::sync::Arc;
-use std::sync::atomic::{AtomicUsize, Ordering};
+use std::sync::atomic::{AtomicBool, AtomicUsize, Ordering};
 use std::sync::mpsc::{Receiver, TryRecvError};
-use store::Store;
+use store::{Repository, Store, TankId};
 
 /// One user intent, emitted by a panel or a test.
 #[derive(Debug, Clone, PartialEq)]
@@ -61,14 +63,17 @@ pub enum Action {
 /// The fleet summary running on its background thread.
 struct FleetJob {
     done: Arc<AtomicUsize>,
-    total: usize,
-    rx: Receiver<Result<Vec<(i64, FleetTank)>, String>>,
+    total: Arc<AtomicUsize>,
+    cancel: Arc<AtomicBool>,
+    rx: Receiver<Result<FleetSummary, AppError>>,
 }
 
 /// The store, the view state built from it, and background work.
 pub struct Core {
-    /// The open store (written only by [`Core::handle`]).
-    pub store: Store,
+    /// The open store: private, so that [`Core::handle`] is the only code that can write to it.
+    store: Store,
+    /// The latest fleet audit (the fleet list and the tank page's open findings come from it).
+    fleet_audit: Option<Arc<audit::FleetAudit>>,
     /// What the panels draw.
     pub view: ViewState,
     job: Option<FleetJob>,
@@ -87,6 +92,7 @@ impl Core {
     pub fn new(store: Store, units: UnitSystem, db_path: Option<std::path::PathBuf>) -> Self {
         let mut core = Self {
             store,
+            fleet_audit: None,
             view: ViewState {
                 units,
                 ..Default::default()
@@ -96,66 +102,63 @@ impl Core {
             db_path: db_path.filter(|p| p.is_file()),
         };
         core.view.cautions = build::cautions().to_vec();
-        core.view.reading_form = build::new_reading_form(None, units);
-        core.view.delivery_form = build::new_delivery_form(units);
+        core.view.reading_editor.form = build::new_reading_form(None, units);
+        core.view.delivery_editor.form = build::new_delivery_form(units);
         core
     }
 
-    /// Start (or restart) the fleet summary on a named background thread.
+    /// The latest fleet audit, once the fleet summary is in.
+    pub fn fleet_audit(&self) -> Option<&audit::FleetAudit> {
+        self.fleet_audit.as_deref()
+    }
+
+    /// The open store, to read (tests, start-up options); only [`Core::handle`] writes.
+    pub fn repository(&self) -> &dyn Repository {
+        &self.store
+    }
+
+    /// Start (or restart) the fleet summary: the bridge's fleet audit and each tank's line, on a named
+    /// background thread with its own connection (in memory, where no second connection can see the
+    /// data, it runs here).
     pub fn start_fleet_summary(&mut self) {
         self.summary_pending = false;
+        if let Some(old) = self.job.take() {
+            old.cancel.store(true, Ordering::Relaxed);
+        }
         let now = fmt::now_ms();
-        // Read here only when the thread cannot open the database itself (in memory).
-        let inputs = match &self.db_path {
-            Some(_) => None,
-            None => match build::fleet_inputs(&self.store, now) {
-                Ok(i) => Some(i),
-                Err(e) => {
-                    self.view.error = Some(e.to_string());
-                    return;
-                }
-            },
-        };
-        let total = match &inputs {
-            Some(i) => i.len(),
-            None => self.store.tanks().map(|t| t.len()).unwrap_or(0),
-        };
-        let path = self.db_path.clone();
         let done = Arc::new(AtomicUsize::new(0));
+        let total = Arc::new(AtomicUsize::new(0));
+        let cancel = Arc::new(AtomicBool::new(false));
         let (tx, rx) = std::sync::mpsc::channel();
-        let counter = Arc::clone(&done);
+        let job = FleetJob {
+            done: Arc::clone(&done),
+            total: Arc::clone(&total),
+            cancel: Arc::clone(&cancel),
+            rx,
+        };
+        let mut progress = move |d: usize, t: usize| {
+            done.store(d, Ordering::Relaxed);
+            total.store(t, Ordering::Relaxed);
+        };
+        let Some(path) = self.db_path.clone() else {
+            self.view.fleet.as_of_ms = now;
+            let result = build::fleet_summary(&self.store, now, &mut progress, &cancel);
+            return self.install_fleet(result);
+        };
         let spawned = std::thread::Builder::new()
             .name("fleet-summary".into())
             .spawn(move || {
-                let inputs = match (inputs, path) {
-                    (Some(i), _) => i,
-                    (None, Some(p)) => {
-                        match Store::open(&p).and_then(|s| build::fleet_inputs(&s, now)) {
-                            Ok(i) => i,
-                            Err(e) => {
-                                let _ = tx.send(Err(e.to_string()));
-                                return;
-                            }
-                        }
-                    }
-                    (None, None) => Vec::new(),
-                };
-                let out: Vec<(i64, FleetTank)> = inputs
-                    .iter()
-                    .map(|i| {
-                        let t = build::fleet_tank(i, now);
-                        counter.fetch_add(1, Ordering::Relaxed);
-                        (i.tank.site_id, t)
-                    })
-                    .collect();
+                let result = Store::open(&path)
+                    .map_err(AppError::from)
+                    .and_then(|s| build::fleet_summary(&s, now, &mut progress, &cancel));
                 // The receiver may be gone when a newer summary replaced this one.
-                let _ = tx.send(Ok(out));
+                let _ = tx.send(result);
             });
         match spawned {
             Ok(_) => {
-                self.view.fleet.progress = Some((0, total));
+                self.view.fleet.progress = Some((0, 0));
                 self.view.fleet.as_of_ms = now;
-                self.job = Some(FleetJob { done, total, rx });
+                self.job = Some(job);
             }
             Err(e) => self.view.error = Some(format!("cannot start the fleet summary: {e}")),
         }
@@ -176,13 +179,16 @@ impl Core {
                 false
             }
             Err(TryRecvError::Empty) => {
-                self.view.fleet.progress = Some((job.done.load(Ordering::Relaxed), job.total));
+                self.view.fleet.progress = Some((
+                    job.done.load(Ordering::Relaxed),
+                    job.total.load(Ordering::Relaxed),
+                ));
                 true
             }
             Err(TryRecvError::Disconnected) => {
                 self.job = None;
                 self.view.fleet.progress = None;
-                self.view.error = Some("the fleet summary stopped unexpectedly".into());
+                self.fail(AppError::BackgroundStopped);
                 false
             }
         }
@@ -196,52 +202,43 @@ impl Core {
         if let Some(job) = self.job.take() {
             match job.rx.recv() {
                 Ok(result) => self.install_fleet(result),
-                Err(_) => self.view.error = Some("the fleet summary stopped unexpectedly".into()),
+                Err(_) => self.fail(AppError::BackgroundStopped),
             }
         }
     }
 
-    fn install_fleet(&mut self, result: Result<Vec<(i64, FleetTank)>, String>) {
+    fn install_fleet(&mut self, result: Result<FleetSummary, AppError>) {
         self.view.fleet.progress = None;
-        let tanks = match result {
-            Ok(t) => t,
-            Err(e) => {
-                self.view.error = Some(format!("fleet summary: {e}"));
-                return;
-            }
-        };
-        match build::fleet_sites(&self.store, tanks) {
-            Ok(sites) => {
-                self.view.fleet.sites = sites;
+        match result {
+            Ok(summary) => {
+                self.view.fleet.sites = summary.sites;
+                self.fleet_audit = Some(summary.audit);
                 build::fleet_rows(&mut self.view.fleet);
-            }
-            Err(e) => self.view.error = Some(e.to_string()),
-        }
-    }
-
-    /// Re-evaluate one tank's navigator line (after a reading or delivery of it changed).
-    fn refresh_fleet_tank(&mut self, id: i64) {
-        let now = fmt::now_ms();
-        let Ok(inputs) = build::fleet_input(&self.store, id, now) else {
-            return;
-        };
-        let line = build::fleet_tank(&inputs, now);
-        for site in &mut self.view.fleet.sites {
-            for t in &mut site.tanks {
-                if t.id == id {
-                    *t = line.clone();
+                // the selected tank's open findings come from the fleet audit
+                if let Some(id) = self.selected() {
+                    self.rebuild_tank(id);
                 }
             }
+            Err(AppError::Eval(evaluate::EvalError::Cancelled)) => {}
+            Err(e) => self.fail(e),
         }
-        build::fleet_rows(&mut self.view.fleet);
+    }
+
+    /// The fleet list and open findings follow a change of one tank's records: the fleet audit runs
+    /// again in the background (its statistics span the fleet); until it is in, the tank page takes
+    /// its open findings from the tank's own audit.
+    fn refresh_fleet_tank(&mut self, _id: i64) {
+        self.fleet_audit = None;
+        self.start_fleet_summary();
     }
 
     fn selected(&self) -> Option<i64> {
         self.view.tank.as_ref().map(|t| t.id)
     }
 
-    fn store_tank(&self) -> Option<store::Tank> {
-        self.selected().and_then(|id| self.store.tank(id).ok())
+    fn store_tank(&self) -> Option<store::TankRecord> {
+        self.selected()
+            .and_then(|id| self.store.tank(TankId(id)).ok())
     }
 
     /// Rebuild the selected tank's page from the store.
@@ -252,12 +249,12 @@ impl Core {
             .as_ref()
             .map(|t| t.trend.quantity)
             .unwrap_or_default();
-        match build::tank_view(&self.store, id, self.view.units, q) {
+        let fleet_audit = self.fleet_audit.as_deref();
+        match build::tank_view(&self.store, id, self.view.units, q, fleet_audit) {
             Ok(mut tv) => {
                 if let Some(old) = &self.view.tank
                     && old.id == id
                 {
-                    tv.history = old.history.clone();
                     tv.trend.period_days = old.trend.period_days;
                 }
                 self.view.tank = Some(tv);
@@ -266,17 +263,12 @@ impl Core {
         }
     }
 
-    fn recheck_reading(&mut self) {
+    /// Check a record form again against the selected tank.
+    fn recheck<F: Flow>(&mut self) {
         if let Some(t) = self.store_tank() {
-            let (check, _) = build::check_reading(&self.view.reading_form, &t, self.view.units);
-            self.view.reading_check = check;
-        }
-    }
-
-    fn recheck_delivery(&mut self) {
-        if let Some(t) = self.store_tank() {
-            let (check, _) = build::check_delivery(&self.view.delivery_form, &t);
-            self.view.delivery_check = check;
+            let units = self.view.units;
+            let editor = F::editor(&mut self.view);
+            editor.check = F::check(&editor.form, &t, units).0;
         }
     }
 
@@ -286,19 +278,110 @@ impl Core {
         self.view.setup_preview = preview;
     }
 
-    fn load_history(&mut self, table: &str, id: Option<i64>) {
-        let rows = match id {
-            Some(id) => build::history(&self.store, table, id).unwrap_or_default(),
+    /// Show the history of the record a form edits (none for a new record).
+    fn load_history<F: Flow>(&mut self, id: Option<i64>) {
+        let rows = match id.map(|id| build::history(&self.store, F::record(id))) {
+            Some(Ok(rows)) => rows,
+            Some(Err(e)) => {
+                self.fail(e);
+                Vec::new()
+            }
             None => Vec::new(),
         };
-        if let Some(t) = &mut self.view.tank {
-            t.history = rows;
+        F::editor(&mut self.view).history = rows;
+    }
+
+    /// Load a stored record into its form (None: a blank form).
+    fn select<F: Flow>(&mut self, id: Option<i64>) {
+        let form = match id {
+            Some(id) => match F::load(&self.store, id) {
+                Ok(f) => f,
+                Err(e) => return self.fail(e),
+            },
+            None => F::blank(self.store_tank().as_ref(), self.view.units),
+        };
+        let editor = F::editor(&mut self.view);
+        editor.form = form;
+        editor.check = FormCheck::default();
+        if id.is_some() {
+            self.recheck::<F>();
+        }
+        self.load_history::<F>(id);
+    }
+
+    /// Delete the record in a form, with the form's reason (kept in its history).
+    fn delete<F: Flow>(&mut self) {
+        let form = &F::editor(&mut self.view).form;
+        let (Some(id), reason) = (F::editing(form), F::reason(form).trim().to_owned()) else {
+            return;
+        };
+        if reason.is_empty() {
+            return self.fail(format!(
+                "say why the {} is deleted (kept in its history)",
+                F::NOUN
+            ));
+        }
+        match F::delete(&mut self.store, id, &reason) {
+            Ok(()) => {
+                self.after_change::<F>(None);
+                self.saved(format!(
+                    "{} deleted; its values stay in the history.",
+                    flow::capitalised(F::NOUN)
+                ));
+            }
+            Err(e) => self.fail(e),
         }
     }
 
-    fn fail(&mut self, e: impl std::fmt::Display) {
+    /// Save a form: a new record, or the edit of the selected one with its reason.
+    fn save<F: Flow>(&mut self) {
+        let Some(t) = self.store_tank() else {
+            return self.fail("select a tank first");
+        };
+        let units = self.view.units;
+        let editor = F::editor(&mut self.view);
+        let (check, entry) = F::check(&editor.form, &t, units);
+        editor.check = check;
+        let Some(entry) = entry else {
+            return;
+        };
+        let form = editor.form.clone();
+        let result = match F::editing(&form) {
+            Some(id) => F::edit(&mut self.store, id, &entry, F::reason(&form).trim())
+                .map(|()| (Some(id), format!("{} changed.", F::label(&entry)))),
+            None => F::add(&mut self.store, t.id, &entry)
+                .map(|()| (None, format!("{} saved.", F::label(&entry)))),
+        };
+        match result {
+            Ok((keep, msg)) => {
+                self.after_change::<F>(keep);
+                self.saved(msg);
+            }
+            Err(e) => self.fail(e),
+        }
+    }
+
+    /// After a record changed: the tank page and the fleet list follow, the form shows the kept
+    /// record (or a blank form) with its history.
+    fn after_change<F: Flow>(&mut self, keep: Option<i64>) {
+        if let Some(id) = self.selected() {
+            self.refresh_fleet_tank(id);
+            self.rebuild_tank(id);
+        }
+        let t = self.store_tank();
+        let units = self.view.units;
+        let form = keep
+            .and_then(|id| F::load(&self.store, id).ok())
+            .unwrap_or_else(|| F::blank(t.as_ref(), units));
+        let editor = F::editor(&mut self.view);
+        editor.form = form;
+        editor.check = FormCheck::default();
+        self.load_history::<F>(keep);
+    }
+
+    fn fail(&mut self, e: impl Into<AppError>) {
         self.view.notice = None;
-        self.view.error = Some(e.to_string());
+        self.view.error = Some(describe(&e.into()));
     }
 
     fn saved(&mut self, what: String) {
@@ -312,14 +395,10 @@ impl Core {
             Action::SelectTank(id) => {
                 self.view.page = Page::Tank;
                 self.rebuild_tank(id);
-                let t = self.store_tank();
-                self.view.reading_form = build::new_reading_form(t.as_ref(), self.view.units);
-                self.view.delivery_form = build::new_delivery_form(self.view.units);
-                self.view.reading_check = FormCheck::default();
-                self.view.delivery_check = FormCheck::default();
+                self.select::<ReadingFlow>(None);
+                self.select::<DeliveryFlow>(None);
                 self.view.notice = None;
                 self.view.error = None;
-                self.load_history("readings", None);
             }
             Action::SetFleetFilter(text) => {
                 self.view.fleet.filter = text;
@@ -361,80 +440,23 @@ impl Core {
                     t.trend = build::trend(t, units, t.trend.quantity);
                     t.trend.period_days = period;
                 }
-                self.recheck_reading();
+                self.recheck::<ReadingFlow>();
                 self.recheck_setup();
             }
             Action::EditReadingForm(form) => {
-                self.view.reading_form = form;
-                self.recheck_reading();
+                self.view.reading_editor.form = form;
+                self.recheck::<ReadingFlow>();
             }
-            Action::SaveReading => self.save_reading(),
-            Action::SelectReading(id) => {
-                let units = self.view.units;
-                self.view.reading_form = match id {
-                    Some(id) => match build::reading_form_for(&self.store, id) {
-                        Ok(f) => f,
-                        Err(e) => return self.fail(e),
-                    },
-                    None => build::new_reading_form(self.store_tank().as_ref(), units),
-                };
-                self.view.reading_check = FormCheck::default();
-                if id.is_some() {
-                    self.recheck_reading();
-                }
-                self.load_history("readings", id);
-            }
-            Action::DeleteReading => {
-                let f = &self.view.reading_form;
-                let (Some(id), reason) = (f.editing, f.reason.trim().to_owned()) else {
-                    return;
-                };
-                if reason.is_empty() {
-                    return self.fail("say why the reading is deleted (kept in its history)");
-                }
-                match self.store.delete_reading(id, &reason) {
-                    Ok(()) => {
-                        self.after_reading_change(None);
-                        self.saved("Reading deleted; its values stay in the history.".into());
-                    }
-                    Err(e) => self.fail(e),
-                }
-            }
+            Action::SaveReading => self.save::<ReadingFlow>(),
+            Action::SelectReading(id) => self.select::<ReadingFlow>(id),
+            Action::DeleteReading => self.delete::<ReadingFlow>(),
             Action::EditDeliveryForm(form) => {
-                self.view.delivery_form = form;
-                self.recheck_delivery();
+                self.view.delivery_editor.form = form;
+                self.recheck::<DeliveryFlow>();
             }
-            Action::SaveDelivery => self.save_delivery(),
-            Action::SelectDelivery(id) => {
-                self.view.delivery_form = match id {
-                    Some(id) => match build::delivery_form_for(&self.store, id) {
-                        Ok(f) => f,
-                        Err(e) => return self.fail(e),
-                    },
-                    None => build::new_delivery_form(self.view.units),
-                };
-                self.view.delivery_check = FormCheck::default();
-                if id.is_some() {
-                    self.recheck_delivery();
-                }
-                self.load_history("deliveries", id);
-            }
-            Action::DeleteDelivery => {
-                let f = &self.view.delivery_form;
-                let (Some(id), reason) = (f.editing, f.reason.trim().to_owned()) else {
-                    return;
-                };
-                if reason.is_empty() {
-                    return self.fail("say why the delivery is deleted (kept in its history)");
-                }
-                match self.store.delete_delivery(id, &reason) {
-                    Ok(()) => {
-                        self.after_delivery_change(None);
-                        self.saved("Delivery deleted; its values stay in the history.".into());
-                    }
-                    Err(e) => self.fail(e),
-                }
-            }
+            Action::SaveDelivery => self.save::<DeliveryFlow>(),
+            Action::SelectDelivery(id) => self.select::<DeliveryFlow>(id),
+            Action::DeleteDelivery => self.delete::<DeliveryFlow>(),
             Action::SetTrendQuantity(q) => {
                 let units = self.view.units;
                 if let Some(t) = &mut self.view.tank {
@@ -463,97 +485,6 @@ impl Core {
                     self.rebuild_tank(id);
                 }
             }
-        }
-    }
-
-    fn after_reading_change(&mut self, keep: Option<i64>) {
-        if let Some(id) = self.selected() {
-            self.rebuild_tank(id);
-            self.refresh_fleet_tank(id);
-        }
-        let t = self.store_tank();
-        self.view.reading_form = match keep {
-            Some(rid) => build::reading_form_for(&self.store, rid)
-                .unwrap_or_else(|_| build::new_reading_form(t.as_ref(), self.view.units)),
-            None => build::new_reading_form(t.as_ref(), self.view.units),
-        };
-        self.view.reading_check = FormCheck::default();
-        self.load_history("readings", keep);
-    }
-
-    fn after_delivery_change(&mut self, keep: Option<i64>) {
-        if let Some(id) = self.selected() {
-            self.rebuild_tank(id);
-            self.refresh_fleet_tank(id);
-        }
-        self.view.delivery_form = match keep {
-            Some(did) => build::delivery_form_for(&self.store, did)
-                .unwrap_or_else(|_| build::new_delivery_form(self.view.units)),
-            None => build::new_delivery_form(self.view.units),
-        };
-        self.view.delivery_check = FormCheck::default();
-        self.load_history("deliveries", keep);
-    }
-
-    fn save_reading(&mut self) {
-        let Some(t) = self.store_tank() else {
-            return self.fail("select a tank first");
-        };
-        let (check, input) = build::check_reading(&self.view.reading_form, &t, self.view.units);
-        self.view.reading_check = check;
-        let Some(input) = input else {
-            return;
-        };
-        let form = &self.view.reading_form;
-        let result = match form.editing {
-            Some(id) => {
-                let reason = form.reason.trim().to_owned();
-                self.store
-                    .edit_reading(id, &input, &reason)
-                    .map(|()| (Some(id), format!("Reading of {} changed.", input.time.text)))
-            }
-            None => self
-                .store
-                .add_reading(t.id, &input)
-                .map(|_| (None, format!("Reading of {} saved.", input.time.text))),
-        };
-        match result {
-            Ok((keep, msg)) => {
-                self.after_reading_change(keep);
-                self.saved(msg);
-            }
-            Err(e) => self.fail(e),
-        }
-    }
-
-    fn save_delivery(&mut self) {
-        let Some(t) = self.store_tank() else {
-            return self.fail("select a tank first");
-        };
-        let (check, input) = build::check_delivery(&self.view.delivery_form, &t);
-        self.view.delivery_check = check;
-        let Some(input) = input else {
-            return;
-        };
-        let form = &self.view.delivery_form;
-        let result = match form.editing {
-            Some(id) => {
-                let reason = form.reason.trim().to_owned();
-                self.store
-                    .edit_delivery(id, &input, &reason)
-                    .map(|()| (Some(id), format!("Delivery {} changed.", input.ticket)))
-            }
-            None => self
-                .store
-                .add_delivery(t.id, &input)
-                .map(|_| (None, format!("Delivery {} saved.", input.ticket))),
-        };
-        match result {
-            Ok((keep, msg)) => {
-                self.after_delivery_change(keep);
-                self.saved(msg);
-            }
-            Err(e) => self.fail(e),
         }
     }
 
@@ -592,8 +523,11 @@ impl Core {
             return self.fail(e);
         }
         let result = match self.view.setup_form.editing {
-            Some(id) => self.store.edit_tank(id, &spec, &reason).map(|()| id),
-            None => self.store.add_tank(&spec),
+            Some(id) => self
+                .store
+                .edit_tank(TankId(id), &spec, &reason)
+                .map(|()| id),
+            None => self.store.add_tank(&spec).map(|id| id.0),
         };
         match result {
             Ok(id) => {

@@ -14,10 +14,10 @@
 
 pub mod action;
 pub mod build;
+pub mod flow;
 pub mod fmt;
 pub mod panels;
 pub mod style;
-pub mod thermal;
 pub mod view;
 
 use action::{Action, Core};
@@ -27,6 +27,50 @@ use std::path::PathBuf;
 use std::time::Instant;
 use store::Store;
 use view::{Page, TankTab, ViewState};
+
+/// Why something the window asked for failed.
+#[derive(Debug, thiserror::Error)]
+pub enum AppError {
+    /// The ledger refused or failed.
+    #[error(transparent)]
+    Store(#[from] store::StoreError),
+    /// Stored records could not be evaluated.
+    #[error(transparent)]
+    Eval(#[from] evaluate::EvalError),
+    /// A request that cannot be carried out now (e.g. saving with no tank selected).
+    #[error("{0}")]
+    Refused(String),
+    /// The background fleet summary ended without a result.
+    #[error("the fleet summary stopped unexpectedly")]
+    BackgroundStopped,
+}
+
+impl From<&str> for AppError {
+    fn from(s: &str) -> Self {
+        AppError::Refused(s.to_owned())
+    }
+}
+
+impl From<String> for AppError {
+    fn from(s: String) -> Self {
+        AppError::Refused(s)
+    }
+}
+
+/// An error with its causes, each once, as one line for the window.
+pub fn describe(e: &(dyn std::error::Error + 'static)) -> String {
+    let mut text = e.to_string();
+    let mut source = e.source();
+    while let Some(s) = source {
+        let part = s.to_string();
+        if !text.ends_with(&part) {
+            text.push_str(": ");
+            text.push_str(&part);
+        }
+        source = s.source();
+    }
+    text
+}
 
 /// What is remembered between sessions (eframe storage).
 #[derive(Debug, Clone, Copy, PartialEq, Default, Serialize, Deserialize)]
@@ -72,9 +116,15 @@ impl CryoApp {
         &self.core.view
     }
 
-    /// The open store (read it in tests; writes go through actions).
-    pub fn store(&self) -> &Store {
-        &self.core.store
+    /// The fleet audit behind the fleet list and the open findings (None until the fleet summary is
+    /// in).
+    pub fn fleet_audit(&self) -> Option<&audit::FleetAudit> {
+        self.core.fleet_audit()
+    }
+
+    /// The open ledger, to read (tests); writes go through actions.
+    pub fn repository(&self) -> &dyn store::Repository {
+        self.core.repository()
     }
 
     /// Queue a user intent (panels and tests).
@@ -113,7 +163,8 @@ impl CryoApp {
         let name = parts.next().unwrap_or("");
         let tab = parts.next().unwrap_or("now");
         let edit_latest = parts.next() == Some("latest");
-        let lookup = |core: &Core, name: &str| core.store.tank_by_name(name).ok().map(|t| t.id);
+        let lookup =
+            |core: &Core, name: &str| core.repository().tank_by_name(name).ok().map(|t| t.id.0);
         match kind {
             "help" => self.push(Action::ShowHelp),
             "setup" if name == "new" || name.is_empty() => self.push(Action::OpenSetup(None)),
@@ -131,10 +182,11 @@ impl CryoApp {
                         if edit_latest {
                             let latest = self
                                 .core
-                                .store
-                                .readings(id, None)
+                                .repository()
+                                .latest_reading(store::TankId(id))
                                 .ok()
-                                .and_then(|r| r.last().map(|r| r.id));
+                                .flatten()
+                                .map(|r| r.id.0);
                             self.push(Action::SelectReading(latest));
                         }
                     }

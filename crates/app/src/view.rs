@@ -355,14 +355,8 @@ pub struct TrendView {
     pub hover: Vec<String>,
 }
 
-/// A message from a check, at its field.
-#[derive(Debug, Clone, PartialEq)]
-pub struct FieldMessage {
-    /// The field (as the checker names it: `dp`, `pressure_unit`, ...).
-    pub field: String,
-    /// What is wrong.
-    pub reason: String,
-}
+/// A message from a check, at its field: the store's own field error.
+pub use store::FieldError as FieldMessage;
 
 /// A form's checked state.
 #[derive(Debug, Clone, PartialEq, Default)]
@@ -383,6 +377,18 @@ impl FormCheck {
             .filter(move |e| e.field == prefix || e.field.starts_with(&format!("{prefix}_")))
             .map(|e| e.reason.as_str())
     }
+}
+
+/// A record's entry form with its check and the history of the record it edits: one per record kind,
+/// so each form shows its own record's history.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct Editor<F> {
+    /// The form as typed.
+    pub form: F,
+    /// Its check.
+    pub check: FormCheck,
+    /// Earlier versions of the record being edited, oldest first (empty for a new record).
+    pub history: Vec<HistoryRow>,
 }
 
 /// The text of the reading form, as typed.
@@ -533,8 +539,6 @@ pub struct TankView {
     pub now: NowView,
     /// The trend.
     pub trend: TrendView,
-    /// History of the reading or delivery being edited.
-    pub history: Vec<HistoryRow>,
     /// Time to build this page, ms (shown in the status bar).
     pub build_ms: f64,
 }
@@ -552,14 +556,10 @@ pub struct ViewState {
     pub fleet: FleetView,
     /// The tank page, when a tank is selected.
     pub tank: Option<TankView>,
-    /// The reading form.
-    pub reading_form: ReadingForm,
-    /// Its check.
-    pub reading_check: FormCheck,
-    /// The delivery form.
-    pub delivery_form: DeliveryForm,
-    /// Its check.
-    pub delivery_check: FormCheck,
+    /// The reading form, its check and the history of the reading it edits.
+    pub reading_editor: Editor<ReadingForm>,
+    /// The delivery form, its check and the history of the delivery it edits.
+    pub delivery_editor: Editor<DeliveryForm>,
     /// The setup form.
     pub setup_form: SetupForm,
     /// Its check.

@@ -15,6 +15,7 @@ use app::view::TankTab;
 use common::{DAY_MS, add_history, tank_fields};
 use egui_kittest::Harness;
 use std::time::Instant;
+use store::Repository;
 
 fn stats(mut v: Vec<f64>) -> (f64, f64, f64) {
     v.sort_by(f64::total_cmp);
@@ -73,7 +74,7 @@ fn frame_time_with_a_five_year_trend_and_a_fleet_of_1000_tanks() {
     let mut opens = Vec::new();
     for _ in 0..5 {
         let t = Instant::now();
-        app.push(Action::SelectTank(big));
+        app.push(Action::SelectTank(big.0));
         app.drain_actions();
         opens.push(t.elapsed().as_secs_f64() * 1e3);
     }

@@ -23,8 +23,8 @@ fn harness(store: store::Store) -> Harness<'static, CryoApp> {
     h
 }
 
-fn tank_id(h: &Harness<'_, CryoApp>, name: &str) -> i64 {
-    h.state().store().tank_by_name(name).expect("tank").id
+fn tank_id(h: &Harness<'_, CryoApp>, name: &str) -> store::TankId {
+    h.state().repository().tank_by_name(name).expect("tank").id
 }
 
 fn select(h: &mut Harness<'_, CryoApp>, name: &str) {
@@ -83,23 +83,23 @@ fn a_valid_reading_is_saved_shown_first_and_changes_the_contents() {
     // The preview shows what the reading implies before it is saved.
     assert!(h.query_by_label("This reading means").is_some());
     assert!(
-        h.state().view().reading_check.ok,
+        h.state().view().reading_editor.check.ok,
         "{:?}",
-        h.state().view().reading_check
+        h.state().view().reading_editor.check
     );
     h.get_by_label("Save reading").click();
     h.run();
-    let stored = h.state().store().readings(id, None).expect("readings");
+    let stored = h.state().repository().readings(id, None).expect("readings");
     assert_eq!(stored.len(), 6);
     let newest = stored.last().expect("newest");
-    assert_eq!(newest.input.dp.value, 30.0);
+    assert_eq!(newest.entry.dp.value, 30.0);
     // Shown first in the table, and the Now figures follow it.
     assert!(
-        h.query_by_label(&app::fmt::date_time(newest.input.time.ms))
+        h.query_by_label(&app::fmt::date_time(newest.entry.time.ms))
             .is_some()
     );
     let t = h.state().view().tank.as_ref().expect("tank");
-    assert_eq!(t.readings.first().map(|r| r.id), Some(newest.id));
+    assert_eq!(t.readings.first().map(|r| r.id), Some(newest.id.0));
     let after_mass = t
         .now
         .latest
@@ -123,12 +123,12 @@ fn an_invalid_dp_shows_a_message_at_the_field_and_nothing_is_saved() {
     type_into(&mut h, "DP", "abc");
     type_into(&mut h, "Tank pressure", "11");
     assert!(h.query_by_label_contains("is not a number").is_some());
-    assert!(!h.state().view().reading_check.ok);
+    assert!(!h.state().view().reading_editor.check.ok);
     h.get_by_label("Save reading").click();
     h.run();
     assert_eq!(
         h.state()
-            .store()
+            .repository()
             .readings(id, None)
             .expect("readings")
             .len(),
@@ -141,7 +141,7 @@ fn an_invalid_dp_shows_a_message_at_the_field_and_nothing_is_saved() {
     h.run();
     assert_eq!(
         h.state()
-            .store()
+            .repository()
             .readings(id, None)
             .expect("readings")
             .len(),
@@ -156,7 +156,7 @@ fn a_delivery_is_added_and_listed() {
     let id = tank_id(&h, "CR-O2-1");
     let before = h
         .state()
-        .store()
+        .repository()
         .deliveries(Some(id))
         .expect("deliveries")
         .len();
@@ -166,19 +166,23 @@ fn a_delivery_is_added_and_listed() {
     type_into(&mut h, "Carrier", "Fernhill Haulage");
     type_into(&mut h, "Vehicle", "FH-9");
     assert!(
-        h.state().view().delivery_check.ok,
+        h.state().view().delivery_editor.check.ok,
         "{:?}",
-        h.state().view().delivery_check
+        h.state().view().delivery_editor.check
     );
     h.get_by_label("Save delivery").click();
     h.run();
-    let all = h.state().store().deliveries(Some(id)).expect("deliveries");
+    let all = h
+        .state()
+        .repository()
+        .deliveries(Some(id))
+        .expect("deliveries");
     assert_eq!(all.len(), before + 1);
     let d = all
         .iter()
-        .find(|d| d.input.ticket == "T-77001")
+        .find(|d| d.entry.ticket == "T-77001")
         .expect("saved");
-    assert_eq!(d.input.quantity.value, 3.2);
+    assert_eq!(d.entry.quantity.value, 3.2);
     assert!(h.query_by_label("T-77001").is_some());
 }
 
@@ -214,15 +218,18 @@ fn an_edited_reading_keeps_its_old_value_in_the_history() {
     select(&mut h, "LF-N2-1");
     let id = tank_id(&h, "LF-N2-1");
     tab(&mut h, "Readings");
-    let first = h.state().store().readings(id, None).expect("readings")[0].clone();
-    let old_dp = first.input.dp.value;
-    h.get_by_label(&app::fmt::date_time(first.input.time.ms))
+    let first = h.state().repository().readings(id, None).expect("readings")[0].clone();
+    let old_dp = first.entry.dp.value;
+    h.get_by_label(&app::fmt::date_time(first.entry.time.ms))
         .click();
     h.run();
-    assert_eq!(h.state().view().reading_form.editing, Some(first.id));
+    assert_eq!(
+        h.state().view().reading_editor.form.editing,
+        Some(first.id.0)
+    );
     type_into(&mut h, "DP", "99.5");
     // No reason, no save.
-    assert!(!h.state().view().reading_check.ok);
+    assert!(!h.state().view().reading_editor.check.ok);
     type_into(
         &mut h,
         "Reason for the change",
@@ -230,12 +237,12 @@ fn an_edited_reading_keeps_its_old_value_in_the_history() {
     );
     h.get_by_label("Save change").click();
     h.run();
-    let now = h.state().store().reading(first.id).expect("reading");
-    assert_eq!(now.input.dp.value, 99.5);
+    let now = h.state().repository().reading(first.id).expect("reading");
+    assert_eq!(now.entry.dp.value, 99.5);
     let revs = h
         .state()
-        .store()
-        .revisions("readings", first.id)
+        .repository()
+        .history(store::RecordRef::Reading(first.id))
         .expect("revisions");
     assert_eq!(revs.len(), 1);
     assert_eq!(revs[0].reason, "transcription error on the round sheet");
@@ -263,7 +270,11 @@ fn tank_setup_creates_a_tank_with_a_live_full_tank_dp() {
     );
     h.get_by_label("Create tank").click();
     h.run();
-    let t = h.state().store().tank_by_name("MD-N2-1").expect("created");
+    let t = h
+        .state()
+        .repository()
+        .tank_by_name("MD-N2-1")
+        .expect("created");
     assert_eq!(t.spec.site, "Millbrook Dairy");
     assert_eq!(t.spec.reorder_percent, Some(30.0));
     // It is in the navigator.
@@ -298,16 +309,16 @@ fn an_edited_delivery_keeps_its_history_and_a_short_fill_marks_the_tank() {
     tab(&mut h, "Deliveries");
     let d = h
         .state()
-        .store()
+        .repository()
         .deliveries(Some(id))
         .expect("deliveries")
         .last()
         .cloned()
         .expect("a fill in 40 days");
-    let billed = d.input.quantity.value;
-    h.get_by_label(&d.input.ticket).click();
+    let billed = d.entry.quantity.value;
+    h.get_by_label(&d.entry.ticket).click();
     h.run();
-    assert_eq!(h.state().view().delivery_form.editing, Some(d.id));
+    assert_eq!(h.state().view().delivery_editor.form.editing, Some(d.id.0));
     // Billed three times what the tank gained: the audit must call this fill short.
     type_into(&mut h, "Quantity", &format!("{}", billed * 3.0));
     type_into(
@@ -317,12 +328,12 @@ fn an_edited_delivery_keeps_its_history_and_a_short_fill_marks_the_tank() {
     );
     h.get_by_label("Save change").click();
     h.run();
-    let now = h.state().store().delivery(d.id).expect("delivery");
-    assert_eq!(now.input.quantity.value, billed * 3.0);
+    let now = h.state().repository().delivery(d.id).expect("delivery");
+    assert_eq!(now.entry.quantity.value, billed * 3.0);
     let revs = h
         .state()
-        .store()
-        .revisions("deliveries", d.id)
+        .repository()
+        .history(store::RecordRef::Delivery(d.id))
         .expect("revisions");
     assert_eq!(revs.len(), 1);
     assert!(
@@ -334,7 +345,7 @@ fn an_edited_delivery_keeps_its_history_and_a_short_fill_marks_the_tank() {
     assert!(
         t.attention
             .iter()
-            .any(|a| matches!(a, Attention::OpenFinding(f) if f.contains(&d.input.ticket))),
+            .any(|a| matches!(a, Attention::OpenFinding(f) if f.contains(&d.entry.ticket))),
         "{:?}",
         t.attention
     );
@@ -345,7 +356,7 @@ fn an_edited_delivery_keeps_its_history_and_a_short_fill_marks_the_tank() {
         .sites
         .iter()
         .flat_map(|s| &s.tanks)
-        .find(|t| t.id == id)
+        .find(|t| t.id == id.0)
         .expect("line");
     assert!(
         line.attention
@@ -362,13 +373,13 @@ fn a_deleted_reading_leaves_the_log_and_keeps_its_history() {
     tab(&mut h, "Readings");
     let last = h
         .state()
-        .store()
+        .repository()
         .readings(id, None)
         .expect("readings")
         .last()
         .cloned()
         .expect("reading");
-    h.get_by_label(&app::fmt::date_time(last.input.time.ms))
+    h.get_by_label(&app::fmt::date_time(last.entry.time.ms))
         .click();
     h.run();
     // Without a reason the delete button does nothing.
@@ -376,7 +387,7 @@ fn a_deleted_reading_leaves_the_log_and_keeps_its_history() {
     h.run();
     assert_eq!(
         h.state()
-            .store()
+            .repository()
             .readings(id, None)
             .expect("readings")
             .len(),
@@ -391,7 +402,7 @@ fn a_deleted_reading_leaves_the_log_and_keeps_its_history() {
     h.run();
     assert_eq!(
         h.state()
-            .store()
+            .repository()
             .readings(id, None)
             .expect("readings")
             .len(),
@@ -399,13 +410,13 @@ fn a_deleted_reading_leaves_the_log_and_keeps_its_history() {
     );
     let revs = h
         .state()
-        .store()
-        .revisions("readings", last.id)
+        .repository()
+        .history(store::RecordRef::Reading(last.id))
         .expect("revisions");
     assert_eq!(revs.len(), 1);
-    assert_eq!(revs[0].action, "delete");
+    assert_eq!(revs[0].action.as_str(), "delete");
     assert!(
-        h.query_by_label(&app::fmt::date_time(last.input.time.ms))
+        h.query_by_label(&app::fmt::date_time(last.entry.time.ms))
             .is_none()
     );
     assert!(h.query_by_label_contains("Reading deleted").is_some());

@@ -4,8 +4,9 @@ use std::collections::BTreeMap;
 
 use serde::Serialize;
 
+use crate::balance::set_verdict;
+use crate::records::{Balance, Finding, Forecast, TankAudit};
 use crate::stats::{holm_adjust, median, t_critical, t_two_sided_p, weighted_line};
-use crate::tank_audit::{Balance, Finding, Forecast, TankAudit, set_verdict};
 use crate::{AuditOptions, Verdict};
 
 const YEAR_MS: f64 = 365.0 * 86_400_000.0;
@@ -107,6 +108,9 @@ pub struct TankSummary {
     pub readings_refused: usize,
     /// Use rate and next fill.
     pub forecast: Option<Forecast>,
+    /// The state behind the latest accepted reading (for the window's fleet list; not in reports).
+    #[serde(skip)]
+    pub latest: Option<crate::ReadingState>,
 }
 
 /// The fleet's audit.
@@ -376,6 +380,7 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
             readings_used: t.readings_used,
             readings_refused: t.readings_refused,
             forecast: t.forecast,
+            latest: t.latest,
         });
     }
     let _ = tank_names;

@@ -68,20 +68,25 @@
 //! ```
 #![deny(missing_docs)]
 
+mod balance;
+mod between_fills;
 mod fleet;
 mod props;
+mod records;
 pub mod stats;
 mod tank_audit;
+mod thermal;
 
 use serde::Serialize;
 
 pub use fleet::{
     FleetAudit, GaugeFinding, GaugeStatus, TankSummary, VehicleFinding, VehicleStatus, audit_fleet,
 };
-pub use tank_audit::{
-    Balance, BracketReading, Finding, FindingKind, Forecast, ReadingState, TankAudit, audit_tank,
-    default_ner_percent_per_day, default_supply_pressure_pa, mix_liquids,
+pub use records::{
+    Balance, BracketReading, Finding, FindingKind, Forecast, ReadingState, TankAudit,
 };
+pub use tank_audit::audit_tank;
+pub use thermal::{default_ner_percent_per_day, default_supply_pressure_pa, mix_liquids};
 
 /// One tank's inputs, SI.
 #[derive(Debug, Clone)]
@@ -90,7 +95,7 @@ pub struct TankInput {
     pub name: String,
     /// The engine tank (geometry, fluid, gauge).
     pub tank: tank::Tank<&'static fluids::Fluid>,
-    /// NER setting, % per day (None: [`default_ner_percent_per_day`]).
+    /// NER setting, % per day (None: [`default_ner_percent_per_day`], from the insulation's heat leak).
     pub ner_percent_per_day: Option<f64>,
     /// Reorder level, % of gross volume (None: no forecast of the next fill).
     pub reorder_percent: Option<f64>,
@@ -282,19 +287,19 @@ impl Default for AuditOptions {
 #[derive(Debug, thiserror::Error)]
 pub enum AuditError {
     /// The tank's fluid refused a state the audit needs (e.g. its reference saturation).
-    #[error("tank {tank}: {source}")]
+    #[error("tank {tank}: {cause}")]
     Fluid {
         /// Tank name.
         tank: String,
         /// The fluid engine's error.
-        source: fluids::FluidError,
+        cause: fluids::FluidError,
     },
     /// The contents engine refused the tank's settings.
-    #[error("tank {tank}: {source}")]
+    #[error("tank {tank}: {cause}")]
     Tank {
         /// Tank name.
         tank: String,
         /// The contents engine's error.
-        source: tank::TankError,
+        cause: tank::TankError,
     },
 }

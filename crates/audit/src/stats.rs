@@ -1,4 +1,7 @@
-//! Small statistics: medians, Student's t distribution, least squares, Holm's procedure.
+//! Small statistics: medians, Student's t distribution (through statrs), least squares, Holm's
+//! procedure.
+
+use statrs::distribution::{ContinuousCDF, StudentsT};
 
 /// The median of `values` (NaN-free); None when empty. Sorts a copy.
 pub fn median(values: &[f64]) -> Option<f64> {
@@ -24,114 +27,22 @@ pub fn mad_sigma(values: &[f64]) -> Option<f64> {
     median(&dev).map(|d| 1.4826 * d)
 }
 
-/// ln Γ(x) for x > 0, Lanczos approximation (g = 7, n = 9; as in Numerical Recipes, 3rd ed., 6.1).
-fn ln_gamma(x: f64) -> f64 {
-    const G: [f64; 9] = [
-        0.999_999_999_999_809_9,
-        676.520_368_121_885_1,
-        -1_259.139_216_722_402_8,
-        771.323_428_777_653_1,
-        -176.615_029_162_140_6,
-        12.507_343_278_686_905,
-        -0.138_571_095_265_720_12,
-        9.984_369_578_019_572e-6,
-        1.505_632_735_149_311_6e-7,
-    ];
-    if x < 0.5 {
-        let pi = std::f64::consts::PI;
-        return (pi / (pi * x).sin()).ln() - ln_gamma(1.0 - x);
-    }
-    let x = x - 1.0;
-    let mut a = G[0];
-    let t = x + 7.5;
-    for (i, g) in G.iter().enumerate().skip(1) {
-        a += g / (x + i as f64);
-    }
-    0.5 * (2.0 * std::f64::consts::PI).ln() + (x + 0.5) * t.ln() - t + a.ln()
+fn students_t(dof: f64) -> Option<StudentsT> {
+    StudentsT::new(0.0, 1.0, dof).ok()
 }
 
-/// Continued fraction of the incomplete beta function (modified Lentz; Numerical Recipes 6.4).
-fn beta_cf(a: f64, b: f64, x: f64) -> f64 {
-    const TINY: f64 = 1e-300;
-    let (qab, qap, qam) = (a + b, a + 1.0, a - 1.0);
-    let mut c = 1.0;
-    let mut d = 1.0 - qab * x / qap;
-    if d.abs() < TINY {
-        d = TINY;
-    }
-    d = 1.0 / d;
-    let mut h = d;
-    for m in 1..300 {
-        let m = f64::from(m);
-        let m2 = 2.0 * m;
-        let aa = m * (b - m) * x / ((qam + m2) * (a + m2));
-        d = 1.0 + aa * d;
-        if d.abs() < TINY {
-            d = TINY;
-        }
-        c = 1.0 + aa / c;
-        if c.abs() < TINY {
-            c = TINY;
-        }
-        d = 1.0 / d;
-        h *= d * c;
-        let aa = -(a + m) * (qab + m) * x / ((a + m2) * (qap + m2));
-        d = 1.0 + aa * d;
-        if d.abs() < TINY {
-            d = TINY;
-        }
-        c = 1.0 + aa / c;
-        if c.abs() < TINY {
-            c = TINY;
-        }
-        d = 1.0 / d;
-        let del = d * c;
-        h *= del;
-        if (del - 1.0).abs() < 1e-15 {
-            break;
-        }
-    }
-    h
-}
-
-/// Regularized incomplete beta function I_x(a, b).
-pub fn incomplete_beta(a: f64, b: f64, x: f64) -> f64 {
-    if x <= 0.0 {
-        return 0.0;
-    }
-    if x >= 1.0 {
-        return 1.0;
-    }
-    let ln_front = ln_gamma(a + b) - ln_gamma(a) - ln_gamma(b) + a * x.ln() + b * (1.0 - x).ln();
-    let front = ln_front.exp();
-    if x < (a + 1.0) / (a + b + 2.0) {
-        front * beta_cf(a, b, x) / a
-    } else {
-        1.0 - front * beta_cf(b, a, 1.0 - x) / b
-    }
-}
-
-/// Two-sided p-value of Student's t statistic `t` with `dof` degrees of freedom:
-/// P(|T| ≥ |t|) = I_{ν/(ν+t²)}(ν/2, 1/2).
+/// Two-sided p-value of Student's t statistic `t` with `dof` degrees of freedom, P(|T| ≥ |t|)
+/// (statrs' Student's t distribution; NaN for fewer than one degree of freedom).
 pub fn t_two_sided_p(t: f64, dof: f64) -> f64 {
     if !t.is_finite() {
         return 0.0;
     }
-    incomplete_beta(0.5 * dof, 0.5, dof / (dof + t * t)).clamp(0.0, 1.0)
+    students_t(dof).map_or(f64::NAN, |d| (2.0 * d.sf(t.abs())).clamp(0.0, 1.0))
 }
 
-/// The two-sided critical value t with P(|T| ≥ t) = `p` (bisection on [`t_two_sided_p`]).
+/// The two-sided critical value t with P(|T| ≥ t) = `p` (statrs' inverse distribution function).
 pub fn t_critical(p: f64, dof: f64) -> f64 {
-    let (mut lo, mut hi) = (0.0, 1e4);
-    for _ in 0..200 {
-        let mid = 0.5 * (lo + hi);
-        if t_two_sided_p(mid, dof) > p {
-            lo = mid;
-        } else {
-            hi = mid;
-        }
-    }
-    0.5 * (lo + hi)
+    students_t(dof).map_or(f64::NAN, |d| d.inverse_cdf(1.0 - 0.5 * p))
 }
 
 /// Weighted least-squares line y = a + b x with its slope's standard error from the scatter about

@@ -184,3 +184,25 @@ fn fitted_ner_moves_toward_truth() {
     assert_eq!(closer, identifiable);
     assert_eq!(kept, others);
 }
+
+/// The default NER of a tank without a nameplate figure: a 10 m³ nitrogen tank near 0.4 % per day,
+/// inside the 0.2–0.5 % per day band makers state for vacuum-perlite bulk tanks of that size (from
+/// memory), and a 50 m³ tank lower (surface over volume falls as V^(-1/3): 5^(-1/3) = 0.585, a
+/// geometric identity of the model, checked to 1e-9).
+#[test]
+fn default_ner_is_in_the_published_band() {
+    let f = fluid(FluidId::Nitrogen);
+    let sat = f.saturation_from_pressure(101_325.0).unwrap();
+    let ner = |v: f64| {
+        audit::default_ner_percent_per_day(
+            FluidId::Nitrogen,
+            v,
+            v * sat.liquid_density_kg_m3,
+            sat.latent_heat_j_kg(),
+            sat.temperature_k,
+        )
+    };
+    let small = ner(10.0);
+    assert!((0.2..=0.5).contains(&small), "{small}");
+    assert!((ner(50.0) / small - 5f64.powf(-1.0 / 3.0)).abs() < 1e-9);
+}

@@ -60,11 +60,13 @@ pub use curves::CurveInfo;
 pub use error::{FluidError, Quantity};
 pub use fluid::{CriticalPoint, Fluid, StateProperties, TriplePoint};
 pub use helmholtz::{IdealDerivatives, ResidualDerivatives};
-pub use report::{SaturationReport, StateReport};
+pub use report::StateReport;
 pub use saturation::Saturation;
 
 /// The fluids this crate knows.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord, serde::Serialize)]
+#[derive(
+    Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord, serde::Serialize, serde::Deserialize,
+)]
 #[serde(rename_all = "kebab-case")]
 pub enum FluidId {
     /// N2

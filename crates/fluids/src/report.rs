@@ -1,46 +1,9 @@
-//! Serializable reports of a saturation state and of a single-phase state, as the command line prints them
-//! with `--format json`. Field names are part of the CLI contract (`tools/fluids_crosscheck.py` reads them).
+//! The serializable report of a single-phase state, as the command line prints it with `--format json`
+//! (a saturation state is printed from [`crate::Saturation`] itself). Field names are part of the CLI contract (`tools/fluids_crosscheck.py` reads them).
 
 use serde::Serialize;
 
-use crate::{FluidId, PhaseKind, Saturation};
-
-/// One saturation state.
-#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
-pub struct SaturationReport {
-    /// Fluid name ([`FluidId::name`]).
-    pub fluid: &'static str,
-    /// K.
-    pub temperature_k: f64,
-    /// Pa.
-    pub pressure_pa: f64,
-    /// kg/m³.
-    pub liquid_density_kg_m3: f64,
-    /// kg/m³.
-    pub vapor_density_kg_m3: f64,
-    /// J/kg.
-    pub liquid_enthalpy_j_kg: f64,
-    /// J/kg.
-    pub vapor_enthalpy_j_kg: f64,
-    /// h_V - h_L, J/kg.
-    pub latent_heat_j_kg: f64,
-}
-
-impl SaturationReport {
-    /// The report of `sat` for `fluid`.
-    pub fn new(fluid: FluidId, sat: &Saturation) -> Self {
-        Self {
-            fluid: fluid.name(),
-            temperature_k: sat.temperature_k,
-            pressure_pa: sat.pressure_pa,
-            liquid_density_kg_m3: sat.liquid_density_kg_m3,
-            vapor_density_kg_m3: sat.vapor_density_kg_m3,
-            liquid_enthalpy_j_kg: sat.liquid_enthalpy_j_kg,
-            vapor_enthalpy_j_kg: sat.vapor_enthalpy_j_kg,
-            latent_heat_j_kg: sat.latent_heat_j_kg(),
-        }
-    }
-}
+use crate::PhaseKind;
 
 /// One single-phase state at (T, p).
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]

@@ -63,7 +63,8 @@ fn main() {
             "--fill-interval" => cfg.fill_interval_days = pair(&value),
             "--start" => {
                 let p: Vec<i64> = value.split('-').map(|x| x.parse().unwrap()).collect();
-                cfg.start_ms = days_from_civil(p[0], p[1], p[2]) * 86_400_000;
+                cfg.start_ms =
+                    days_from_civil(p[0], p[1], p[2]).expect("--start: a real date") * 86_400_000;
             }
             "--short" => {
                 let (v, f) = pair(&value);

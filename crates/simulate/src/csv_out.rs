@@ -1,6 +1,6 @@
-//! The fleet in the store's CSV import formats.
+//! The fleet in the store's CSV import formats, written with the csv crate.
 
-use std::fmt::Write as _;
+use std::io::Write;
 
 use units::Unit as _;
 
@@ -8,22 +8,35 @@ use crate::fleet::Fleet;
 
 pub use units::rfc3339_from_ms;
 
-fn quote(s: &str) -> String {
-    if s.contains([',', '"', '\n']) {
-        format!("\"{}\"", s.replace('"', "\"\""))
-    } else {
-        s.to_string()
-    }
+fn text(w: csv::Writer<Vec<u8>>) -> String {
+    w.into_inner()
+        .map(|bytes| String::from_utf8_lossy(&bytes).into_owned())
+        .unwrap_or_default()
 }
 
 impl Fleet {
     /// The tanks CSV (with the optional columns the simulator knows).
     pub fn tanks_csv(&self) -> String {
-        let mut out = String::from(
-            "site,tank,fluid,orientation,diameter_m,length_m,heads,line_temperature_c,elevation_m,dp_unit,\
-             gauge_span,gauge_accuracy_percent,relief_pressure,relief_pressure_unit,reorder_percent,\
-             ner_percent_per_day\n",
-        );
+        let mut w = csv::Writer::from_writer(Vec::new());
+        // writing into memory cannot fail
+        let _ = w.write_record([
+            "site",
+            "tank",
+            "fluid",
+            "orientation",
+            "diameter_m",
+            "length_m",
+            "heads",
+            "line_temperature_c",
+            "elevation_m",
+            "dp_unit",
+            "gauge_span",
+            "gauge_accuracy_percent",
+            "relief_pressure",
+            "relief_pressure_unit",
+            "reorder_percent",
+            "ner_percent_per_day",
+        ]);
         let mut sites = std::collections::BTreeSet::new();
         for t in &self.tanks {
             // the store keeps a site's elevation once: give it with the site's first tank only
@@ -32,79 +45,72 @@ impl Fleet {
             } else {
                 String::new()
             };
-            let _ = writeln!(
-                out,
-                "{},{},{},{},{},{},{},15,{},{},{},{},{:.1},barg,{},{}",
-                quote(&t.site),
-                quote(&t.name),
-                t.fluid.name(),
-                match t.orientation {
-                    tank::Orientation::Vertical => "vertical",
-                    tank::Orientation::Horizontal => "horizontal",
-                },
-                t.diameter_m,
-                t.length_m,
-                t.heads,
+            let _ = w.write_record([
+                t.site.clone(),
+                t.name.clone(),
+                t.fluid.name().to_owned(),
+                t.orientation.as_str().to_owned(),
+                format!("{}", t.diameter_m),
+                format!("{}", t.length_m),
+                t.heads.as_str().to_owned(),
+                "15".to_owned(),
                 elevation,
-                t.dp_unit.symbol(),
-                t.gauge_span,
-                t.gauge_accuracy_percent,
-                t.relief_barg,
-                t.reorder_percent,
-                t.ner_percent_per_day,
-            );
+                t.dp_unit.symbol().to_owned(),
+                format!("{}", t.gauge_span),
+                format!("{}", t.gauge_accuracy_percent),
+                format!("{:.1}", t.relief_barg),
+                "barg".to_owned(),
+                format!("{}", t.reorder_percent),
+                format!("{}", t.ner_percent_per_day),
+            ]);
         }
-        out
+        text(w)
     }
 
     /// The readings CSV, by tank then time.
     pub fn readings_csv(&self) -> String {
-        let mut out = String::with_capacity(self.readings.len() * 48 + 64);
-        out.push_str("tank,time,dp,dp_unit,pressure,pressure_unit\n");
-        self.write_readings(&mut out);
-        out
+        let mut out = Vec::with_capacity(self.readings.len() * 48 + 64);
+        // writing into memory cannot fail
+        let _ = self.write_readings_csv(&mut out);
+        String::from_utf8_lossy(&out).into_owned()
     }
 
-    /// Write the readings CSV (header included) to `w`, a tank at a time (for large fleets).
-    pub fn write_readings_csv(&self, w: &mut impl std::io::Write) -> std::io::Result<()> {
-        w.write_all(b"tank,time,dp,dp_unit,pressure,pressure_unit\n")?;
-        let mut buf = String::with_capacity(1 << 16);
-        for chunk in self.readings.chunks(4096) {
-            buf.clear();
-            self.write_reading_rows(chunk, &mut buf);
-            w.write_all(buf.as_bytes())?;
-        }
-        Ok(())
-    }
-
-    /// Append the readings rows (no header) to `out`.
-    pub fn write_readings(&self, out: &mut String) {
-        self.write_reading_rows(&self.readings, out);
-    }
-
-    fn write_reading_rows(&self, rows: &[crate::SimReading], out: &mut String) {
-        for r in rows {
+    /// Write the readings CSV (header included) to `w` (for large fleets, without a copy in memory).
+    pub fn write_readings_csv(&self, out: &mut impl Write) -> std::io::Result<()> {
+        let mut w = csv::Writer::from_writer(out);
+        w.write_record(["tank", "time", "dp", "dp_unit", "pressure", "pressure_unit"])?;
+        for r in &self.readings {
             let Some(t) = self.tanks.get(r.tank) else {
                 continue;
             };
-            let _ = writeln!(
-                out,
-                "{},{},{},{},{},{}",
-                quote(&t.name),
-                rfc3339_from_ms(r.time_ms),
-                r.dp,
+            w.write_record([
+                t.name.as_str(),
+                &rfc3339_from_ms(r.time_ms),
+                &format!("{}", r.dp),
                 t.dp_unit.symbol(),
-                r.pressure,
-                t.pressure_unit
-            );
+                &format!("{}", r.pressure),
+                t.pressure_unit,
+            ])?;
         }
+        w.flush()
     }
 
     /// The deliveries CSV (logged fills only), by tank then time.
     pub fn deliveries_csv(&self) -> String {
-        let mut out = String::from(
-            "tank,ticket,start,end,quantity,quantity_unit,carrier,vehicle,supply_pressure,supply_pressure_unit\n",
-        );
+        let mut w = csv::Writer::from_writer(Vec::new());
+        // writing into memory cannot fail
+        let _ = w.write_record([
+            "tank",
+            "ticket",
+            "start",
+            "end",
+            "quantity",
+            "quantity_unit",
+            "carrier",
+            "vehicle",
+            "supply_pressure",
+            "supply_pressure_unit",
+        ]);
         for d in self.deliveries.iter().filter(|d| d.logged) {
             let (Some(t), Some(v)) = (self.tanks.get(d.tank), self.vehicles.get(d.vehicle)) else {
                 continue;
@@ -113,21 +119,20 @@ impl Fleet {
                 Some(p) => (format!("{p}"), "barg"),
                 None => (String::new(), ""),
             };
-            let _ = writeln!(
-                out,
-                "{},{},{},{},{},kg,{},{},{},{}",
-                quote(&t.name),
-                d.ticket,
-                rfc3339_from_ms(d.start_ms),
-                rfc3339_from_ms(d.end_ms),
-                d.billed_kg,
-                quote(&v.carrier),
-                quote(&v.name),
-                sp,
-                spu
-            );
+            let _ = w.write_record([
+                t.name.as_str(),
+                &d.ticket,
+                &rfc3339_from_ms(d.start_ms),
+                &rfc3339_from_ms(d.end_ms),
+                &format!("{}", d.billed_kg),
+                "kg",
+                &v.carrier,
+                &v.name,
+                &sp,
+                spu,
+            ]);
         }
-        out
+        text(w)
     }
 }
 

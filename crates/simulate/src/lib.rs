@@ -33,8 +33,10 @@
 //! ```
 #![deny(missing_docs)]
 
+mod build;
 mod csv_out;
 mod fleet;
+mod forward;
 mod rng;
 
 pub use fleet::{
@@ -46,20 +48,20 @@ pub use rng::Rng;
 #[derive(Debug, thiserror::Error)]
 pub enum SimError {
     /// The contents engine refused a state.
-    #[error("tank {tank}: {source}")]
+    #[error("tank {tank}: {cause}")]
     Tank {
         /// The tank's name.
         tank: String,
         /// The engine's error.
-        source: tank::TankError,
+        cause: tank::TankError,
     },
     /// The fluid engine refused a state.
-    #[error("tank {tank}: {source}")]
+    #[error("tank {tank}: {cause}")]
     Fluid {
         /// The tank's name.
         tank: String,
         /// The engine's error.
-        source: fluids::FluidError,
+        cause: fluids::FluidError,
     },
     /// A configuration value is out of range.
     #[error("invalid configuration {name} = {value}: {reason}")]

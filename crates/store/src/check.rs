@@ -5,6 +5,10 @@ use crate::records::*;
 use std::fmt;
 use units::{DpUnit, Entered, QuantityUnit, TankPressureUnit};
 
+/// Masses one delivery can bring, kg: from a small top-up to several road trailers' loads on one
+/// ticket (a road trailer carries about 20 t; common practice, no source).
+pub const PLAUSIBLE_QUANTITY_KG: std::ops::RangeInclusive<f64> = 0.1..=200_000.0;
+
 /// One field's problem.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct FieldError {
@@ -106,15 +110,32 @@ impl Checker {
         }
     }
 
-    pub fn named<T: std::str::FromStr<Err = String>>(
-        &mut self,
-        field: &str,
-        text: &str,
-    ) -> Option<T> {
+    /// A vocabulary word (fluid, orientation, heads), parsed by its one parser.
+    pub fn named<T: std::str::FromStr>(&mut self, field: &str, text: &str) -> Option<T>
+    where
+        T::Err: fmt::Display,
+    {
         match text.parse::<T>() {
             Ok(v) => Some(v),
             Err(e) => {
-                self.fail(field, e);
+                self.fail(field, e.to_string());
+                None
+            }
+        }
+    }
+
+    /// A dimension within the range a real tank has.
+    pub fn plausible(
+        &mut self,
+        field: &'static str,
+        v: Option<f64>,
+        range: &std::ops::RangeInclusive<f64>,
+    ) -> Option<f64> {
+        let v = v?;
+        match tank::check_plausible(field, v, range) {
+            Ok(v) => Some(v),
+            Err(e) => {
+                self.fail(field, e.to_string());
                 None
             }
         }
@@ -203,7 +224,7 @@ pub struct ReadingFields<'a> {
 
 impl ReadingFields<'_> {
     /// Check every field; `barometer_pa` is the site's, to refuse pressures below vacuum.
-    pub fn check(&self, barometer_pa: f64) -> Result<ReadingInput, Vec<FieldError>> {
+    pub fn check(&self, barometer_pa: f64) -> Result<ReadingEntry, Vec<FieldError>> {
         let mut c = Checker::default();
         let time = c.stamp("time", self.time);
         let dp_value = c.number("dp", self.dp);
@@ -225,7 +246,7 @@ impl ReadingFields<'_> {
             .filter(|n| !n.is_empty())
             .map(str::to_owned);
         let value = (|| {
-            Some(ReadingInput {
+            Some(ReadingEntry {
                 time: time?,
                 dp: Entered {
                     value: dp_value?,
@@ -265,7 +286,7 @@ pub struct DeliveryFields<'a> {
 
 impl DeliveryFields<'_> {
     /// Check every field; `barometer_pa` is the site's.
-    pub fn check(&self, barometer_pa: f64) -> Result<DeliveryInput, Vec<FieldError>> {
+    pub fn check(&self, barometer_pa: f64) -> Result<DeliveryEntry, Vec<FieldError>> {
         let mut c = Checker::default();
         let ticket = c.required_text("ticket", self.ticket);
         let start = c.stamp("start", self.start);
@@ -278,6 +299,19 @@ impl DeliveryFields<'_> {
         let q = c.number("quantity", self.quantity);
         let q = c.positive("quantity", q);
         let qu = c.unit::<QuantityUnit>("quantity_unit", self.quantity_unit);
+        if let (Some(v), Some(u)) = (q, qu)
+            && let units::DeliveredQuantity::Mass(m) = (Entered { value: v, unit: u }).si()
+            && !PLAUSIBLE_QUANTITY_KG.contains(&m.kg())
+        {
+            c.fail(
+                "quantity",
+                format!(
+                    "{v} {u} is outside the plausible range {} to {} kg for one delivery",
+                    PLAUSIBLE_QUANTITY_KG.start(),
+                    PLAUSIBLE_QUANTITY_KG.end()
+                ),
+            );
+        }
         let carrier = c.required_text("carrier", self.carrier);
         let vehicle = c.required_text("vehicle", self.vehicle);
         let supply = match (
@@ -305,7 +339,7 @@ impl DeliveryFields<'_> {
         let ok_order = c.errors.iter().all(|e| e.field != "end");
         let value = (|| {
             ok_order.then_some(())?;
-            Some(DeliveryInput {
+            Some(DeliveryEntry {
                 ticket: ticket?,
                 start: start?,
                 end: end?,
@@ -421,13 +455,13 @@ impl TankFields<'_> {
         let mut c = Checker::default();
         let site = c.required_text("site", self.site);
         let name = c.required_text("tank", self.tank);
-        let fluid = c.named::<Fluid>("fluid", self.fluid);
+        let fluid = c.named::<FluidId>("fluid", self.fluid);
         let orientation = c.named::<Orientation>("orientation", self.orientation);
         let d = c.number("diameter_m", self.diameter_m);
-        let d = c.positive("diameter_m", d);
+        let d = c.plausible("diameter_m", d, &tank::PLAUSIBLE_DIAMETER_M);
         let l = c.number("length_m", self.length_m);
-        let l = c.positive("length_m", l);
-        let heads = c.named::<Heads>("heads", self.heads);
+        let l = c.plausible("length_m", l, &tank::PLAUSIBLE_LENGTH_M);
+        let heads = c.named::<HeadShape>("heads", self.heads);
         let line_c = c.number("line_temperature_c", self.line_temperature_c);
         let line_c = match line_c {
             Some(t) if t + units::CELSIUS_ZERO_K > 0.0 => Some(t),

@@ -1,16 +1,17 @@
-//! The SQLite log of sites, tanks, readings and deliveries.
+//! The ledger of sites, tanks, readings and deliveries.
 //!
-//! [`Store`] is a small repository interface in domain terms (add a reading, readings of a tank in a
-//! period, edit with a reason, ...); SQL stays inside this crate. The schema comes from the numbered
-//! files in `migrations/`, applied in order on open; the database runs in WAL mode with foreign keys on.
-//! Values a user typed are kept as entered beside their SI value, and edits and deletions keep the
-//! earlier version in a revision history ([`Store::revisions`]).
+//! [`Repository`] is the interface in domain terms (add a reading, readings of a tank in a period, edit
+//! with a reason, the history of a record, import from any reader, ...); callers never see SQL, tables
+//! or a driver. [`Store`] implements it on SQLite, the embedded default: the schema comes from the
+//! numbered files in `migrations/`, applied in order on open; the database runs in WAL mode with
+//! foreign keys on. Values a user typed are kept as entered beside their SI value, and edits and
+//! deletions keep the earlier version, decoded back into records by [`Repository::history`].
 //!
 //! Raw text becomes checked records through [`ReadingFields`], [`DeliveryFields`] and [`TankFields`];
-//! CSV import ([`Store::import`]) checks every row and writes all or nothing.
+//! CSV import ([`Repository::import`]) checks every row and writes all or nothing.
 //!
 //! ```
-//! use store::{Store, TankFields, ReadingFields};
+//! use store::{Repository, Store, TankFields, ReadingFields};
 //! let mut store = Store::open_in_memory().unwrap();
 //! let spec = TankFields { site: "North Yard", tank: "T-1", fluid: "nitrogen", orientation: "vertical",
 //!     diameter_m: "2.0", length_m: "5.0", heads: "ellipsoidal", line_temperature_c: "15",
@@ -24,39 +25,74 @@
 #![deny(missing_docs)]
 
 mod check;
-mod csv_io;
-mod db;
+mod csv_format;
 mod records;
+mod repository;
+mod sqlite;
 
 pub use check::{
-    DeliveryFields, FieldError, ReadingFields, TankFields, format_strapping, parse_strapping,
+    DeliveryFields, FieldError, PLAUSIBLE_QUANTITY_KG, ReadingFields, TankFields, format_strapping,
+    parse_strapping,
 };
-pub use csv_io::{
-    DELIVERY_HEADER, ImportErrors, ImportFiles, ImportOptions, ImportSummary, READING_HEADER,
-    ReadingCheck, RowError, TANK_HEADER,
+pub use csv_format::{
+    DELIVERY_HEADER, ImportErrors, ImportFiles, ImportOptions, ImportSource, ImportSources,
+    ImportSummary, READING_HEADER, ReadingCheck, RowError, TANK_HEADER,
 };
-pub use db::{MIGRATION_FILES, Store};
 pub use records::*;
+pub use repository::{RecordKind, Repository};
+pub use sqlite::{MIGRATION_FILES, Store};
+
+/// The database driver's own error, kept as its message (callers never see the driver's type).
+#[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]
+#[error("{message}")]
+pub struct DriverError {
+    /// What the driver said.
+    pub message: String,
+}
+
+impl From<rusqlite::Error> for StoreError {
+    fn from(e: rusqlite::Error) -> Self {
+        StoreError::Database(DriverError {
+            message: e.to_string(),
+        })
+    }
+}
+
+impl From<rusqlite_migration::Error> for StoreError {
+    fn from(e: rusqlite_migration::Error) -> Self {
+        StoreError::Migration(DriverError {
+            message: e.to_string(),
+        })
+    }
+}
 
 /// Why a store operation failed.
 #[derive(Debug, thiserror::Error)]
 pub enum StoreError {
-    /// SQLite reported an error.
-    #[error("database error: {0}")]
-    Sqlite(#[from] rusqlite::Error),
+    /// The database reported an error.
+    #[error("database error")]
+    Database(#[source] DriverError),
     /// The schema could not be brought up to date.
-    #[error("cannot bring the database schema up to date: {0}")]
-    Migration(#[from] rusqlite_migration::Error),
+    #[error("cannot bring the database schema up to date")]
+    Migration(#[source] DriverError),
     /// A file could not be read or written.
-    #[error("{path}: {source}")]
+    #[error("{path}")]
     Io {
         /// The file.
         path: String,
         /// The cause.
         source: std::io::Error,
     },
+    /// Stored data could not be read back.
+    #[error("{what} cannot be read: {reason}")]
+    Corrupt {
+        /// What was being read.
+        what: String,
+        /// Why it failed.
+        reason: String,
+    },
     /// CSV output failed.
-    #[error("writing CSV: {0}")]
+    #[error("writing CSV")]
     Csv(#[from] csv::Error),
     /// A record was not found.
     #[error("{what} '{key}' not found")]

@@ -1,86 +1,47 @@
 //! Record types the store maps: what a user entered, checked, with SI values beside it.
 
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 use std::fmt;
-use std::str::FromStr;
-use time::OffsetDateTime;
-use time::format_description::well_known::Rfc3339;
 use units::{DpUnit, Entered, QuantityUnit, TankPressureUnit};
 
-macro_rules! name_enum {
-    ($(#[$doc:meta])* $name:ident, $what:literal, { $($(#[$vdoc:meta])* $var:ident => $text:literal),+ $(,)? }) => {
+pub use fluids::FluidId;
+pub use tank::{HeadShape, Orientation};
+
+macro_rules! id_type {
+    ($(#[$doc:meta])* $name:ident) => {
         $(#[$doc])*
-        #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize)]
-        #[serde(rename_all = "kebab-case")]
-        pub enum $name { $($(#[$vdoc])* $var),+ }
-        impl $name {
-            /// Every value, in the order offered to users.
-            pub const ALL: &'static [Self] = &[$(Self::$var),+];
-            /// The name used in CSV files and the database.
-            pub fn as_str(self) -> &'static str { match self { $(Self::$var => $text),+ } }
-        }
-        impl FromStr for $name {
-            type Err = String;
-            fn from_str(s: &str) -> Result<Self, String> {
-                match s.trim().to_ascii_lowercase().as_str() {
-                    $($text => Ok(Self::$var),)+
-                    other => Err(format!(concat!("unknown ", $what, " '{}': expected one of {}"), other,
-                        [$($text),+].join(", "))),
-                }
-            }
-        }
+        #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize, Deserialize)]
+        #[serde(transparent)]
+        pub struct $name(pub i64);
         impl fmt::Display for $name {
-            fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result { f.write_str(self.as_str()) }
+            fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result { self.0.fmt(f) }
         }
     };
 }
 
-name_enum!(
-    /// The fluid a tank holds.
-    Fluid, "fluid", {
-        /// Nitrogen.
-        Nitrogen => "nitrogen",
-        /// Oxygen.
-        Oxygen => "oxygen",
-        /// Argon.
-        Argon => "argon",
-        /// Carbon dioxide.
-        CarbonDioxide => "carbon-dioxide",
-        /// Methane (LNG stand-in).
-        Methane => "methane",
-        /// Normal hydrogen.
-        Hydrogen => "hydrogen",
-        /// Parahydrogen.
-        Parahydrogen => "parahydrogen",
-    }
+id_type!(
+    /// A stored site.
+    SiteId
 );
-
-name_enum!(
-    /// How the vessel's axis stands.
-    Orientation, "orientation", {
-        /// Axis vertical.
-        Vertical => "vertical",
-        /// Axis horizontal.
-        Horizontal => "horizontal",
-    }
+id_type!(
+    /// A stored tank.
+    TankId
 );
-
-name_enum!(
-    /// The shape of both heads of the vessel.
-    Heads, "heads", {
-        /// Flat heads.
-        Flat => "flat",
-        /// Hemispherical heads (depth D/2).
-        Hemispherical => "hemispherical",
-        /// 2:1 ellipsoidal heads (depth D/4).
-        Ellipsoidal => "ellipsoidal",
-        /// Torispherical (flanged and dished) heads.
-        Torispherical => "torispherical",
-    }
+id_type!(
+    /// A stored reading.
+    ReadingId
+);
+id_type!(
+    /// A stored delivery.
+    DeliveryId
+);
+id_type!(
+    /// A stored vehicle.
+    VehicleId
 );
 
 /// An instant as the user wrote it (RFC 3339) and as milliseconds since 1970-01-01 UTC.
-#[derive(Debug, Clone, PartialEq, Eq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
 pub struct Stamp {
     /// The RFC 3339 text as entered.
     pub text: String,
@@ -104,19 +65,18 @@ impl Stamp {
 
     /// A stamp for an instant given in ms since the epoch, written in UTC.
     pub fn from_ms(ms: i64) -> Self {
-        let text = OffsetDateTime::from_unix_timestamp_nanos(i128::from(ms) * 1_000_000)
-            .ok()
-            .and_then(|dt| dt.format(&Rfc3339).ok())
-            .unwrap_or_else(|| ms.to_string());
-        Self { text, ms }
+        Self {
+            text: units::rfc3339_from_ms(ms),
+            ms,
+        }
     }
 }
 
 /// A site: a customer's location holding one or more tanks.
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct Site {
     /// Row id.
-    pub id: i64,
+    pub id: SiteId,
     /// Unique name.
     pub name: String,
     /// Elevation above sea level, m (barometer by the ICAO standard atmosphere).
@@ -142,14 +102,14 @@ pub fn barometer_pa(entered_pa: Option<f64>, elevation_m: Option<f64>) -> f64 {
 }
 
 /// A tank's settings: vessel, gauge, relief valve, and operating levels.
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct TankSpec {
     /// Unique tank name.
     pub name: String,
     /// Name of the site that holds it.
     pub site: String,
     /// Fluid held.
-    pub fluid: Fluid,
+    pub fluid: FluidId,
     /// Axis orientation.
     pub orientation: Orientation,
     /// Inner diameter, m.
@@ -157,7 +117,7 @@ pub struct TankSpec {
     /// Straight shell length (tangent to tangent), m.
     pub length_m: f64,
     /// Head shape.
-    pub heads: Heads,
+    pub heads: HeadShape,
     /// Torispherical crown radius as a fraction of D (None: 1.0).
     pub crown_ratio: Option<f64>,
     /// Torispherical knuckle radius as a fraction of D (None: 0.06).
@@ -194,11 +154,11 @@ impl TankSpec {
 
 /// A stored tank: its id, its site's id and barometer, and its settings.
 #[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct Tank {
+pub struct TankRecord {
     /// Row id.
-    pub id: i64,
+    pub id: TankId,
     /// Row id of its site.
-    pub site_id: i64,
+    pub site_id: SiteId,
     /// The site's barometer, Pa absolute.
     pub barometer_pa: f64,
     /// The settings.
@@ -206,8 +166,8 @@ pub struct Tank {
 }
 
 /// A reading as entered: one DP and pressure observation of a tank.
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct ReadingInput {
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct ReadingEntry {
     /// When it was read.
     pub time: Stamp,
     /// The DP as entered.
@@ -224,16 +184,16 @@ pub struct ReadingInput {
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Reading {
     /// Row id.
-    pub id: i64,
+    pub id: ReadingId,
     /// Row id of its tank.
-    pub tank_id: i64,
+    pub tank_id: TankId,
     /// What was entered.
-    pub input: ReadingInput,
+    pub entry: ReadingEntry,
 }
 
 /// A delivery as entered: one fill, with its ticket.
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct DeliveryInput {
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct DeliveryEntry {
     /// The ticket number (unique).
     pub ticket: String,
     /// Start of the fill.
@@ -254,18 +214,18 @@ pub struct DeliveryInput {
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Delivery {
     /// Row id.
-    pub id: i64,
+    pub id: DeliveryId,
     /// Row id of its tank.
-    pub tank_id: i64,
+    pub tank_id: TankId,
     /// What was entered.
-    pub input: DeliveryInput,
+    pub entry: DeliveryEntry,
 }
 
 /// A carrier's vehicle.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Vehicle {
     /// Row id.
-    pub id: i64,
+    pub id: VehicleId,
     /// Vehicle name (unique).
     pub name: String,
     /// Its carrier's name.
@@ -274,19 +234,63 @@ pub struct Vehicle {
     pub meter_repeatability_percent: Option<f64>,
 }
 
-/// An earlier version of an edited or deleted row.
-#[derive(Debug, Clone, PartialEq, Serialize)]
+/// Which stored record: the key of its history.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+pub enum RecordRef {
+    /// A site.
+    Site(SiteId),
+    /// A tank.
+    Tank(TankId),
+    /// A reading.
+    Reading(ReadingId),
+    /// A delivery.
+    Delivery(DeliveryId),
+}
+
+/// What a revision did to its record.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum RevisionAction {
+    /// The record's values were replaced.
+    Edit,
+    /// The record was deleted (kept, marked deleted).
+    Delete,
+}
+
+impl RevisionAction {
+    /// The word used in the database and in output.
+    pub fn as_str(self) -> &'static str {
+        match self {
+            RevisionAction::Edit => "edit",
+            RevisionAction::Delete => "delete",
+        }
+    }
+}
+
+/// A record's values before a change.
+#[derive(Debug, Clone, PartialEq)]
+pub enum EarlierVersion {
+    /// A site's settings.
+    Site(Site),
+    /// A tank's settings.
+    Tank(Box<TankSpec>),
+    /// A reading as entered.
+    Reading(ReadingEntry),
+    /// A delivery as entered.
+    Delivery(DeliveryEntry),
+}
+
+/// An earlier version of an edited or deleted record.
+#[derive(Debug, Clone, PartialEq)]
 pub struct Revision {
-    /// Which table.
-    pub table: String,
-    /// Which row.
-    pub row_id: i64,
-    /// `edit` or `delete`.
-    pub action: String,
+    /// Which record.
+    pub record: RecordRef,
+    /// What was done to it.
+    pub action: RevisionAction,
     /// When the change was made (RFC 3339, UTC).
     pub revised_at: String,
     /// Why, as the user said.
     pub reason: String,
-    /// The row before the change, as JSON.
-    pub old_row: String,
+    /// The record before the change.
+    pub before: EarlierVersion,
 }

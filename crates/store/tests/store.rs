@@ -20,7 +20,7 @@ fn nitrogen_tank() -> TankSpec {
     .unwrap()
 }
 
-fn reading(time: &str, dp: &str) -> ReadingInput {
+fn reading(time: &str, dp: &str) -> ReadingEntry {
     ReadingFields {
         time,
         dp,
@@ -77,21 +77,25 @@ fn edits_and_deletions_keep_the_earlier_version() {
     ));
     s.edit_reading(id, &reading("2026-01-01T00:00:00Z", "110.5"), "typo in DP")
         .unwrap();
-    assert_eq!(s.reading(id).unwrap().input.dp.value, 110.5);
-    let h = s.revisions("readings", id).unwrap();
+    assert_eq!(s.reading(id).unwrap().entry.dp.value, 110.5);
+    let h = s.history(RecordRef::Reading(id)).unwrap();
     assert_eq!(h.len(), 1);
-    assert_eq!(h[0].action, "edit");
+    assert_eq!(h[0].action, RevisionAction::Edit);
     assert_eq!(h[0].reason, "typo in DP");
-    assert!(h[0].old_row.contains("\"value\":100.0"), "{}", h[0].old_row);
+    assert!(
+        matches!(&h[0].before, EarlierVersion::Reading(r) if r.dp.value == 100.0),
+        "{:?}",
+        h[0].before
+    );
     s.delete_reading(id, "duplicate of the morning round")
         .unwrap();
     assert_eq!(s.readings(t, None).unwrap().len(), 0);
     assert_eq!(
-        s.reading(id).unwrap().input.dp.value,
+        s.reading(id).unwrap().entry.dp.value,
         110.5,
         "deleted rows stay readable"
     );
-    let h = s.revisions("readings", id).unwrap();
+    let h = s.history(RecordRef::Reading(id)).unwrap();
     assert_eq!(
         h.iter().map(|r| r.action.as_str()).collect::<Vec<_>>(),
         ["edit", "delete"]
@@ -135,11 +139,8 @@ fn tank_and_delivery_edits_keep_history() {
     s.edit_tank(t, &full, "rebuilt").unwrap();
     assert_eq!(s.tank(t).unwrap().spec, full);
     s.edit_tank(t, &spec, "put back").unwrap();
-    assert!(
-        s.revisions("tanks", t).unwrap()[0]
-            .old_row
-            .contains("\"diameter_m\":2.0")
-    );
+    assert!(matches!(&s.history(RecordRef::Tank(t)).unwrap()[0].before,
+            EarlierVersion::Tank(old) if old.diameter_m == 2.0));
     let d = DeliveryFields {
         ticket: "A-1",
         start: "2026-01-02T10:00:00Z",
@@ -161,10 +162,10 @@ fn tank_and_delivery_edits_keep_history() {
     d2.quantity.value = 2450.0;
     s.edit_delivery(id, &d2, "corrected from the scale ticket")
         .unwrap();
-    assert_eq!(s.delivery(id).unwrap().input.quantity.value, 2450.0);
+    assert_eq!(s.delivery(id).unwrap().entry.quantity.value, 2450.0);
     s.delete_delivery(id, "entered on the wrong tank").unwrap();
     assert!(s.deliveries(Some(t)).unwrap().is_empty());
-    assert_eq!(s.revisions("deliveries", id).unwrap().len(), 2);
+    assert_eq!(s.history(RecordRef::Delivery(id)).unwrap().len(), 2);
 }
 
 #[test]
@@ -174,7 +175,7 @@ fn wal_and_foreign_keys_are_on() {
     let mut s = Store::open(&path).unwrap();
     // A reading of a tank that does not exist violates the foreign key.
     assert!(
-        s.add_reading(42, &reading("2026-01-01T00:00:00Z", "1"))
+        s.add_reading(TankId(42), &reading("2026-01-01T00:00:00Z", "1"))
             .is_err()
     );
     assert!(path.with_extension("db-wal").exists(), "WAL file expected");
@@ -221,7 +222,7 @@ proptest! {
         let mut s = Store::open_in_memory().unwrap();
         s.add_tank(&nitrogen_tank()).unwrap();
         let files = ImportFiles { readings: Some(path), ..Default::default() };
-        match s.import(&files, &ImportOptions::default()) {
+        match s.import(ImportSources::open(&files).unwrap(), &ImportOptions::default()) {
             Ok(sum) => prop_assert_eq!(sum.readings as i64, s.reading_count(None).unwrap()),
             Err(_) => prop_assert_eq!(s.reading_count(None).unwrap(), 0),
         }

@@ -17,7 +17,7 @@ use crate::gauge::{GaugeAccuracy, STANDARD_GRAVITY};
 use crate::geometry::{Geometry, SolverOptions};
 
 /// One standard cubic foot in m³ (0.3048³, exact by the definition of the foot).
-pub const CUBIC_FOOT_M3: f64 = 0.3048 * 0.3048 * 0.3048;
+pub use units::CUBIC_FOOT_M3;
 
 /// Default sensing-line temperature, 15 °C (design default).
 pub const DEFAULT_LINE_TEMPERATURE_K: f64 = 288.15;

@@ -16,6 +16,28 @@ pub enum TankError {
         /// Why it is rejected.
         reason: &'static str,
     },
+    /// A name that is not one of the words this field takes.
+    #[error("unknown {what} '{given}': expected one of {}", expected.join(", "))]
+    UnknownName {
+        /// Which word (e.g. "heads").
+        what: &'static str,
+        /// What was given.
+        given: String,
+        /// The accepted names.
+        expected: &'static [&'static str],
+    },
+    /// A dimension outside the range a real tank has.
+    #[error("{name} = {value} is outside the plausible range {low} to {high} for a bulk tank")]
+    Implausible {
+        /// Parameter name.
+        name: &'static str,
+        /// The value given.
+        value: f64,
+        /// Smallest plausible value.
+        low: f64,
+        /// Largest plausible value.
+        high: f64,
+    },
     /// A liquid level outside the vessel, 0 ..= inner height.
     #[error("level {level_m} m is outside 0 ..= {height_m} m")]
     LevelOutOfRange {
@@ -100,7 +122,14 @@ pub enum TankError {
     },
     /// A fluid property could not be evaluated (out of range, no such phase, ...).
     #[error("fluid property: {0}")]
-    Fluid(#[from] fluids::FluidError),
+    Fluid(fluids::FluidError),
+}
+
+// The fluid's error is part of this one's message, not a separate cause, so it is printed once.
+impl From<fluids::FluidError> for TankError {
+    fn from(e: fluids::FluidError) -> Self {
+        TankError::Fluid(e)
+    }
 }
 
 /// Shorthand for results of this crate.

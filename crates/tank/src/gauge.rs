@@ -8,7 +8,7 @@ use crate::error::{Result, TankError, non_negative};
 pub const STANDARD_GRAVITY: f64 = 9.80665;
 
 /// Standard atmosphere at sea level, Pa (ICAO Doc 7488).
-pub const STANDARD_ATMOSPHERE_PA: f64 = 101_325.0;
+pub use units::STANDARD_ATMOSPHERE_PA;
 
 /// Units a DP gauge is read in (the workspace's one definition, from `units`).
 pub use units::DpUnit;

@@ -18,16 +18,7 @@ use serde::{Deserialize, Serialize};
 use crate::error::{Result, TankError, non_negative, positive};
 use crate::quadrature::integrate;
 use crate::strapping::StrappingTable;
-
-/// Orientation of a cylinder's axis.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
-#[serde(rename_all = "kebab-case")]
-pub enum Orientation {
-    /// Axis vertical; heads at bottom and top.
-    Vertical,
-    /// Axis horizontal; heads at the ends.
-    Horizontal,
-}
+pub use crate::vocabulary::Orientation;
 
 /// The shape of both heads of a cylinder. Ratios are to the inner diameter `D`.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]

@@ -60,6 +60,7 @@ mod quadrature;
 mod safe_fill;
 mod strapping;
 mod uncertainty;
+mod vocabulary;
 
 pub use chart::ChartComparison;
 pub use contents::{
@@ -72,10 +73,13 @@ pub use gauge::{
     AccuracyBasis, Barometer, DpUnit, GaugeAccuracy, STANDARD_ATMOSPHERE_PA, STANDARD_GRAVITY,
     barometer_pa_from_elevation, dp_pa_from_unit, dp_unit_from_pa,
 };
-pub use geometry::{Cylinder, CylinderSpec, Geometry, Head, Orientation, SolverOptions};
+pub use geometry::{Cylinder, CylinderSpec, Geometry, Head, SolverOptions};
 pub use safe_fill::{CAUTIONS, DEFAULT_VAPOR_FRACTION, SafeFill};
 pub use strapping::{StrappingSpec, StrappingTable};
 pub use uncertainty::{
     BudgetEntry, DifferenceUncertainty, InputDeviations, InputQuantity, OutputSet,
     UncertaintyBudget, UncertaintyInputs, difference_uncertainty,
+};
+pub use vocabulary::{
+    HeadShape, Orientation, PLAUSIBLE_DIAMETER_M, PLAUSIBLE_LENGTH_M, check_plausible,
 };

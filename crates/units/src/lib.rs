@@ -29,7 +29,9 @@ mod parse;
 mod quantity;
 
 pub use factors::*;
-pub use instant::{Civil, civil_from_ms, days_from_civil, ms_from_rfc3339, rfc3339_from_ms};
+pub use instant::{
+    Civil, civil_from_ms, days_from_civil, ms_from_rfc3339, now_ms, rfc3339_from_ms,
+};
 pub use parse::{
     UnitError, parse_absolute_pressure, parse_delivered_quantity, parse_dp, parse_length,
     parse_mass, parse_tank_pressure, parse_temperature,

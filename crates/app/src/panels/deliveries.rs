@@ -43,7 +43,7 @@ pub fn deliveries_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
         "deliveries",
         &cols,
         t.deliveries.len(),
-        view.delivery_form.editing,
+        view.delivery_editor.form.editing,
         |i| {
             let d = t.deliveries.get(i)?;
             Some(LogRow {
@@ -67,8 +67,8 @@ pub fn deliveries_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
 }
 
 fn form_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
-    let f = &view.delivery_form;
-    let check = &view.delivery_check;
+    let f = &view.delivery_editor.form;
+    let check = &view.delivery_editor.check;
     let editing = f.editing.is_some();
     if widgets::form_heading(ui, "delivery", editing) {
         out.push(Action::SelectDelivery(None));
@@ -164,9 +164,7 @@ fn form_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
     if delete {
         out.push(Action::DeleteDelivery);
     }
-    if let Some(t) = &view.tank
-        && editing
-    {
-        widgets::record_history(ui, "delivery", &t.history);
+    if editing {
+        widgets::record_history(ui, "delivery", &view.delivery_editor.history);
     }
 }

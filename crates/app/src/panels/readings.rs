@@ -47,7 +47,7 @@ pub fn readings_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
         "readings",
         &cols,
         t.readings.len(),
-        view.reading_form.editing,
+        view.reading_editor.form.editing,
         |i| {
             let r = t.readings.get(i)?;
             let dp = r.dp_text.split(' ').next().unwrap_or("").to_owned();
@@ -94,8 +94,8 @@ pub fn readings_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
 }
 
 fn form_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
-    let f = &view.reading_form;
-    let check = &view.reading_check;
+    let f = &view.reading_editor.form;
+    let check = &view.reading_editor.check;
     let editing = f.editing.is_some();
     if widgets::form_heading(ui, "reading", editing) {
         out.push(Action::SelectReading(None));
@@ -209,9 +209,7 @@ fn form_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
     if delete {
         out.push(Action::DeleteReading);
     }
-    if let Some(t) = &view.tank
-        && editing
-    {
-        widgets::record_history(ui, "reading", &t.history);
+    if editing {
+        widgets::record_history(ui, "reading", &view.reading_editor.history);
     }
 }

@@ -1,6 +1,7 @@
 //! Fictional test fleets built through the store API (names and figures are invented for tests).
 #![allow(dead_code, clippy::expect_used)]
 
+use store::Repository;
 use store::{DeliveryFields, ReadingFields, Store, TankFields};
 
 /// One day, ms.
@@ -46,9 +47,9 @@ pub fn fraction_on_day(day: i64) -> f64 {
 }
 
 /// Full-tank DP of a stored tank at `barg`, inH2O (through the engine, saturated liquid).
-pub fn full_dp_inh2o(s: &Store, tank: i64, barg: f64) -> f64 {
+pub fn full_dp_inh2o(s: &Store, tank: store::TankId, barg: f64) -> f64 {
     let t = s.tank(tank).expect("tank");
-    let engine = ledger::engine_tank(&t.spec).expect("engine tank");
+    let engine = evaluate::engine_tank(&t.spec).expect("engine tank");
     let c = tank::Conditions::saturated(barg * 1e5 + t.barometer_pa)
         .with_line_temperature_k(t.spec.line_temperature_k());
     let full = engine
@@ -61,7 +62,7 @@ pub fn full_dp_inh2o(s: &Store, tank: i64, barg: f64) -> f64 {
 /// each refill.
 pub fn add_history(
     s: &mut Store,
-    tank: i64,
+    tank: store::TankId,
     end_ms: i64,
     days: i64,
     ticket_prefix: &str,
@@ -73,7 +74,7 @@ pub fn add_history(
 /// [`add_history`] around a mean tank pressure `barg`.
 pub fn add_history_at(
     s: &mut Store,
-    tank: i64,
+    tank: store::TankId,
     end_ms: i64,
     days: i64,
     ticket_prefix: &str,
@@ -100,11 +101,11 @@ pub fn add_history_at(
         let liquid = liquid_pa.map_or(tank::LiquidState::SaturatedAtTankPressure, |p| {
             tank::LiquidState::SaturatedAtPressure { pressure_pa: p }
         });
-        let engine = ledger::engine_tank(&t.spec).expect("engine tank");
+        let engine = evaluate::engine_tank(&t.spec).expect("engine tank");
         engine
             .contents_from_reading(
                 full * f * units::INCH_WATER_CONVENTIONAL_PA,
-                &ledger::conditions(&t, &r, liquid),
+                &evaluate::conditions(&t, &r, liquid),
                 &tank::ContentsOptions::default(),
             )
             .expect("contents")
@@ -114,7 +115,7 @@ pub fn add_history_at(
     // mostly the delivered one, about saturated at the supply pressure, so the billed mass
     // (rounded to 10 kg) is what an honest ticket would say.
     // Trailers carry carbon dioxide well above its triple point (about 11 barg); cryogens at 2.5 barg.
-    let supply_barg = if t.spec.fluid == store::Fluid::CarbonDioxide {
+    let supply_barg = if t.spec.fluid == store::FluidId::CarbonDioxide {
         11.0
     } else {
         2.5

@@ -6,7 +6,7 @@ use audit::{
     AuditOptions, DeliveryInput, FleetAudit, ReadingInput, TankInput, audit_fleet, audit_tank,
 };
 use fluids::fluid;
-use tank::{AccuracyBasis, Cylinder, Gauge, GaugeAccuracy, Head, Tank, dp_pa_from_unit};
+use tank::{AccuracyBasis, Cylinder, Gauge, GaugeAccuracy, Tank, dp_pa_from_unit};
 
 /// Resolution of the simulator's DP readings as a standard uncertainty (display step / √12), as the
 /// binary sets it from the gauge's unit.
@@ -26,11 +26,7 @@ pub fn inputs(fleet: &simulate::Fleet) -> Vec<TankInput> {
         .iter()
         .enumerate()
         .map(|(i, t)| {
-            let head = if t.heads == "ellipsoidal" {
-                Head::ELLIPSOIDAL_2_1
-            } else {
-                Head::ASME_FD
-            };
+            let head = t.heads.head(None, None);
             let span_pa = dp_pa_from_unit(t.gauge_span, t.dp_unit);
             let gauge = Gauge {
                 zero_offset_pa: 0.0,

@@ -1,0 +1,250 @@
+//! One fill's balance: the bracketing readings, the uncertainty budget, the verdict and its sentence.
+
+use tank::{Contents, LiquidState, UncertaintyInputs};
+
+use crate::records::*;
+use crate::tank_audit::*;
+use crate::thermal::*;
+use crate::{AuditOptions, DeliveryInput, ReadingInput, Verdict};
+
+pub(crate) fn bracket_reading(ctx: &Ctx<'_>, i: usize, e: &Eval) -> Option<BracketReading> {
+    let r = ctx.readings.get(i)?;
+    Some(BracketReading {
+        time_ms: r.time_ms,
+        total_mass_kg: e.contents_total_kg,
+        fill_fraction: e.fill_fraction,
+        pressure_pa: r.pressure_pa,
+        liquid_temperature_k: e.liquid_temperature_k,
+        saturation_temperature_k: e.saturation_temperature_k,
+    })
+}
+
+/// The GUM budget of a reading's total mass: (contents, budget, extra independent u from the liquid
+/// state, kg).
+pub(crate) fn budget(
+    ctx: &Ctx<'_>,
+    r: &ReadingInput,
+    e: &Eval,
+) -> Option<(Contents, tank::UncertaintyBudget, f64)> {
+    let opts = ctx.opts;
+    let inputs = UncertaintyInputs {
+        dp_noise_u_pa: ctx.input.dp_noise_u_pa,
+        pressure_u_pa: opts.pressure_u_pa,
+        ..UncertaintyInputs::default()
+    };
+    // the budget perturbs the tank pressure: keep the liquid's saturation pressure clear of it
+    let liquid = match e.liquid {
+        LiquidState::SaturatedAtPressure { pressure_pa }
+            if pressure_pa < r.pressure_pa - 1.5 * opts.pressure_u_pa =>
+        {
+            e.liquid
+        }
+        LiquidState::Temperature { .. } => e.liquid,
+        _ => LiquidState::SaturatedAtTankPressure,
+    };
+    let c = ctx.conditions(r, liquid);
+    let (contents, b) = ctx
+        .tank
+        .contents_with_uncertainty(r.dp_pa, &c, &inputs, &ctx.contents_opts)
+        .ok()?;
+    // the tracked liquid state: one-sided difference toward colder liquid
+    let mut extra = 0.0;
+    if ctx.opts.thermal_history
+        && let LiquidState::SaturatedAtPressure { pressure_pa } = liquid
+    {
+        let u =
+            opts.liquid_state_u_fraction * (r.pressure_pa - pressure_pa) + opts.liquid_state_u_pa;
+        let colder = (pressure_pa - u).max(ctx.f.triple().pressure_pa * 1.001);
+        let c2 = ctx.conditions(
+            r,
+            LiquidState::SaturatedAtPressure {
+                pressure_pa: colder,
+            },
+        );
+        if let Ok(other) = ctx
+            .tank
+            .contents_from_reading(r.dp_pa, &c2, &ctx.contents_opts)
+        {
+            extra = (other.total_mass_kg - contents.total_mass_kg).abs();
+        }
+    } else if ctx.opts.thermal_history
+        && matches!(e.liquid, LiquidState::SaturatedAtPressure { .. })
+    {
+        // saturation pressure within the pressure uncertainty of the tank pressure: no extra term
+        // beyond the pressure's own
+        extra = 0.0;
+    }
+    Some((contents, b, extra))
+}
+
+pub(crate) fn fmt_kg(x: f64) -> String {
+    format!("{:.0}", x)
+}
+
+pub(crate) fn balance(
+    ctx: &Ctx<'_>,
+    d: &DeliveryInput,
+    (b, a): (Option<usize>, Option<usize>),
+    evals: &[Option<Eval>],
+    intervals: &[Interval],
+) -> Balance {
+    let opts = ctx.opts;
+    let k = opts.coverage_factor;
+    let window_h = opts.bracket_window_s / 3600.0;
+    let mut out = Balance {
+        ticket: d.ticket.clone(),
+        tank: ctx.input.name.clone(),
+        vehicle: d.vehicle.clone(),
+        carrier: d.carrier.clone(),
+        start_ms: d.start_ms,
+        end_ms: d.end_ms,
+        verdict: Verdict::Inconclusive,
+        billed_kg: d.billed_kg,
+        gained_kg: 0.0,
+        drawn_kg: 0.0,
+        residual_kg: 0.0,
+        residual_percent: 0.0,
+        sigma_kg: 0.0,
+        sigma_readings_shared_kg: 0.0,
+        sigma_readings_independent_kg: 0.0,
+        sigma_usage_kg: 0.0,
+        sigma_meter_kg: 0.0,
+        coverage_factor: k,
+        limit_kg: 0.0,
+        inconclusive_limit_percent: 100.0 * opts.inconclusive_fraction,
+        ratio: f64::NAN,
+        usage_kg_per_day: 0.0,
+        before: None,
+        after: None,
+        bracket_window_h: window_h,
+        gauge_drift_percent_per_year: None,
+        explanation: String::new(),
+    };
+    let eb = b.and_then(|i| evals.get(i).copied().flatten().map(|e| (i, e)));
+    let ea = a.and_then(|i| evals.get(i).copied().flatten().map(|e| (i, e)));
+    let (Some((ib, eb)), Some((ia, ea))) = (eb, ea) else {
+        let side = if eb.is_none() { "before" } else { "after" };
+        out.explanation = format!(
+            "Inconclusive: no usable reading within {window_h:.0} h {side} the fill, so the {} kg billed cannot be checked.",
+            fmt_kg(d.billed_kg)
+        );
+        return out;
+    };
+    out.before = bracket_reading(ctx, ib, &eb);
+    out.after = bracket_reading(ctx, ia, &ea);
+    let (rb, ra) = (ctx.readings[ib], ctx.readings[ia]);
+    let dt_s = (ra.time_ms - rb.time_ms) as f64 / 1000.0;
+    let (rate, rate_se, _) = usage_near(intervals, rb.time_ms, ra.time_ms, opts);
+    out.usage_kg_per_day = rate * DAY_S;
+    out.drawn_kg = rate * dt_s;
+    out.sigma_usage_kg =
+        ((opts.usage_u_rel * out.drawn_kg).powi(2) + (rate_se * dt_s).powi(2)).sqrt();
+    let meter_pct = d
+        .meter_repeatability_percent
+        .unwrap_or(opts.meter_repeatability_percent);
+    out.sigma_meter_kg = meter_pct / 100.0 * d.billed_kg.abs();
+    match (budget(ctx, &rb, &eb), budget(ctx, &ra, &ea)) {
+        (Some((cb, bb, xb)), Some((ca, ba, xa))) => {
+            let diff = tank::difference_uncertainty(&bb, &ba);
+            // the thermal state's contents come from the tracked state, the budget's from its
+            // conditions: use the tracked contents for the gain
+            let _ = (cb, ca);
+            out.sigma_readings_shared_kg = diff.shared.total_mass_kg;
+            out.sigma_readings_independent_kg =
+                (diff.independent.total_mass_kg.powi(2) + xb * xb + xa * xa).sqrt();
+        }
+        _ => {
+            out.explanation = format!(
+                "Inconclusive: the uncertainty of the readings around the fill cannot be evaluated, so the {} kg billed cannot be checked.",
+                fmt_kg(d.billed_kg)
+            );
+            return out;
+        }
+    }
+    out.gained_kg = ea.contents_total_kg - eb.contents_total_kg;
+    out.residual_kg = d.billed_kg - (out.gained_kg + out.drawn_kg);
+    out.sigma_kg = (out.sigma_readings_shared_kg.powi(2)
+        + out.sigma_readings_independent_kg.powi(2)
+        + out.sigma_usage_kg.powi(2)
+        + out.sigma_meter_kg.powi(2))
+    .sqrt();
+    out.ratio = if d.billed_kg > 0.0 {
+        (out.gained_kg + out.drawn_kg) / d.billed_kg
+    } else {
+        f64::NAN
+    };
+    out.residual_percent = if d.billed_kg > 0.0 {
+        100.0 * out.residual_kg / d.billed_kg
+    } else {
+        0.0
+    };
+    out.limit_kg = (k * out.sigma_kg).max(opts.materiality_fraction * d.billed_kg.abs());
+    set_verdict(&mut out, opts);
+    out
+}
+
+/// Decide the verdict and write the explanation (also used when a drift note is added).
+pub(crate) fn set_verdict(b: &mut Balance, opts: &AuditOptions) {
+    let k = b.coverage_factor;
+    let numbers = format!(
+        "billed {} kg; the tank gained {} kg and the customer drew about {} kg during the fill",
+        fmt_kg(b.billed_kg),
+        fmt_kg(b.gained_kg),
+        fmt_kg(b.drawn_kg)
+    );
+    let (verdict, text) = if b.residual_kg > b.limit_kg {
+        (
+            Verdict::Short,
+            format!(
+                "Short: {numbers}, so {} kg ({:.1} % of the ticket) did not arrive, beyond the limit of {} kg (k = {k} times the standard uncertainty {} kg, at least {:.1} % of the ticket).",
+                fmt_kg(b.residual_kg),
+                b.residual_percent,
+                fmt_kg(b.limit_kg),
+                fmt_kg(b.sigma_kg),
+                100.0 * opts.materiality_fraction
+            ),
+        )
+    } else if -b.residual_kg > b.limit_kg {
+        (
+            Verdict::Excess,
+            format!(
+                "Excess: {numbers}, so {} kg ({:.1} % of the ticket) more arrived than was billed, beyond the limit of {} kg (k = {k} times the standard uncertainty {} kg, at least {:.1} % of the ticket).",
+                fmt_kg(-b.residual_kg),
+                -b.residual_percent,
+                fmt_kg(b.limit_kg),
+                fmt_kg(b.sigma_kg),
+                100.0 * opts.materiality_fraction
+            ),
+        )
+    } else if k * b.sigma_kg > opts.inconclusive_fraction * b.billed_kg.abs() {
+        (
+            Verdict::Inconclusive,
+            format!(
+                "Inconclusive: {numbers}, leaving {} kg ({:.1} % of the ticket), but k = {k} times the standard uncertainty {} kg exceeds {:.1} % of the ticket, too wide to judge.",
+                fmt_kg(b.residual_kg),
+                b.residual_percent,
+                fmt_kg(b.sigma_kg),
+                b.inconclusive_limit_percent
+            ),
+        )
+    } else {
+        (
+            Verdict::Consistent,
+            format!(
+                "Consistent: {numbers}, leaving {} kg ({:.1} % of the ticket), within the limit of {} kg (k = {k} times the standard uncertainty {} kg, at least {:.1} % of the ticket).",
+                fmt_kg(b.residual_kg),
+                b.residual_percent,
+                fmt_kg(b.limit_kg),
+                fmt_kg(b.sigma_kg),
+                100.0 * opts.materiality_fraction
+            ),
+        )
+    };
+    b.verdict = verdict;
+    b.explanation = text;
+    if let Some(drift) = b.gauge_drift_percent_per_year {
+        b.explanation.push_str(&format!(
+            " The tank's gauge is drifting ({drift:.1} % of span per year), so the gain is doubtful."
+        ));
+    }
+}

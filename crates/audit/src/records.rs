@@ -1,0 +1,176 @@
+//! What the audit of one tank gives: balances, findings between fills, the forecast, reading states.
+
+use fluids::FluidId;
+use serde::Serialize;
+
+use crate::Verdict;
+
+/// The state behind one reading.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct ReadingState {
+    /// Time, ms.
+    pub time_ms: i64,
+    /// Total mass, kg.
+    pub total_mass_kg: f64,
+    /// Liquid volume over gross volume.
+    pub fill_fraction: f64,
+    /// The liquid's saturation pressure (tracked), Pa.
+    pub liquid_saturation_pa: f64,
+    /// Liquid temperature, K.
+    pub liquid_temperature_k: f64,
+}
+
+/// A reading bracketing a fill.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct BracketReading {
+    /// Time, ms.
+    pub time_ms: i64,
+    /// Total mass, kg.
+    pub total_mass_kg: f64,
+    /// Liquid volume over gross volume.
+    pub fill_fraction: f64,
+    /// Tank pressure, Pa absolute.
+    pub pressure_pa: f64,
+    /// Liquid temperature used, K.
+    pub liquid_temperature_k: f64,
+    /// Saturation temperature at the tank pressure, K.
+    pub saturation_temperature_k: f64,
+}
+
+/// One delivery's reconciliation.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Balance {
+    /// Ticket number.
+    pub ticket: String,
+    /// Tank name.
+    pub tank: String,
+    /// Vehicle name.
+    pub vehicle: String,
+    /// Carrier name.
+    pub carrier: String,
+    /// Start of the fill, ms.
+    pub start_ms: i64,
+    /// End of the fill, ms.
+    pub end_ms: i64,
+    /// The verdict.
+    pub verdict: Verdict,
+    /// Billed, kg.
+    pub billed_kg: f64,
+    /// Tank mass change between the bracketing readings, kg.
+    pub gained_kg: f64,
+    /// Use between the bracketing readings, kg.
+    pub drawn_kg: f64,
+    /// billed − (gained + drawn), kg.
+    pub residual_kg: f64,
+    /// Residual as a percentage of billed.
+    pub residual_percent: f64,
+    /// Standard uncertainty of the residual, kg.
+    pub sigma_kg: f64,
+    /// Part of sigma from the two readings' shared inputs (after cancellation), kg.
+    pub sigma_readings_shared_kg: f64,
+    /// Part of sigma from the two readings' independent inputs, kg.
+    pub sigma_readings_independent_kg: f64,
+    /// Part of sigma from the usage model, kg.
+    pub sigma_usage_kg: f64,
+    /// Part of sigma from the delivering meter, kg.
+    pub sigma_meter_kg: f64,
+    /// Coverage factor k.
+    pub coverage_factor: f64,
+    /// The limit a residual must pass to be short or excess: max(k sigma, materiality), kg.
+    pub limit_kg: f64,
+    /// k sigma as a percentage of billed, beyond which an unflagged balance is inconclusive.
+    pub inconclusive_limit_percent: f64,
+    /// (gained + drawn) / billed.
+    pub ratio: f64,
+    /// Use rate of the usage model, kg/day.
+    pub usage_kg_per_day: f64,
+    /// The reading before the fill.
+    pub before: Option<BracketReading>,
+    /// The reading after the fill.
+    pub after: Option<BracketReading>,
+    /// How far a bracketing reading may be from the fill, h.
+    pub bracket_window_h: f64,
+    /// The tank's gauge drift, % of span per year, when its gauge was found drifting.
+    pub gauge_drift_percent_per_year: Option<f64>,
+    /// One sentence with the numbers, to hand to a carrier.
+    pub explanation: String,
+}
+
+/// What a finding between fills is.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum FindingKind {
+    /// The tank gained with no ticket (an unlogged delivery?).
+    UnexplainedGain,
+    /// The tank lost more than its usual use (a leak or venting?).
+    LossBeyondUse,
+}
+
+/// A finding in the readings between fills.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Finding {
+    /// What it is.
+    pub kind: FindingKind,
+    /// Tank name.
+    pub tank: String,
+    /// From, ms.
+    pub from_ms: i64,
+    /// To, ms.
+    pub to_ms: i64,
+    /// Mass gained, or lost beyond use, kg.
+    pub mass_kg: f64,
+    /// Loss rate beyond use, kg/day (losses only).
+    pub excess_rate_kg_per_day: Option<f64>,
+    /// The usual use, kg/day.
+    pub usage_kg_per_day: f64,
+    /// One sentence with the numbers.
+    pub explanation: String,
+}
+
+/// Use rate and the next fill.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct Forecast {
+    /// Recent use, kg/day (median over the last usage window).
+    pub usage_kg_per_day: f64,
+    /// The last reading, ms.
+    pub last_reading_ms: i64,
+    /// Total mass at the last reading, kg.
+    pub total_mass_kg: f64,
+    /// Liquid above the reorder level, kg (negative: below it).
+    pub above_reorder_kg: f64,
+    /// Days from the last reading to the reorder level.
+    pub days_to_reorder: f64,
+    /// When the reorder level is reached, ms.
+    pub reorder_at_ms: i64,
+    /// The expected next fill, ms.
+    pub next_fill_ms: i64,
+}
+
+/// One tank's audit.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct TankAudit {
+    /// Tank name.
+    pub tank: String,
+    /// Fluid.
+    pub fluid: FluidId,
+    /// The NER setting used as the start, % per day.
+    pub ner_setting_percent_per_day: f64,
+    /// The NER that best closes the tank's fill balances, % per day (None: not fitted).
+    pub ner_fitted_percent_per_day: Option<f64>,
+    /// A full tank's mass, kg (liquid saturated at 1 atm; CO2 at the tank's usual pressure).
+    pub full_mass_kg: f64,
+    /// Readings evaluated.
+    pub readings_used: usize,
+    /// Readings the contents engine refused (e.g. beyond empty or full).
+    pub readings_refused: usize,
+    /// Balances, by fill start.
+    pub balances: Vec<Balance>,
+    /// Findings between fills, by time.
+    pub findings: Vec<Finding>,
+    /// Use rate and the next fill.
+    pub forecast: Option<Forecast>,
+    /// Every reading's state when [`AuditOptions::keep_readings`].
+    pub readings: Vec<ReadingState>,
+    /// The state behind the latest reading the engine accepted.
+    pub latest: Option<ReadingState>,
+}

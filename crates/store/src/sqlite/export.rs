@@ -1,0 +1,148 @@
+//! The SQLite side of CSV export (the formats the importer reads back exactly) and the full dump.
+
+use super::Store;
+use crate::StoreError;
+use crate::check::format_strapping;
+use crate::csv_format::*;
+use crate::records::{Site, SiteId, TankId};
+use crate::repository::Repository;
+use std::collections::HashMap;
+use std::io::Write;
+use units::Unit;
+
+/// Write all live tanks in the tanks CSV format.
+pub(crate) fn tanks(store: &Store, out: &mut dyn Write) -> Result<(), StoreError> {
+    let sites: HashMap<SiteId, Site> = store.sites()?.into_iter().map(|s| (s.id, s)).collect();
+    let mut w = csv::Writer::from_writer(out);
+    w.write_record(TANK_HEADER)?;
+    let mut tanks = store.tanks()?;
+    tanks.sort_by_key(|t| t.id); // insertion order, so a re-import gives the same ids
+    for t in tanks {
+        let s = &t.spec;
+        let site = sites.get(&t.site_id);
+        w.write_record([
+            s.site.clone(),
+            s.name.clone(),
+            s.fluid.name().to_owned(),
+            s.orientation.as_str().to_owned(),
+            num(s.diameter_m),
+            num(s.length_m),
+            s.heads.as_str().to_owned(),
+            num(s.line_temperature_c),
+            opt(site.and_then(|s| s.elevation_m)),
+            opt(site.and_then(|s| s.barometer_kpa)),
+            opt(s.crown_ratio),
+            opt(s.knuckle_ratio),
+            s.dp_unit.symbol().to_owned(),
+            opt(s.gauge_span),
+            opt(s.gauge_accuracy_percent),
+            opt(s.relief_pressure.map(|p| p.value)),
+            s.relief_pressure
+                .map(|p| p.unit.symbol().to_owned())
+                .unwrap_or_default(),
+            opt(s.reorder_percent),
+            opt(s.ner_percent_per_day),
+            format_strapping(&s.strapping),
+        ])?;
+    }
+    w.flush().map_err(|source| StoreError::Io {
+        path: "output".into(),
+        source,
+    })?;
+    Ok(())
+}
+
+/// Write all live readings in the readings CSV format, in the order they were written.
+pub(crate) fn readings(store: &Store, out: &mut dyn Write) -> Result<(), StoreError> {
+    let mut w = csv::Writer::from_writer(out);
+    w.write_record(READING_HEADER)?;
+    let mut st = store.conn.prepare(
+        "SELECT t.name, r.time_text, r.dp_value, r.dp_unit, r.pressure_value, r.pressure_unit, \
+             r.liquid_temperature_k, r.note FROM readings r JOIN tanks t ON t.id = r.tank_id \
+             WHERE r.deleted_at IS NULL ORDER BY r.id",
+    )?;
+    let mut rows = st.query([])?;
+    while let Some(r) = rows.next()? {
+        w.write_record([
+            r.get::<_, String>(0)?,
+            r.get::<_, String>(1)?,
+            num(r.get(2)?),
+            r.get::<_, String>(3)?,
+            num(r.get(4)?),
+            r.get::<_, String>(5)?,
+            opt(r.get(6)?),
+            r.get::<_, Option<String>>(7)?.unwrap_or_default(),
+        ])?;
+    }
+    w.flush().map_err(|source| StoreError::Io {
+        path: "output".into(),
+        source,
+    })?;
+    Ok(())
+}
+
+/// Write all live deliveries in the deliveries CSV format.
+pub(crate) fn deliveries(store: &Store, out: &mut dyn Write) -> Result<(), StoreError> {
+    let names: HashMap<TankId, String> = store
+        .tanks()?
+        .into_iter()
+        .map(|t| (t.id, t.spec.name))
+        .collect();
+    let mut w = csv::Writer::from_writer(out);
+    w.write_record(DELIVERY_HEADER)?;
+    let mut all = store.deliveries(None)?;
+    all.sort_by_key(|d| d.id);
+    for d in all {
+        let i = &d.entry;
+        w.write_record([
+            names.get(&d.tank_id).cloned().unwrap_or_default(),
+            i.ticket.clone(),
+            i.start.text.clone(),
+            i.end.text.clone(),
+            num(i.quantity.value),
+            i.quantity.unit.symbol().to_owned(),
+            i.carrier.clone(),
+            i.vehicle.clone(),
+            opt(i.supply_pressure.map(|p| p.value)),
+            i.supply_pressure
+                .map(|p| p.unit.symbol().to_owned())
+                .unwrap_or_default(),
+        ])?;
+    }
+    w.flush().map_err(|source| StoreError::Io {
+        path: "output".into(),
+        source,
+    })?;
+    Ok(())
+}
+
+pub(crate) fn dump(store: &Store) -> Result<String, StoreError> {
+    let mut out = String::new();
+    let mut st = store
+        .conn
+        .prepare("SELECT name, sql FROM sqlite_master WHERE sql IS NOT NULL ORDER BY type, name")?;
+    let objects: Vec<(String, String)> = st
+        .query_map([], |r| Ok((r.get(0)?, r.get(1)?)))?
+        .collect::<Result<_, _>>()?;
+    for (name, sql) in &objects {
+        out.push_str(sql);
+        out.push_str(";\n");
+        if !sql.starts_with("CREATE TABLE") {
+            continue;
+        }
+        let mut rows = store.conn.prepare(&format!("SELECT * FROM \"{name}\""))?;
+        let n = rows.column_count();
+        let mut q = rows.query([])?;
+        while let Some(r) = q.next()? {
+            let vals: Vec<String> = (0..n)
+                .map(|i| match r.get_ref(i) {
+                    Ok(v) => format!("{v:?}"),
+                    Err(e) => format!("<{e}>"),
+                })
+                .collect();
+            out.push_str(&format!("{name}: {}\n", vals.join(", ")));
+        }
+    }
+    out.push_str(&format!("user_version: {}\n", store.schema_version()?));
+    Ok(out)
+}

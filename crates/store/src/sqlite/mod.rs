@@ -1,0 +1,441 @@
+//! The SQLite ledger: opening, migrations, and the [`Repository`] in SQL.
+
+mod export;
+mod import;
+pub(crate) mod rows;
+
+use crate::StoreError;
+use crate::check::FieldError;
+use crate::csv_format::{ImportOptions, ImportSources, ImportSummary};
+use crate::records::*;
+use crate::repository::{RecordKind, Repository};
+use rows::*;
+use rusqlite::{Connection, OptionalExtension, params};
+use rusqlite_migration::{M, Migrations};
+use std::path::Path;
+
+/// The numbered SQL files of `migrations/`, applied in order. A test checks none is missing.
+pub const MIGRATION_FILES: &[(&str, &str)] = &[(
+    "0001_initial.sql",
+    include_str!("../../../../migrations/0001_initial.sql"),
+)];
+
+fn migrations() -> Migrations<'static> {
+    Migrations::new(MIGRATION_FILES.iter().map(|(_, sql)| M::up(sql)).collect())
+}
+
+/// The ledger in one SQLite file (or in memory): the embedded default.
+pub struct Store {
+    pub(crate) conn: Connection,
+}
+
+impl Store {
+    /// Open (creating if needed) the database at `path`, with WAL, foreign keys, and every migration.
+    pub fn open(path: &Path) -> Result<Self, StoreError> {
+        if let Some(dir) = path.parent()
+            && !dir.as_os_str().is_empty()
+        {
+            std::fs::create_dir_all(dir).map_err(|source| StoreError::Io {
+                path: dir.display().to_string(),
+                source,
+            })?;
+        }
+        Self::setup(Connection::open(path)?)
+    }
+
+    /// An empty database in memory (tests, previews).
+    pub fn open_in_memory() -> Result<Self, StoreError> {
+        Self::setup(Connection::open_in_memory()?)
+    }
+
+    fn setup(mut conn: Connection) -> Result<Self, StoreError> {
+        conn.pragma_update(None, "journal_mode", "WAL")?;
+        // WAL with NORMAL keeps every commit atomic across crashes and kills (SQLite docs, "WAL mode").
+        conn.pragma_update(None, "synchronous", "NORMAL")?;
+        conn.pragma_update(None, "foreign_keys", "ON")?;
+        conn.pragma_update(None, "cache_size", -131_072)?; // up to 128 MiB page cache: large imports spill less
+        conn.busy_timeout(std::time::Duration::from_secs(5))?;
+        migrations().to_latest(&mut conn)?;
+        Ok(Self { conn })
+    }
+
+    fn not_found(what: &'static str, key: impl ToString) -> StoreError {
+        StoreError::NotFound {
+            what,
+            key: key.to_string(),
+        }
+    }
+}
+
+fn invalid(e: FieldError) -> StoreError {
+    StoreError::Invalid(vec![e])
+}
+
+impl Repository for Store {
+    fn schema_version(&self) -> Result<i64, StoreError> {
+        Ok(self
+            .conn
+            .pragma_query_value(None, "user_version", |r| r.get(0))?)
+    }
+
+    fn sites(&self) -> Result<Vec<Site>, StoreError> {
+        let mut st = self.conn.prepare(
+            "SELECT id, name, elevation_m, barometer_kpa FROM sites WHERE deleted_at IS NULL ORDER BY name",
+        )?;
+        let rows = st.query_map([], |r| {
+            Ok(Site {
+                id: SiteId(r.get(0)?),
+                name: r.get(1)?,
+                elevation_m: r.get(2)?,
+                barometer_kpa: r.get(3)?,
+            })
+        })?;
+        Ok(rows.collect::<Result<_, _>>()?)
+    }
+
+    fn add_site(
+        &mut self,
+        name: &str,
+        elevation_m: Option<f64>,
+        barometer_kpa: Option<f64>,
+    ) -> Result<SiteId, StoreError> {
+        let name = name.trim();
+        if name.is_empty() {
+            return Err(invalid(FieldError::new("site", "a name is required")));
+        }
+        let exists: bool = self.conn.query_row(
+            "SELECT EXISTS(SELECT 1 FROM sites WHERE name = ?1 AND deleted_at IS NULL)",
+            [name],
+            |r| r.get(0),
+        )?;
+        if exists {
+            return Err(invalid(FieldError::new(
+                "site",
+                format!("a site named '{name}' already exists"),
+            )));
+        }
+        site_id_for(&self.conn, name, elevation_m, barometer_kpa).map_err(invalid)
+    }
+
+    fn edit_site(
+        &mut self,
+        id: SiteId,
+        elevation_m: Option<f64>,
+        barometer_kpa: Option<f64>,
+        reason: &str,
+    ) -> Result<(), StoreError> {
+        let old = self
+            .sites()?
+            .into_iter()
+            .find(|s| s.id == id)
+            .ok_or_else(|| Self::not_found("site", id))?;
+        let tx = self.conn.transaction()?;
+        record_revision(
+            &tx,
+            RecordRef::Site(id),
+            RevisionAction::Edit,
+            reason,
+            &EarlierVersion::Site(old),
+        )?;
+        tx.execute(
+            "UPDATE sites SET elevation_m = ?2, barometer_kpa = ?3, barometer_pa = ?4 WHERE id = ?1",
+            params![id.0, elevation_m, barometer_kpa, barometer_kpa.map(|k| k * 1e3)],
+        )?;
+        tx.commit()?;
+        Ok(())
+    }
+
+    fn tanks(&self) -> Result<Vec<TankRecord>, StoreError> {
+        let sql = format!(
+            "SELECT {TANK_COLUMNS} FROM tanks t JOIN sites s ON s.id = t.site_id \
+             WHERE t.deleted_at IS NULL ORDER BY s.name, t.name"
+        );
+        let mut st = self.conn.prepare(&sql)?;
+        let mut tanks: Vec<TankRecord> =
+            st.query_map([], tank_from_row)?.collect::<Result<_, _>>()?;
+        let mut sp = self.conn.prepare(
+            "SELECT tank_id, level_m, volume_m3 FROM strapping_points ORDER BY tank_id, level_m",
+        )?;
+        let points = sp.query_map([], |r| {
+            Ok((
+                TankId(r.get::<_, i64>(0)?),
+                r.get::<_, f64>(1)?,
+                r.get::<_, f64>(2)?,
+            ))
+        })?;
+        for p in points {
+            let (id, l, v) = p?;
+            if let Some(t) = tanks.iter_mut().find(|t| t.id == id) {
+                t.spec.strapping.push((l, v));
+            }
+        }
+        Ok(tanks)
+    }
+
+    fn tank(&self, id: TankId) -> Result<TankRecord, StoreError> {
+        self.tanks()?
+            .into_iter()
+            .find(|t| t.id == id)
+            .ok_or_else(|| Self::not_found("tank", id))
+    }
+
+    fn tank_by_name(&self, name: &str) -> Result<TankRecord, StoreError> {
+        self.tanks()?
+            .into_iter()
+            .find(|t| t.spec.name == name)
+            .ok_or_else(|| Self::not_found("tank", name))
+    }
+
+    fn add_tank(&mut self, spec: &TankSpec) -> Result<TankId, StoreError> {
+        let tx = self.conn.transaction()?;
+        let site_id = site_id_for(&tx, &spec.site, None, None).map_err(invalid)?;
+        let id = insert_tank(&tx, site_id, spec)
+            .map_err(|e| TANKS.write_error(e, || duplicate_tank(spec)))?;
+        tx.commit()?;
+        Ok(id)
+    }
+
+    fn edit_tank(&mut self, id: TankId, spec: &TankSpec, reason: &str) -> Result<(), StoreError> {
+        let old = self.tank(id)?;
+        let tx = self.conn.transaction()?;
+        record_revision(
+            &tx,
+            RecordRef::Tank(id),
+            RevisionAction::Edit,
+            reason,
+            &EarlierVersion::Tank(Box::new(old.spec)),
+        )?;
+        let site_id = site_id_for(&tx, &spec.site, None, None).map_err(invalid)?;
+        update_tank(&tx, id, site_id, spec)
+            .map_err(|e| TANKS.write_error(e, || duplicate_tank(spec)))?;
+        tx.commit()?;
+        Ok(())
+    }
+
+    fn add_reading(&mut self, tank: TankId, r: &ReadingEntry) -> Result<ReadingId, StoreError> {
+        self.conn
+            .prepare_cached(&READINGS.insert_sql())
+            .and_then(|mut st| execute_reading(&mut st, tank, r, None))
+            .map_err(|e| READINGS.write_error(e, || duplicate_reading(r)))?;
+        Ok(ReadingId(self.conn.last_insert_rowid()))
+    }
+
+    fn readings(
+        &self,
+        tank: TankId,
+        period_ms: Option<(i64, i64)>,
+    ) -> Result<Vec<Reading>, StoreError> {
+        let (from, to) = period_ms.unwrap_or((i64::MIN, i64::MAX));
+        let sql = format!(
+            "SELECT {READING_COLUMNS} FROM readings WHERE tank_id = ?1 AND deleted_at IS NULL \
+             AND time_ms >= ?2 AND time_ms < ?3 ORDER BY time_ms"
+        );
+        let mut st = self.conn.prepare_cached(&sql)?;
+        let rows = st.query_map(params![tank.0, from, to], reading_from_row)?;
+        Ok(rows.collect::<Result<_, _>>()?)
+    }
+
+    fn latest_reading(&self, tank: TankId) -> Result<Option<Reading>, StoreError> {
+        let sql = format!(
+            "SELECT {READING_COLUMNS} FROM readings WHERE tank_id = ?1 AND deleted_at IS NULL \
+             ORDER BY time_ms DESC LIMIT 1"
+        );
+        Ok(self
+            .conn
+            .query_row(&sql, [tank.0], reading_from_row)
+            .optional()?)
+    }
+
+    fn reading(&self, id: ReadingId) -> Result<Reading, StoreError> {
+        let sql = format!("SELECT {READING_COLUMNS} FROM readings WHERE id = ?1");
+        self.conn
+            .query_row(&sql, [id.0], reading_from_row)
+            .optional()?
+            .ok_or_else(|| Self::not_found("reading", id))
+    }
+
+    fn edit_reading(
+        &mut self,
+        id: ReadingId,
+        new: &ReadingEntry,
+        reason: &str,
+    ) -> Result<(), StoreError> {
+        let old = self.reading(id)?;
+        let tx = self.conn.transaction()?;
+        record_revision(
+            &tx,
+            RecordRef::Reading(id),
+            RevisionAction::Edit,
+            reason,
+            &EarlierVersion::Reading(old.entry),
+        )?;
+        tx.prepare_cached(&READINGS.update_sql())
+            .and_then(|mut st| execute_reading(&mut st, old.tank_id, new, Some(id)))
+            .map_err(|e| READINGS.write_error(e, || duplicate_reading(new)))?;
+        tx.commit()?;
+        Ok(())
+    }
+
+    fn delete_reading(&mut self, id: ReadingId, reason: &str) -> Result<(), StoreError> {
+        let old = self.reading(id)?;
+        let tx = self.conn.transaction()?;
+        record_revision(
+            &tx,
+            RecordRef::Reading(id),
+            RevisionAction::Delete,
+            reason,
+            &EarlierVersion::Reading(old.entry),
+        )?;
+        tx.execute(
+            "UPDATE readings SET deleted_at = ?2 WHERE id = ?1",
+            params![id.0, now_text()],
+        )?;
+        tx.commit()?;
+        Ok(())
+    }
+
+    fn reading_count(&self, tank: Option<TankId>) -> Result<i64, StoreError> {
+        Ok(self.conn.query_row(
+            "SELECT COUNT(*) FROM readings WHERE deleted_at IS NULL AND (?1 IS NULL OR tank_id = ?1)",
+            [tank.map(|t| t.0)],
+            |r| r.get(0),
+        )?)
+    }
+
+    fn add_delivery(&mut self, tank: TankId, d: &DeliveryEntry) -> Result<DeliveryId, StoreError> {
+        let tx = self.conn.transaction()?;
+        let id = write_delivery(&tx, tank, d, None)?;
+        tx.commit()?;
+        Ok(id)
+    }
+
+    fn deliveries(&self, tank: Option<TankId>) -> Result<Vec<Delivery>, StoreError> {
+        // Two statements rather than `?1 IS NULL OR ...`, so that one tank's query uses its index.
+        let base = format!(
+            "SELECT {DELIVERY_COLUMNS} FROM deliveries d JOIN carriers c ON c.id = d.carrier_id \
+             JOIN vehicles v ON v.id = d.vehicle_id WHERE d.deleted_at IS NULL"
+        );
+        let rows = match tank {
+            Some(id) => {
+                let sql = format!("{base} AND d.tank_id = ?1 ORDER BY d.start_ms, d.ticket");
+                let mut st = self.conn.prepare_cached(&sql)?;
+                st.query_map([id.0], delivery_from_row)?
+                    .collect::<Result<_, _>>()?
+            }
+            None => {
+                let sql = format!("{base} ORDER BY d.start_ms, d.ticket");
+                let mut st = self.conn.prepare_cached(&sql)?;
+                st.query_map([], delivery_from_row)?
+                    .collect::<Result<_, _>>()?
+            }
+        };
+        Ok(rows)
+    }
+
+    fn delivery(&self, id: DeliveryId) -> Result<Delivery, StoreError> {
+        let sql = format!(
+            "SELECT {DELIVERY_COLUMNS} FROM deliveries d JOIN carriers c ON c.id = d.carrier_id \
+             JOIN vehicles v ON v.id = d.vehicle_id WHERE d.id = ?1"
+        );
+        self.conn
+            .query_row(&sql, [id.0], delivery_from_row)
+            .optional()?
+            .ok_or_else(|| Self::not_found("delivery", id))
+    }
+
+    fn edit_delivery(
+        &mut self,
+        id: DeliveryId,
+        new: &DeliveryEntry,
+        reason: &str,
+    ) -> Result<(), StoreError> {
+        let old = self.delivery(id)?;
+        let tx = self.conn.transaction()?;
+        record_revision(
+            &tx,
+            RecordRef::Delivery(id),
+            RevisionAction::Edit,
+            reason,
+            &EarlierVersion::Delivery(old.entry),
+        )?;
+        write_delivery(&tx, old.tank_id, new, Some(id))?;
+        tx.commit()?;
+        Ok(())
+    }
+
+    fn delete_delivery(&mut self, id: DeliveryId, reason: &str) -> Result<(), StoreError> {
+        let old = self.delivery(id)?;
+        let tx = self.conn.transaction()?;
+        record_revision(
+            &tx,
+            RecordRef::Delivery(id),
+            RevisionAction::Delete,
+            reason,
+            &EarlierVersion::Delivery(old.entry),
+        )?;
+        tx.execute(
+            "UPDATE deliveries SET deleted_at = ?2 WHERE id = ?1",
+            params![id.0, now_text()],
+        )?;
+        tx.commit()?;
+        Ok(())
+    }
+
+    fn vehicles(&self) -> Result<Vec<Vehicle>, StoreError> {
+        let mut st = self.conn.prepare(
+            "SELECT v.id, v.name, c.name, v.meter_repeatability_percent FROM vehicles v \
+             JOIN carriers c ON c.id = v.carrier_id ORDER BY v.name",
+        )?;
+        let rows = st.query_map([], |r| {
+            Ok(Vehicle {
+                id: VehicleId(r.get(0)?),
+                name: r.get(1)?,
+                carrier: r.get(2)?,
+                meter_repeatability_percent: r.get(3)?,
+            })
+        })?;
+        Ok(rows.collect::<Result<_, _>>()?)
+    }
+
+    fn history(&self, record: RecordRef) -> Result<Vec<Revision>, StoreError> {
+        let (table, row) = table_row(record);
+        let mut st = self.conn.prepare(
+            "SELECT action, revised_at, reason, old_row FROM revisions \
+             WHERE table_name = ?1 AND row_id = ?2 ORDER BY id",
+        )?;
+        let rows = st.query_map(params![table, row], |r| {
+            Ok((
+                r.get::<_, String>(0)?,
+                r.get::<_, String>(1)?,
+                r.get::<_, String>(2)?,
+                r.get::<_, String>(3)?,
+            ))
+        })?;
+        let mut out = Vec::new();
+        for r in rows {
+            let (action, at, reason, json) = r?;
+            out.push(decode_revision(record, &action, at, reason, &json)?);
+        }
+        Ok(out)
+    }
+
+    fn import(
+        &mut self,
+        sources: ImportSources<'_>,
+        opts: &ImportOptions<'_>,
+    ) -> Result<ImportSummary, StoreError> {
+        import::import(self, sources, opts)
+    }
+
+    fn export(&self, kind: RecordKind, out: &mut dyn std::io::Write) -> Result<(), StoreError> {
+        match kind {
+            RecordKind::Tanks => export::tanks(self, out),
+            RecordKind::Readings => export::readings(self, out),
+            RecordKind::Deliveries => export::deliveries(self, out),
+        }
+    }
+
+    fn dump(&self) -> Result<String, StoreError> {
+        export::dump(self)
+    }
+}

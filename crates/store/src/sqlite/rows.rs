@@ -1,0 +1,583 @@
+//! How records map to SQLite rows: one column list per record kind, serving insert, edit and the
+//! mapping of uniqueness failures to the user's field; and the row writers shared by the importer
+//! (inside its transaction) and the single-record methods.
+
+use crate::StoreError;
+use crate::check::FieldError;
+use crate::records::*;
+use rusqlite::types::Value;
+use rusqlite::{Connection, OptionalExtension, Row, params, params_from_iter};
+use units::{DpUnit, Entered, QuantityUnit, TankPressureUnit, Unit};
+
+pub(crate) fn now_text() -> String {
+    units::rfc3339_from_ms(units::now_ms())
+}
+
+fn conversion(idx: usize, e: impl std::fmt::Display) -> rusqlite::Error {
+    rusqlite::Error::FromSqlConversionFailure(
+        idx,
+        rusqlite::types::Type::Text,
+        Box::<dyn std::error::Error + Send + Sync>::from(e.to_string()),
+    )
+}
+
+fn parse_text<T: std::str::FromStr>(r: &Row<'_>, idx: usize) -> rusqlite::Result<T>
+where
+    T::Err: std::fmt::Display,
+{
+    r.get::<_, String>(idx)?
+        .parse::<T>()
+        .map_err(|e| conversion(idx, e))
+}
+
+fn entered_pressure(
+    r: &Row<'_>,
+    idx: usize,
+) -> rusqlite::Result<Option<Entered<TankPressureUnit>>> {
+    match (
+        r.get::<_, Option<f64>>(idx)?,
+        r.get::<_, Option<String>>(idx + 1)?,
+    ) {
+        (Some(value), Some(u)) => Ok(Some(Entered {
+            value,
+            unit: u.parse().map_err(|e| conversion(idx + 1, e))?,
+        })),
+        _ => Ok(None),
+    }
+}
+
+/// A record kind's table, its written columns, and the rule its uniqueness failures break.
+pub(crate) struct Columns {
+    /// The table.
+    pub table: &'static str,
+    /// The columns written from an entry, in the order of its `values` function.
+    pub write: &'static [&'static str],
+    /// The field a uniqueness failure is reported on.
+    pub unique_field: &'static str,
+}
+
+impl Columns {
+    /// `INSERT INTO table (write...) VALUES (?1, ...)`, with `extra` leading columns (e.g. tank_id).
+    pub fn insert_sql(&self) -> String {
+        let places: Vec<String> = (1..=self.write.len()).map(|i| format!("?{i}")).collect();
+        format!(
+            "INSERT INTO {} ({}) VALUES ({})",
+            self.table,
+            self.write.join(", "),
+            places.join(", ")
+        )
+    }
+
+    /// `UPDATE table SET write... WHERE id = ?N`, the id last.
+    pub fn update_sql(&self) -> String {
+        let sets: Vec<String> = self
+            .write
+            .iter()
+            .enumerate()
+            .map(|(i, c)| format!("{c} = ?{}", i + 1))
+            .collect();
+        format!(
+            "UPDATE {} SET {} WHERE id = ?{}",
+            self.table,
+            sets.join(", "),
+            self.write.len() + 1
+        )
+    }
+
+    /// A failed write as the user's field error when it broke this record's uniqueness rule.
+    pub fn duplicate(
+        &self,
+        e: rusqlite::Error,
+        message: impl FnOnce() -> String,
+    ) -> Result<FieldError, rusqlite::Error> {
+        if is_unique_violation(&e) {
+            Ok(FieldError::new(self.unique_field, message()))
+        } else {
+            Err(e)
+        }
+    }
+
+    /// [`Columns::duplicate`] for the single-record methods.
+    pub fn write_error(&self, e: rusqlite::Error, message: impl FnOnce() -> String) -> StoreError {
+        match self.duplicate(e, message) {
+            Ok(f) => StoreError::Invalid(vec![f]),
+            Err(e) => e.into(),
+        }
+    }
+}
+
+/// Is this error a UNIQUE constraint failure?
+fn is_unique_violation(e: &rusqlite::Error) -> bool {
+    matches!(e, rusqlite::Error::SqliteFailure(f, _)
+        if f.extended_code == rusqlite::ffi::SQLITE_CONSTRAINT_UNIQUE)
+}
+
+// ---- tanks ----
+
+pub(crate) const TANK_COLUMNS: &str = "t.id, t.site_id, s.name, s.elevation_m, s.barometer_kpa, t.name, t.fluid, \
+    t.orientation, t.diameter_m, t.length_m, t.heads, t.crown_ratio, t.knuckle_ratio, t.line_temperature_c, \
+    t.dp_unit, t.gauge_span, t.gauge_accuracy_percent, t.relief_pressure_value, t.relief_pressure_unit, \
+    t.reorder_percent, t.ner_percent_per_day";
+
+pub(crate) fn tank_from_row(r: &Row<'_>) -> rusqlite::Result<TankRecord> {
+    let elevation: Option<f64> = r.get(3)?;
+    let barometer_kpa: Option<f64> = r.get(4)?;
+    Ok(TankRecord {
+        id: TankId(r.get(0)?),
+        site_id: SiteId(r.get(1)?),
+        barometer_pa: barometer_pa(barometer_kpa.map(|k| k * 1e3), elevation),
+        spec: TankSpec {
+            site: r.get(2)?,
+            name: r.get(5)?,
+            fluid: parse_text(r, 6)?,
+            orientation: parse_text(r, 7)?,
+            diameter_m: r.get(8)?,
+            length_m: r.get(9)?,
+            heads: parse_text(r, 10)?,
+            crown_ratio: r.get(11)?,
+            knuckle_ratio: r.get(12)?,
+            line_temperature_c: r.get(13)?,
+            dp_unit: parse_text::<DpUnit>(r, 14)?,
+            gauge_span: r.get(15)?,
+            gauge_accuracy_percent: r.get(16)?,
+            relief_pressure: entered_pressure(r, 17)?,
+            reorder_percent: r.get(19)?,
+            ner_percent_per_day: r.get(20)?,
+            strapping: Vec::new(),
+        },
+    })
+}
+
+/// Tanks: written from a [`TankSpec`] and its site id.
+pub(crate) const TANKS: Columns = Columns {
+    table: "tanks",
+    write: &[
+        "site_id",
+        "name",
+        "fluid",
+        "orientation",
+        "diameter_m",
+        "length_m",
+        "heads",
+        "crown_ratio",
+        "knuckle_ratio",
+        "line_temperature_c",
+        "line_temperature_k",
+        "dp_unit",
+        "gauge_span",
+        "gauge_span_pa",
+        "gauge_accuracy_percent",
+        "relief_pressure_value",
+        "relief_pressure_unit",
+        "relief_pressure_pa",
+        "reorder_percent",
+        "ner_percent_per_day",
+    ],
+    unique_field: "tank",
+};
+
+/// The values of [`TANKS`] for a tank at site `site_id`.
+pub(crate) fn tank_values(site_id: SiteId, t: &TankSpec) -> Vec<Value> {
+    vec![
+        site_id.0.into(),
+        t.name.clone().into(),
+        t.fluid.name().to_owned().into(),
+        t.orientation.as_str().to_owned().into(),
+        t.diameter_m.into(),
+        t.length_m.into(),
+        t.heads.as_str().to_owned().into(),
+        t.crown_ratio.into(),
+        t.knuckle_ratio.into(),
+        t.line_temperature_c.into(),
+        t.line_temperature_k().into(),
+        t.dp_unit.symbol().to_owned().into(),
+        t.gauge_span.into(),
+        t.gauge_span_pa().into(),
+        t.gauge_accuracy_percent.into(),
+        t.relief_pressure.map(|p| p.value).into(),
+        t.relief_pressure.map(|p| p.unit.symbol().to_owned()).into(),
+        t.relief_pressure.map(|p| p.si_value()).into(),
+        t.reorder_percent.into(),
+        t.ner_percent_per_day.into(),
+    ]
+}
+
+pub(crate) fn duplicate_tank(t: &TankSpec) -> String {
+    format!("a tank named '{}' already exists", t.name)
+}
+
+pub(crate) fn insert_tank(
+    conn: &Connection,
+    site_id: SiteId,
+    t: &TankSpec,
+) -> Result<TankId, rusqlite::Error> {
+    conn.prepare_cached(&TANKS.insert_sql())?
+        .execute(params_from_iter(tank_values(site_id, t)))?;
+    let id = TankId(conn.last_insert_rowid());
+    write_strapping(conn, id, &t.strapping)?;
+    Ok(id)
+}
+
+pub(crate) fn update_tank(
+    conn: &Connection,
+    id: TankId,
+    site_id: SiteId,
+    t: &TankSpec,
+) -> Result<(), rusqlite::Error> {
+    let values = tank_values(site_id, t)
+        .into_iter()
+        .chain([Value::from(id.0)]);
+    conn.prepare_cached(&TANKS.update_sql())?
+        .execute(params_from_iter(values))?;
+    write_strapping(conn, id, &t.strapping)
+}
+
+fn write_strapping(conn: &Connection, tank: TankId, points: &[(f64, f64)]) -> rusqlite::Result<()> {
+    conn.execute("DELETE FROM strapping_points WHERE tank_id = ?1", [tank.0])?;
+    let mut st = conn.prepare_cached(
+        "INSERT INTO strapping_points (tank_id, level_m, volume_m3) VALUES (?1, ?2, ?3)",
+    )?;
+    for (l, v) in points {
+        st.execute(params![tank.0, l, v])?;
+    }
+    Ok(())
+}
+
+// ---- sites ----
+
+pub(crate) fn site_id_for(
+    conn: &Connection,
+    name: &str,
+    elevation_m: Option<f64>,
+    barometer_kpa: Option<f64>,
+) -> Result<SiteId, FieldError> {
+    let existing = conn
+        .query_row(
+            "SELECT id, elevation_m, barometer_kpa FROM sites WHERE name = ?1 AND deleted_at IS NULL",
+            [name],
+            |r| Ok((r.get::<_, i64>(0)?, r.get::<_, Option<f64>>(1)?, r.get::<_, Option<f64>>(2)?)),
+        )
+        .optional()
+        .map_err(|e| FieldError::new("site", e.to_string()))?;
+    match existing {
+        Some((id, e0, b0)) => {
+            if elevation_m.is_some() && elevation_m != e0 {
+                return Err(FieldError::new(
+                    "elevation_m",
+                    format!("site '{name}' already has elevation {e0:?} m; edit the site instead"),
+                ));
+            }
+            if barometer_kpa.is_some() && barometer_kpa != b0 {
+                return Err(FieldError::new(
+                    "barometer_kpa",
+                    format!(
+                        "site '{name}' already has barometer {b0:?} kPa; edit the site instead"
+                    ),
+                ));
+            }
+            Ok(SiteId(id))
+        }
+        None => {
+            conn.execute(
+                "INSERT INTO sites (name, elevation_m, barometer_kpa, barometer_pa) VALUES (?1, ?2, ?3, ?4)",
+                params![name, elevation_m, barometer_kpa, barometer_kpa.map(|k| k * 1e3)],
+            )
+            .map_err(|e| FieldError::new("site", e.to_string()))?;
+            Ok(SiteId(conn.last_insert_rowid()))
+        }
+    }
+}
+
+// ---- readings ----
+
+pub(crate) const READING_COLUMNS: &str = "id, tank_id, time_text, time_ms, dp_value, dp_unit, pressure_value, \
+    pressure_unit, liquid_temperature_k, note";
+
+pub(crate) fn reading_from_row(r: &Row<'_>) -> rusqlite::Result<Reading> {
+    Ok(Reading {
+        id: ReadingId(r.get(0)?),
+        tank_id: TankId(r.get(1)?),
+        entry: ReadingEntry {
+            time: Stamp {
+                text: r.get(2)?,
+                ms: r.get(3)?,
+            },
+            dp: Entered {
+                value: r.get(4)?,
+                unit: parse_text::<DpUnit>(r, 5)?,
+            },
+            pressure: Entered {
+                value: r.get(6)?,
+                unit: parse_text::<TankPressureUnit>(r, 7)?,
+            },
+            liquid_temperature_k: r.get(8)?,
+            note: r.get(9)?,
+        },
+    })
+}
+
+/// Readings: written from a tank id and a [`ReadingEntry`].
+pub(crate) const READINGS: Columns = Columns {
+    table: "readings",
+    write: &[
+        "tank_id",
+        "time_text",
+        "time_ms",
+        "dp_value",
+        "dp_unit",
+        "dp_pa",
+        "pressure_value",
+        "pressure_unit",
+        "pressure_pa",
+        "liquid_temperature_k",
+        "note",
+    ],
+    unique_field: "time",
+};
+
+pub(crate) fn duplicate_reading(r: &ReadingEntry) -> String {
+    format!("this tank already has a reading at {}", r.time.text)
+}
+
+/// Insert or update with an already prepared [`READINGS`] statement (the importer's hot loop);
+/// `id` is bound last for an update.
+pub(crate) fn execute_reading(
+    st: &mut rusqlite::Statement<'_>,
+    tank: TankId,
+    r: &ReadingEntry,
+    id: Option<ReadingId>,
+) -> rusqlite::Result<()> {
+    let values = params![
+        tank.0,
+        r.time.text,
+        r.time.ms,
+        r.dp.value,
+        r.dp.unit.symbol(),
+        r.dp.si_value(),
+        r.pressure.value,
+        r.pressure.unit.symbol(),
+        r.pressure.si_value(),
+        r.liquid_temperature_k,
+        r.note,
+    ];
+    match id {
+        None => st.execute(values)?,
+        Some(id) => {
+            let mut all: Vec<&dyn rusqlite::ToSql> = values.to_vec();
+            all.push(&id.0);
+            st.execute(all.as_slice())?
+        }
+    };
+    Ok(())
+}
+
+// ---- deliveries ----
+
+pub(crate) const DELIVERY_COLUMNS: &str = "d.id, d.tank_id, d.ticket, d.start_text, d.start_ms, d.end_text, d.end_ms, \
+    d.quantity_value, d.quantity_unit, c.name, v.name, d.supply_pressure_value, d.supply_pressure_unit";
+
+pub(crate) fn delivery_from_row(r: &Row<'_>) -> rusqlite::Result<Delivery> {
+    Ok(Delivery {
+        id: DeliveryId(r.get(0)?),
+        tank_id: TankId(r.get(1)?),
+        entry: DeliveryEntry {
+            ticket: r.get(2)?,
+            start: Stamp {
+                text: r.get(3)?,
+                ms: r.get(4)?,
+            },
+            end: Stamp {
+                text: r.get(5)?,
+                ms: r.get(6)?,
+            },
+            quantity: Entered {
+                value: r.get(7)?,
+                unit: parse_text::<QuantityUnit>(r, 8)?,
+            },
+            carrier: r.get(9)?,
+            vehicle: r.get(10)?,
+            supply_pressure: entered_pressure(r, 11)?,
+        },
+    })
+}
+
+/// Deliveries: written from a tank id, its carrier and vehicle ids and a [`DeliveryEntry`].
+pub(crate) const DELIVERIES: Columns = Columns {
+    table: "deliveries",
+    write: &[
+        "tank_id",
+        "ticket",
+        "start_text",
+        "start_ms",
+        "end_text",
+        "end_ms",
+        "quantity_value",
+        "quantity_unit",
+        "quantity_si",
+        "carrier_id",
+        "vehicle_id",
+        "supply_pressure_value",
+        "supply_pressure_unit",
+        "supply_pressure_pa",
+    ],
+    unique_field: "ticket",
+};
+
+pub(crate) fn duplicate_delivery(d: &DeliveryEntry) -> String {
+    format!("ticket '{}' is already recorded", d.ticket)
+}
+
+/// Insert (`id` None) or update a delivery; its carrier and vehicle are found or created first.
+pub(crate) fn write_delivery(
+    conn: &Connection,
+    tank: TankId,
+    d: &DeliveryEntry,
+    id: Option<DeliveryId>,
+) -> Result<DeliveryId, StoreError> {
+    let (carrier_id, vehicle_id) =
+        vehicle_ids(conn, &d.carrier, &d.vehicle).map_err(|e| StoreError::Invalid(vec![e]))?;
+    let mut values: Vec<Value> = vec![
+        tank.0.into(),
+        d.ticket.clone().into(),
+        d.start.text.clone().into(),
+        d.start.ms.into(),
+        d.end.text.clone().into(),
+        d.end.ms.into(),
+        d.quantity.value.into(),
+        d.quantity.unit.symbol().to_owned().into(),
+        d.quantity.si_value().into(),
+        carrier_id.into(),
+        vehicle_id.into(),
+        d.supply_pressure.map(|p| p.value).into(),
+        d.supply_pressure.map(|p| p.unit.symbol().to_owned()).into(),
+        d.supply_pressure.map(|p| p.si_value()).into(),
+    ];
+    let sql = match id {
+        None => DELIVERIES.insert_sql(),
+        Some(id) => {
+            values.push(id.0.into());
+            DELIVERIES.update_sql()
+        }
+    };
+    conn.prepare_cached(&sql)
+        .and_then(|mut st| st.execute(params_from_iter(values)))
+        .map_err(|e| DELIVERIES.write_error(e, || duplicate_delivery(d)))?;
+    Ok(id.unwrap_or_else(|| DeliveryId(conn.last_insert_rowid())))
+}
+
+fn vehicle_ids(conn: &Connection, carrier: &str, vehicle: &str) -> Result<(i64, i64), FieldError> {
+    let sql_err = |e: rusqlite::Error| FieldError::new("vehicle", e.to_string());
+    let carrier_id: i64 = match conn
+        .query_row("SELECT id FROM carriers WHERE name = ?1", [carrier], |r| {
+            r.get(0)
+        })
+        .optional()
+        .map_err(sql_err)?
+    {
+        Some(id) => id,
+        None => {
+            conn.execute("INSERT INTO carriers (name) VALUES (?1)", [carrier])
+                .map_err(sql_err)?;
+            conn.last_insert_rowid()
+        }
+    };
+    let vehicle_row: Option<(i64, i64)> = conn
+        .query_row(
+            "SELECT id, carrier_id FROM vehicles WHERE name = ?1",
+            [vehicle],
+            |r| Ok((r.get(0)?, r.get(1)?)),
+        )
+        .optional()
+        .map_err(sql_err)?;
+    match vehicle_row {
+        Some((vid, cid)) if cid == carrier_id => Ok((carrier_id, vid)),
+        Some(_) => Err(FieldError::new(
+            "vehicle",
+            format!("vehicle '{vehicle}' belongs to another carrier, not '{carrier}'"),
+        )),
+        None => {
+            conn.execute(
+                "INSERT INTO vehicles (carrier_id, name) VALUES (?1, ?2)",
+                params![carrier_id, vehicle],
+            )
+            .map_err(sql_err)?;
+            Ok((carrier_id, conn.last_insert_rowid()))
+        }
+    }
+}
+
+// ---- history ----
+
+/// The table and row of a record reference.
+pub(crate) fn table_row(record: RecordRef) -> (&'static str, i64) {
+    match record {
+        RecordRef::Site(id) => ("sites", id.0),
+        RecordRef::Tank(id) => ("tanks", id.0),
+        RecordRef::Reading(id) => ("readings", id.0),
+        RecordRef::Delivery(id) => ("deliveries", id.0),
+    }
+}
+
+/// Keep the earlier version of a record with the reason (refused without one).
+pub(crate) fn record_revision(
+    conn: &Connection,
+    record: RecordRef,
+    action: RevisionAction,
+    reason: &str,
+    before: &EarlierVersion,
+) -> Result<(), StoreError> {
+    let reason = reason.trim();
+    if reason.is_empty() {
+        return Err(StoreError::Invalid(vec![FieldError::new(
+            "reason",
+            "say why the record is changed; the reason is kept with its history",
+        )]));
+    }
+    let json = match before {
+        EarlierVersion::Site(s) => serde_json::to_string(s),
+        EarlierVersion::Tank(t) => serde_json::to_string(t),
+        EarlierVersion::Reading(r) => serde_json::to_string(r),
+        EarlierVersion::Delivery(d) => serde_json::to_string(d),
+    }
+    .map_err(|e| StoreError::Encode(e.to_string()))?;
+    let (table, row) = table_row(record);
+    conn.execute(
+        "INSERT INTO revisions (table_name, row_id, action, revised_at, reason, old_row) \
+         VALUES (?1, ?2, ?3, ?4, ?5, ?6)",
+        params![table, row, action.as_str(), now_text(), reason, json],
+    )?;
+    Ok(())
+}
+
+/// Decode a stored earlier version of a record.
+pub(crate) fn decode_revision(
+    record: RecordRef,
+    action: &str,
+    revised_at: String,
+    reason: String,
+    json: &str,
+) -> Result<Revision, StoreError> {
+    let bad = |e: &dyn std::fmt::Display| StoreError::Corrupt {
+        what: format!("the history of {record:?}"),
+        reason: e.to_string(),
+    };
+    let before = match record {
+        RecordRef::Site(_) => serde_json::from_str(json).map(EarlierVersion::Site),
+        RecordRef::Tank(_) => serde_json::from_str(json).map(|t| EarlierVersion::Tank(Box::new(t))),
+        RecordRef::Reading(_) => serde_json::from_str(json).map(EarlierVersion::Reading),
+        RecordRef::Delivery(_) => serde_json::from_str(json).map(EarlierVersion::Delivery),
+    }
+    .map_err(|e| bad(&e))?;
+    let action = match action {
+        "edit" => RevisionAction::Edit,
+        "delete" => RevisionAction::Delete,
+        other => return Err(bad(&format!("unknown action '{other}'"))),
+    };
+    Ok(Revision {
+        record,
+        action,
+        revised_at,
+        reason,
+        before,
+    })
+}
