@@ -53,8 +53,9 @@ pub struct AuditArgs {
     /// Legal tolerance of the vehicle meters, %
     #[arg(long, default_value_t = 1.5, value_name = "PERCENT")]
     pub legal_tolerance_percent: f64,
-    /// How far from a fill a bracketing reading may be, hours
-    #[arg(long, default_value_t = 6.0, value_name = "HOURS")]
+    /// How far from a fill a bracketing reading may be, hours (the use model judges whether it is
+    /// near enough)
+    #[arg(long, default_value_t = 744.0, value_name = "HOURS")]
     pub window_hours: f64,
     /// Assume the liquid saturated at the tank pressure (no thermal history; for comparison)
     #[arg(long)]

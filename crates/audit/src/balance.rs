@@ -3,8 +3,8 @@
 use tank::{Contents, LiquidState, UncertaintyInputs};
 
 use crate::records::*;
-use crate::tank_audit::*;
 use crate::thermal::*;
+use crate::use_model::UseModel;
 use crate::{AuditOptions, DeliveryInput, ReadingInput, Verdict};
 
 pub(crate) fn bracket_reading(ctx: &Ctx<'_>, i: usize, e: &Eval) -> Option<BracketReading> {
@@ -86,7 +86,7 @@ pub(crate) fn balance(
     d: &DeliveryInput,
     (b, a): (Option<usize>, Option<usize>),
     evals: &[Option<Eval>],
-    intervals: &[Interval],
+    model: &UseModel,
 ) -> Balance {
     let opts = ctx.opts;
     let k = opts.coverage_factor;
@@ -117,7 +117,12 @@ pub(crate) fn balance(
         before: None,
         after: None,
         bracket_window_h: window_h,
+        before_hours: None,
+        after_hours: None,
+        other_fills_kg: 0.0,
+        usage_share_percent: None,
         gauge_drift_percent_per_year: None,
+        gauge_step: None,
         explanation: String::new(),
     };
     let eb = b.and_then(|i| evals.get(i).copied().flatten().map(|e| (i, e)));
@@ -133,16 +138,31 @@ pub(crate) fn balance(
     out.before = bracket_reading(ctx, ib, &eb);
     out.after = bracket_reading(ctx, ia, &ea);
     let (rb, ra) = (ctx.readings[ib], ctx.readings[ia]);
-    let dt_s = (ra.time_ms - rb.time_ms) as f64 / 1000.0;
-    let (rate, rate_se, _) = usage_near(intervals, rb.time_ms, ra.time_ms, opts);
-    out.usage_kg_per_day = rate * DAY_S;
-    out.drawn_kg = rate * dt_s;
-    out.sigma_usage_kg =
-        ((opts.usage_u_rel * out.drawn_kg).powi(2) + (rate_se * dt_s).powi(2)).sqrt();
-    let meter_pct = d
-        .meter_repeatability_percent
-        .unwrap_or(opts.meter_repeatability_percent);
-    out.sigma_meter_kg = meter_pct / 100.0 * d.billed_kg.abs();
+    let hours = |ms: i64| ms as f64 / 3_600_000.0;
+    out.before_hours = Some(hours(d.start_ms - rb.time_ms));
+    out.after_hours = Some(hours(ra.time_ms - d.end_ms));
+    // the use between the two readings, from the tank's weekly use model
+    if let Some(f) = model.at(d.start_ms) {
+        let (drawn, sd) = f.predict(rb.time_ms, ra.time_ms);
+        out.drawn_kg = drawn;
+        out.sigma_usage_kg = sd;
+        out.usage_kg_per_day = f.weekly_mean_kg_day();
+    }
+    let meter_pct = |x: &DeliveryInput| {
+        x.meter_repeatability_percent
+            .unwrap_or(opts.meter_repeatability_percent)
+            / 100.0
+            * x.billed_kg.abs()
+    };
+    out.sigma_meter_kg = meter_pct(d);
+    // other fills between the same two readings: their tickets are taken as delivered
+    let others: Vec<&DeliveryInput> = ctx
+        .deliveries
+        .iter()
+        .filter(|o| o.ticket != d.ticket && o.start_ms < ra.time_ms && o.end_ms > rb.time_ms)
+        .collect();
+    out.other_fills_kg = others.iter().map(|o| o.billed_kg).sum();
+    let others_var: f64 = others.iter().map(|o| meter_pct(o).powi(2)).sum();
     match (budget(ctx, &rb, &eb), budget(ctx, &ra, &ea)) {
         (Some((cb, bb, xb)), Some((ca, ba, xa))) => {
             let diff = tank::difference_uncertainty(&bb, &ba);
@@ -161,13 +181,17 @@ pub(crate) fn balance(
             return out;
         }
     }
-    out.gained_kg = ea.contents_total_kg - eb.contents_total_kg;
+    out.gained_kg = ea.contents_total_kg - eb.contents_total_kg - out.other_fills_kg;
     out.residual_kg = d.billed_kg - (out.gained_kg + out.drawn_kg);
+    out.sigma_meter_kg = (out.sigma_meter_kg.powi(2) + others_var).sqrt();
     out.sigma_kg = (out.sigma_readings_shared_kg.powi(2)
         + out.sigma_readings_independent_kg.powi(2)
         + out.sigma_usage_kg.powi(2)
         + out.sigma_meter_kg.powi(2))
     .sqrt();
+    if out.sigma_kg > 0.0 {
+        out.usage_share_percent = Some(100.0 * (out.sigma_usage_kg / out.sigma_kg).powi(2));
+    }
     out.ratio = if d.billed_kg > 0.0 {
         (out.gained_kg + out.drawn_kg) / d.billed_kg
     } else {
@@ -186,8 +210,32 @@ pub(crate) fn balance(
 /// Decide the verdict and write the explanation (also used when a drift note is added).
 pub(crate) fn set_verdict(b: &mut Balance, opts: &AuditOptions) {
     let k = b.coverage_factor;
+    let bracket = match (b.before_hours, b.after_hours) {
+        (Some(bh), Some(ah)) if bh.max(ah) <= 2.0 => "the readings taken at the fill".to_owned(),
+        (Some(bh), Some(ah)) => {
+            format!("routine readings {bh:.0} h before and {ah:.0} h after the fill")
+        }
+        _ => "the readings around the fill".to_owned(),
+    };
+    let others = if b.other_fills_kg > 0.0 {
+        format!(
+            " (less {} kg billed on other tickets in the same period)",
+            fmt_kg(b.other_fills_kg)
+        )
+    } else {
+        String::new()
+    };
+    let share = b
+        .usage_share_percent
+        .map(|p| {
+            format!(
+                " ± {} kg, {p:.0} % of the balance's variance",
+                fmt_kg(b.sigma_usage_kg)
+            )
+        })
+        .unwrap_or_default();
     let numbers = format!(
-        "billed {} kg; the tank gained {} kg and the customer drew about {} kg during the fill",
+        "billed {} kg; between {bracket} the tank gained {} kg{others} and the customer drew about {} kg{share}",
         fmt_kg(b.billed_kg),
         fmt_kg(b.gained_kg),
         fmt_kg(b.drawn_kg)
@@ -245,6 +293,12 @@ pub(crate) fn set_verdict(b: &mut Balance, opts: &AuditOptions) {
     if let Some(drift) = b.gauge_drift_percent_per_year {
         b.explanation.push_str(&format!(
             " The tank's gauge is drifting ({drift:.1} % of span per year), so the gain is doubtful."
+        ));
+    }
+    if let Some(step) = b.gauge_step {
+        b.explanation.push_str(&format!(
+            " The tank's gauge stepped ({:.1} % of span) before this fill, so the gain is doubtful.",
+            step.size_percent
         ));
     }
 }

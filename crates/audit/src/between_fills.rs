@@ -2,33 +2,32 @@
 
 use crate::balance::fmt_kg;
 use crate::records::*;
-use crate::stats::{mad_sigma, median};
 use crate::tank_audit::*;
 use crate::thermal::*;
+use crate::use_model::UseModel;
 
-pub(crate) fn findings(ctx: &Ctx<'_>, intervals: &[Interval]) -> Vec<Finding> {
+/// Findings between fills, each interval judged against the tank's weekly use model:
+/// - a gain no ticket explains: an interval whose mass rose beyond the model's use by more than
+///   `gain_sigmas` standard uncertainties and `gain_min_fraction` of a full tank;
+/// - a loss beyond use (a leak or venting): a run of intervals losing more than the model says,
+///   found by a one-sided CUSUM of the standardized excess losses (Page, "Continuous inspection
+///   schemes", Biometrika 41, 1954) with reference value `leak_cusum_k` and decision interval
+///   `leak_cusum_h`; reported once, from the start of the run to its end, with its rate.
+pub(crate) fn findings(ctx: &Ctx<'_>, intervals: &[Interval], model: &UseModel) -> Vec<Finding> {
     let opts = ctx.opts;
-    let clean: Vec<&Interval> = intervals.iter().filter(|iv| iv.clean).collect();
-    let rates: Vec<f64> = clean.iter().map(|iv| iv.rate_kg_s).collect();
-    let (Some(r0), Some(sr)) = (median(&rates), mad_sigma(&rates)) else {
-        return Vec::new();
-    };
-    let r0 = r0.max(0.0);
-    let usage = r0 * DAY_S;
-    // scatter of the change over an interval about the usual use
-    let dev: Vec<f64> = clean
-        .iter()
-        .map(|iv| {
-            let dt = (iv.to_ms - iv.from_ms) as f64 / 1000.0;
-            (iv.to_kg - iv.from_kg) + r0 * dt
-        })
-        .collect();
-    let s_pair = mad_sigma(&dev).unwrap_or(0.0);
     let mut out = Vec::new();
-    for iv in &clean {
-        let dt = (iv.to_ms - iv.from_ms) as f64 / 1000.0;
-        let gain = (iv.to_kg - iv.from_kg) + r0 * dt;
-        let limit = (opts.gain_sigmas * s_pair).max(opts.gain_min_fraction * ctx.full_mass_kg);
+    // (from, to, excess loss kg, standardized excess)
+    let mut judged: Vec<(i64, i64, f64, f64, f64)> = Vec::new();
+    for iv in intervals.iter().filter(|iv| iv.clean) {
+        let Some(fit) = model.at(iv.from_ms + (iv.to_ms - iv.from_ms) / 2) else {
+            continue;
+        };
+        let (expected, _) = fit.predict(iv.from_ms, iv.to_ms);
+        let sd = fit.interval_sd(iv.from_ms, iv.to_ms).max(1e-9);
+        let lost = iv.from_kg - iv.to_kg;
+        let usage = fit.weekly_mean_kg_day();
+        let gain = expected - lost;
+        let limit = (opts.gain_sigmas * sd).max(opts.gain_min_fraction * ctx.full_mass_kg);
         if gain > limit {
             out.push(Finding {
                 kind: FindingKind::UnexplainedGain,
@@ -39,71 +38,75 @@ pub(crate) fn findings(ctx: &Ctx<'_>, intervals: &[Interval]) -> Vec<Finding> {
                 excess_rate_kg_per_day: None,
                 usage_kg_per_day: usage,
                 explanation: format!(
-                    "Unexplained gain: the tank gained {} kg beyond its usual use of {} kg/day between two readings with no delivery logged (limit {} kg).",
+                    "Unexplained gain: the tank gained {} kg beyond the {} kg its use model expects between two readings with no delivery logged (limit {} kg).",
                     fmt_kg(gain),
-                    fmt_kg(usage),
+                    fmt_kg(expected),
                     fmt_kg(limit)
                 ),
             });
+            continue;
         }
+        judged.push((
+            iv.from_ms,
+            iv.to_ms,
+            lost - expected,
+            (lost - expected) / sd,
+            usage,
+        ));
     }
-    // losses beyond use: windows of consecutive clean intervals (gains removed)
-    let w = opts.loss_window.max(2);
-    let usable: Vec<&Interval> = clean
-        .iter()
-        .copied()
-        .filter(|iv| {
-            let dt = (iv.to_ms - iv.from_ms) as f64 / 1000.0;
-            (iv.to_kg - iv.from_kg) + r0 * dt
-                <= (opts.gain_sigmas * s_pair).max(opts.gain_min_fraction * ctx.full_mass_kg)
-        })
-        .collect();
-    let mut open: Option<(i64, i64, f64, f64)> = None; // from, to, excess kg, seconds
-    let close = |o: (i64, i64, f64, f64), out: &mut Vec<Finding>| {
-        let days = o.3 / DAY_S;
-        let excess_rate = o.2 / days.max(1e-9);
-        out.push(Finding {
-            kind: FindingKind::LossBeyondUse,
-            tank: ctx.input.name.clone(),
-            from_ms: o.0,
-            to_ms: o.1,
-            mass_kg: o.2,
-            excess_rate_kg_per_day: Some(excess_rate),
-            usage_kg_per_day: usage,
-            explanation: format!(
-                "Loss beyond use: over {:.0} days the tank lost {} kg more than its usual use of {} kg/day ({} kg/day extra): a leak or venting?",
-                days,
-                fmt_kg(o.2),
-                fmt_kg(usage),
-                fmt_kg(excess_rate)
-            ),
-        });
-    };
-    for chunk in usable.chunks(w) {
-        if chunk.len() < w {
-            break;
+    // one-sided CUSUM of the standardized excess losses
+    let mut s = 0.0;
+    let mut run: Option<usize> = None; // first interval of the current run
+    let mut i = 0;
+    while i < judged.len() {
+        let z = judged[i].3;
+        let before = s;
+        s = (s + z - opts.leak_cusum_k).max(0.0);
+        if before == 0.0 && s > 0.0 {
+            run = Some(i);
+        } else if s == 0.0 {
+            run = None;
         }
-        let secs: f64 = chunk
-            .iter()
-            .map(|iv| (iv.to_ms - iv.from_ms) as f64 / 1000.0)
-            .sum();
-        let lost: f64 = chunk.iter().map(|iv| iv.from_kg - iv.to_kg).sum();
-        let rate = lost / secs;
-        let se = sr / (chunk.len() as f64).sqrt();
-        let flagged = rate - r0 > (opts.loss_excess_fraction * r0).max(4.0 * se);
-        let (from, to) = (chunk[0].from_ms, chunk[chunk.len() - 1].to_ms);
-        if flagged {
-            let excess = (rate - r0) * secs;
-            open = Some(match open {
-                Some(o) => (o.0, to, o.2 + excess, o.3 + secs),
-                None => (from, to, excess, secs),
-            });
-        } else if let Some(o) = open.take() {
-            close(o, &mut out);
+        if s > opts.leak_cusum_h
+            && let Some(first) = run
+        {
+            // the run goes on while the losses stay above use
+            let mut last = i;
+            while last + 1 < judged.len() && judged[last + 1].3 > opts.leak_cusum_k {
+                last += 1;
+            }
+            let part = &judged[first..=last];
+            let excess: f64 = part.iter().map(|p| p.2).sum();
+            let (from, to) = (part[0].0, part[part.len() - 1].1);
+            let days = (to - from) as f64 / (DAY_S * 1000.0);
+            let usage = part.iter().map(|p| p.4).sum::<f64>() / part.len() as f64;
+            let rate = excess / days.max(1e-9);
+            if excess >= opts.leak_min_fraction * ctx.full_mass_kg
+                && rate >= opts.leak_min_rate_fraction * usage
+            {
+                out.push(Finding {
+                    kind: FindingKind::LossBeyondUse,
+                    tank: ctx.input.name.clone(),
+                    from_ms: from,
+                    to_ms: to,
+                    mass_kg: excess,
+                    excess_rate_kg_per_day: Some(rate),
+                    usage_kg_per_day: usage,
+                    explanation: format!(
+                        "Loss beyond use: over {:.0} days the tank lost {} kg more than its use model expects ({} kg/day beside a usual {} kg/day): a leak or venting?",
+                        days,
+                        fmt_kg(excess),
+                        fmt_kg(rate),
+                        fmt_kg(usage)
+                    ),
+                });
+            }
+            s = 0.0;
+            run = None;
+            i = last + 1;
+            continue;
         }
-    }
-    if let Some(o) = open.take() {
-        close(o, &mut out);
+        i += 1;
     }
     out.sort_by(|a, b| a.from_ms.cmp(&b.from_ms).then(a.kind.cmp(&b.kind)));
     out
@@ -112,7 +115,7 @@ pub(crate) fn findings(ctx: &Ctx<'_>, intervals: &[Interval]) -> Vec<Finding> {
 pub(crate) fn forecast(
     ctx: &Ctx<'_>,
     evals: &[Option<Eval>],
-    intervals: &[Interval],
+    model: &UseModel,
 ) -> Option<Forecast> {
     let reorder = ctx.input.reorder_percent?;
     let (i, e) = evals
@@ -121,8 +124,9 @@ pub(crate) fn forecast(
         .rev()
         .find_map(|(i, e)| e.map(|e| (i, e)))?;
     let r = ctx.readings.get(i)?;
-    let (rate, _, n) = usage_near(intervals, r.time_ms, r.time_ms, ctx.opts);
-    if n == 0 || rate <= 0.0 {
+    // the weekly mean use, kg/s
+    let rate = model.at(r.time_ms)?.weekly_mean_kg_day() / DAY_S;
+    if rate <= 0.0 {
         return None;
     }
     let gross = ctx.tank.geometry.gross_volume_m3();

@@ -76,6 +76,7 @@ mod records;
 pub mod stats;
 mod tank_audit;
 mod thermal;
+mod use_model;
 
 use serde::Serialize;
 
@@ -83,7 +84,7 @@ pub use fleet::{
     FleetAudit, GaugeFinding, GaugeStatus, TankSummary, VehicleFinding, VehicleStatus, audit_fleet,
 };
 pub use records::{
-    Balance, BracketReading, Finding, FindingKind, Forecast, ReadingState, TankAudit,
+    Balance, BracketReading, Finding, FindingKind, Forecast, GaugeStep, ReadingState, TankAudit,
 };
 pub use tank_audit::audit_tank;
 pub use thermal::{default_ner_percent_per_day, default_supply_pressure_pa, mix_liquids};
@@ -186,12 +187,11 @@ pub struct AuditOptions {
     /// ±50 %). The fit minimizes Σρ + ½ (ln(NER/setting) / sd)², so a tank whose balances do not depend
     /// on its NER (its liquid reaches saturation well before the next fill) keeps its setting.
     pub ner_prior_ln_sd: f64,
-    /// How far from a fill a bracketing reading may be, s (6 h).
+    /// How far from a fill a bracketing reading may be, s (31 days: the nearest usable readings
+    /// bracket a fill however far, and the use model's uncertainty decides whether they can judge it).
     pub bracket_window_s: f64,
-    /// Readings on each side of a fill the usage model looks at, days (10).
+    /// Readings before `since` that still feed the thermal history and the use model, days (60).
     pub usage_window_days: f64,
-    /// Relative standard uncertainty of the use drawn during a fill (0.5: the day's pattern is unknown).
-    pub usage_u_rel: f64,
     /// Coverage factor k of the verdicts (2; JCGM 100:2008, 6.3).
     pub coverage_factor: f64,
     /// Smallest residual, as a fraction of the billed quantity, that can make a fill short or excess
@@ -230,11 +230,17 @@ pub struct AuditOptions {
     pub gain_sigmas: f64,
     /// ... and beyond this fraction of a full tank's mass (0.05).
     pub gain_min_fraction: f64,
-    /// Consecutive reading intervals averaged when looking for a loss beyond use (7).
-    pub loss_window: usize,
-    /// A loss beyond use is flagged when the window's rate exceeds the usual rate by this fraction (0.5)
-    /// and by 4 standard errors.
-    pub loss_excess_fraction: f64,
+    /// Reference value k of the CUSUM of standardized excess losses (0.5: tuned to a shift of one
+    /// standard deviation; Montgomery, "Introduction to Statistical Quality Control", §9.1).
+    pub leak_cusum_k: f64,
+    /// Decision interval h of that CUSUM (8: an in-control run length of the order of 10⁴ intervals,
+    /// so a fleet's year of readings raises about one false alarm at most; Montgomery §9.1 tables).
+    pub leak_cusum_h: f64,
+    /// Smallest loss beyond use reported, fraction of a full tank's mass (0.02) ...
+    pub leak_min_fraction: f64,
+    /// ... and, as a rate, fraction of the tank's usual use (0.3: slower changes are within the
+    /// variation of use over weeks; common practice, no source).
+    pub leak_min_rate_fraction: f64,
     /// Days between reaching the reorder level and the fill (1).
     pub fill_lead_days: f64,
     /// Golden-section steps of the NER fit (6: the bracket of ln NER, ±ln 3 wide, shrinks to ±0.06).
@@ -254,9 +260,8 @@ impl Default for AuditOptions {
             ner_fit_range_factor: 3.0,
             ner_fit_scale_fraction: 0.007,
             ner_prior_ln_sd: 0.4,
-            bracket_window_s: 6.0 * 3600.0,
-            usage_window_days: 10.0,
-            usage_u_rel: 0.5,
+            bracket_window_s: 31.0 * 86_400.0,
+            usage_window_days: 60.0,
             coverage_factor: 2.0,
             materiality_fraction: 0.01,
             inconclusive_fraction: 0.05,
@@ -273,8 +278,10 @@ impl Default for AuditOptions {
             legal_tolerance: 0.015,
             gain_sigmas: 6.0,
             gain_min_fraction: 0.05,
-            loss_window: 7,
-            loss_excess_fraction: 0.5,
+            leak_cusum_k: 0.5,
+            leak_cusum_h: 8.0,
+            leak_min_fraction: 0.02,
+            leak_min_rate_fraction: 0.3,
             fill_lead_days: 1.0,
             ner_fit_iterations: 6,
             exact_properties: false,

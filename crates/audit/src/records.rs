@@ -90,10 +90,29 @@ pub struct Balance {
     pub after: Option<BracketReading>,
     /// How far a bracketing reading may be from the fill, h.
     pub bracket_window_h: f64,
+    /// Hours from the reading before to the start of the fill.
+    pub before_hours: Option<f64>,
+    /// Hours from the end of the fill to the reading after.
+    pub after_hours: Option<f64>,
+    /// Billed on other tickets between the same two readings (taken as delivered), kg.
+    pub other_fills_kg: f64,
+    /// The use model's share of the balance's variance, %.
+    pub usage_share_percent: Option<f64>,
     /// The tank's gauge drift, % of span per year, when its gauge was found drifting.
     pub gauge_drift_percent_per_year: Option<f64>,
+    /// The step of the tank's gauge before this fill, when one was found.
+    pub gauge_step: Option<GaugeStep>,
     /// One sentence with the numbers, to hand to a carrier.
     pub explanation: String,
+}
+
+/// A step change of a gauge's span or zero (a bad recalibration), dated.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct GaugeStep {
+    /// When it happened: between the last fill before and the first fill after, ms.
+    pub at_ms: i64,
+    /// Its size, % of the fills' ratio (≈ of span for a span step).
+    pub size_percent: f64,
 }
 
 /// What a finding between fills is.

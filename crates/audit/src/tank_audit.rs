@@ -7,8 +7,9 @@ use crate::balance::balance;
 use crate::between_fills::{findings, forecast};
 use crate::props::AuditFluid;
 use crate::records::*;
-use crate::stats::{mad_sigma, median};
+use crate::stats::median;
 use crate::thermal::*;
+use crate::use_model::{Observed, UseModel, Window};
 use crate::{AuditError, AuditOptions, ReadingInput, TankInput};
 
 pub(crate) const DAY_S: f64 = 86_400.0;
@@ -36,7 +37,6 @@ pub(crate) struct Interval {
     pub(crate) to_ms: i64,
     pub(crate) from_kg: f64,
     pub(crate) to_kg: f64,
-    pub(crate) rate_kg_s: f64,
     /// No delivery touches it.
     pub(crate) clean: bool,
 }
@@ -128,17 +128,14 @@ pub fn audit_tank(input: &TankInput, opts: &AuditOptions) -> Result<TankAudit, A
                 }
             }
         }
-        // usage per fill from the first pass (NER barely moves it)
-        let intervals = intervals(&ctx, &evals);
+        // use per fill from the first pass (the NER barely moves it)
+        let model = use_model(&ctx, &intervals(&ctx, &evals), Window::Centred);
         let drawn: Vec<f64> = ctx
             .deliveries
             .iter()
             .zip(&brackets)
             .map(|(_, (b, a))| match (b, a) {
-                (Some(b), Some(a)) => {
-                    let (t0, t1) = (times[*b], times[*a]);
-                    usage_near(&intervals, t0, t1, opts).0 * (t1 - t0) as f64 / 1000.0
-                }
+                (Some(b), Some(a)) => model.predict(times[*b], times[*a]).map_or(0.0, |p| p.0),
                 _ => 0.0,
             })
             .collect();
@@ -203,16 +200,19 @@ pub fn audit_tank(input: &TankInput, opts: &AuditOptions) -> Result<TankAudit, A
         }
     }
     let intervals = intervals(&ctx, &evals);
+    let model = use_model(&ctx, &intervals, Window::Centred);
+    let past = use_model(&ctx, &intervals, Window::Trailing);
     let balances: Vec<Balance> = ctx
         .deliveries
         .iter()
         .zip(&brackets)
-        .map(|(d, br)| balance(&ctx, d, *br, &evals, &intervals))
+        .map(|(d, br)| balance(&ctx, d, *br, &evals, &model))
         .collect();
     let mut balances = balances;
     balances.sort_by(|a, b| a.start_ms.cmp(&b.start_ms).then(a.ticket.cmp(&b.ticket)));
-    let findings = findings(&ctx, &intervals);
-    let forecast = forecast(&ctx, &evals, &intervals);
+    let _ = &past;
+    let findings = findings(&ctx, &intervals, &model);
+    let forecast = forecast(&ctx, &evals, &model);
     let readings_used = evals.iter().filter(|e| e.is_some()).count();
     let state = |(r, e): (&ReadingInput, &Option<Eval>)| {
         e.map(|e| ReadingState {
@@ -268,44 +268,22 @@ pub(crate) fn intervals(ctx: &Ctx<'_>, evals: &[Option<Eval>]) -> Vec<Interval> 
                 to_ms: b.0,
                 from_kg: a.1,
                 to_kg: b.1,
-                rate_kg_s: (a.1 - b.1) / dt_s,
                 clean: !touched,
             })
         })
         .collect()
 }
 
-/// Robust use rate near [t0, t1]: the median over clean intervals within the usage window (weighted
-/// by nothing: outliers such as an unlogged fill fall out of a median). Returns (rate kg/s, its
-/// standard error kg/s, intervals used).
-pub(crate) fn usage_near(
-    intervals: &[Interval],
-    t0: i64,
-    t1: i64,
-    opts: &AuditOptions,
-) -> (f64, f64, usize) {
-    let w = (opts.usage_window_days * DAY_S * 1000.0) as i64;
-    let lo = intervals.partition_point(|iv| iv.to_ms < t0 - w);
-    let hi = intervals.partition_point(|iv| iv.from_ms <= t1 + w);
-    let rates: Vec<f64> = intervals
-        .get(lo..hi)
-        .unwrap_or(&[])
+/// The tank's use model from the intervals no logged fill touches.
+pub(crate) fn use_model(ctx: &Ctx<'_>, intervals: &[Interval], window: Window) -> UseModel {
+    let observed: Vec<Observed> = intervals
         .iter()
         .filter(|iv| iv.clean)
-        .map(|iv| iv.rate_kg_s)
+        .map(|iv| Observed {
+            from_ms: iv.from_ms,
+            to_ms: iv.to_ms,
+            lost_kg: iv.from_kg - iv.to_kg,
+        })
         .collect();
-    let rates = if rates.len() >= 3 {
-        rates
-    } else {
-        intervals
-            .iter()
-            .filter(|iv| iv.clean)
-            .map(|iv| iv.rate_kg_s)
-            .collect()
-    };
-    let n = rates.len();
-    match (median(&rates), mad_sigma(&rates)) {
-        (Some(m), Some(s)) => (m.max(0.0), 1.2533 * s / (n as f64).sqrt(), n),
-        _ => (0.0, 0.0, 0),
-    }
+    UseModel::fit(&observed, ctx.full_mass_kg, window)
 }

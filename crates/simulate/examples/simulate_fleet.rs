@@ -41,6 +41,7 @@ pub fn demo_config() -> FleetConfig {
             Fault::Leak {
                 tank: 9,
                 from_day: 290,
+                days: 12,
                 kg_per_day: 150.0,
             },
         ],

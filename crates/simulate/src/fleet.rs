@@ -45,12 +45,15 @@ pub enum Fault {
         /// Day number.
         day: u32,
     },
-    /// Tank `tank` loses `kg_per_day` beyond its use from day `from_day` on.
+    /// Tank `tank` loses `kg_per_day` beyond its use for `days` days from day `from_day` (a leak or
+    /// a stuck vent, found and mended).
     Leak {
         /// Tank index.
         tank: usize,
         /// First day of the leak.
         from_day: u32,
+        /// How many days it lasts.
+        days: u32,
         /// Loss rate, kg/day.
         kg_per_day: f64,
     },

@@ -32,7 +32,8 @@ pub(crate) struct TankSim<'a> {
     pub(crate) f: &'static fluids::Fluid,
     pub(crate) heat_w: f64,
     pub(crate) day_factor: Vec<f64>,
-    pub(crate) leak: Option<(i64, f64)>,
+    /// A leak: from, to (ms) and its rate, kg/day.
+    pub(crate) leak: Option<(i64, i64, f64)>,
     pub(crate) span_drift_per_ms: f64,
     pub(crate) zero_offset_pa: f64,
     pub(crate) start_ms: i64,
@@ -71,8 +72,9 @@ impl TankSim<'_> {
             let hour = rel.rem_euclid(DAY_MS) / HOUR_MS;
             let factor = self.day_factor.get(day).copied().unwrap_or(1.0);
             let mut draw = self.t.usage_kg_per_day / 86_400.0 * factor * hourly_shape(hour) * dt_s;
-            if let Some((from, kg_day)) = self.leak
+            if let Some((from, to, kg_day)) = self.leak
                 && s.time_ms >= from
+                && s.time_ms < to
             {
                 draw += kg_day / 86_400.0 * dt_s;
             }
@@ -231,9 +233,11 @@ pub(crate) fn simulate_tank(
                 Fault::Leak {
                     tank,
                     from_day,
+                    days,
                     kg_per_day,
                 } if tank == index => {
-                    leak = Some((cfg.start_ms + i64::from(from_day) * DAY_MS, kg_per_day))
+                    let from = cfg.start_ms + i64::from(from_day) * DAY_MS;
+                    leak = Some((from, from + i64::from(days) * DAY_MS, kg_per_day));
                 }
                 Fault::GaugeSpanDrift {
                     tank,

@@ -47,9 +47,9 @@ pub fn civil_from_ms(ms: i64) -> Civil {
     }
 }
 
-/// `YYYY-MM-DDTHH:MM:SSZ` of an instant (whole seconds, UTC; milliseconds shown when there are any).
+/// `YYYY-MM-DDTHH:MM:SSZ` of an instant (whole seconds, truncated; UTC).
 pub fn rfc3339_from_ms(ms: i64) -> String {
-    utc(ms).to_rfc3339_opts(SecondsFormat::AutoSi, true)
+    utc(ms.div_euclid(1000) * 1000).to_rfc3339_opts(SecondsFormat::Secs, true)
 }
 
 /// Milliseconds since 1970-01-01 UTC of an RFC 3339 date-time
