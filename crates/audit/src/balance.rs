@@ -120,6 +120,10 @@ pub(crate) fn balance(
         before_hours: None,
         after_hours: None,
         other_fills_kg: 0.0,
+        sigma_other_tickets_kg: 0.0,
+        meter_percent: d
+            .meter_repeatability_percent
+            .unwrap_or(opts.meter_repeatability_percent),
         usage_share_percent: None,
         gauge_drift_percent_per_year: None,
         gauge_step: None,
@@ -183,6 +187,7 @@ pub(crate) fn balance(
     }
     out.gained_kg = ea.contents_total_kg - eb.contents_total_kg - out.other_fills_kg;
     out.residual_kg = d.billed_kg - (out.gained_kg + out.drawn_kg);
+    out.sigma_other_tickets_kg = others_var.sqrt();
     out.sigma_meter_kg = (out.sigma_meter_kg.powi(2) + others_var).sqrt();
     out.sigma_kg = (out.sigma_readings_shared_kg.powi(2)
         + out.sigma_readings_independent_kg.powi(2)

@@ -13,9 +13,14 @@ use crate::use_model::UseModel;
 ///   found by a one-sided CUSUM of the standardized excess losses (Page, "Continuous inspection
 ///   schemes", Biometrika 41, 1954) with reference value `leak_cusum_k` and decision interval
 ///   `leak_cusum_h`; reported once, from the start of the run to its end, with its rate.
-pub(crate) fn findings(ctx: &Ctx<'_>, intervals: &[Interval], model: &UseModel) -> Vec<Finding> {
+pub(crate) fn findings(
+    ctx: &Ctx<'_>,
+    intervals: &[Interval],
+    model: &UseModel,
+) -> (Vec<Finding>, Vec<Jump>) {
     let opts = ctx.opts;
     let mut out = Vec::new();
+    let mut jumps = Vec::new();
     // (from, to, excess loss kg, standardized excess)
     let mut judged: Vec<(i64, i64, f64, f64, f64)> = Vec::new();
     for iv in intervals.iter().filter(|iv| iv.clean) {
@@ -26,6 +31,14 @@ pub(crate) fn findings(ctx: &Ctx<'_>, intervals: &[Interval], model: &UseModel) 
         let sd = fit.interval_sd(iv.from_ms, iv.to_ms).max(1e-9);
         let lost = iv.from_kg - iv.to_kg;
         let usage = fit.weekly_mean_kg_day();
+        let z = (lost - expected) / sd;
+        if z.abs() >= 3.0 {
+            jumps.push(Jump {
+                from_ms: iv.from_ms,
+                to_ms: iv.to_ms,
+                z,
+            });
+        }
         let gain = expected - lost;
         let limit = (opts.gain_sigmas * sd).max(opts.gain_min_fraction * ctx.full_mass_kg);
         if gain > limit {
@@ -109,7 +122,7 @@ pub(crate) fn findings(ctx: &Ctx<'_>, intervals: &[Interval], model: &UseModel) 
         i += 1;
     }
     out.sort_by(|a, b| a.from_ms.cmp(&b.from_ms).then(a.kind.cmp(&b.kind)));
-    out
+    (out, jumps)
 }
 
 pub(crate) fn forecast(

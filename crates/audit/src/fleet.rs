@@ -1,12 +1,14 @@
-//! Fleet statistics: gauge drift per tank, vehicle bias across the fleet.
+//! Fleet statistics: gauge faults (a drift or a step) per tank, vehicle bias across the fleet.
 
 use std::collections::BTreeMap;
 
 use serde::Serialize;
 
 use crate::balance::set_verdict;
-use crate::records::{Balance, Finding, Forecast, TankAudit};
-use crate::stats::{holm_adjust, median, t_critical, t_two_sided_p, weighted_line};
+use crate::effects::{Row, groups, two_way};
+use crate::gauge_faults::{self, FaultTest, Point};
+use crate::records::{Balance, Finding, Forecast, GaugeStep, TankAudit};
+use crate::stats::{holm_adjust, t_critical, t_two_sided_p};
 use crate::{AuditOptions, Verdict};
 
 const YEAR_MS: f64 = 365.0 * 86_400_000.0;
@@ -19,6 +21,8 @@ pub enum GaugeStatus {
     Ok,
     /// A significant trend beyond the smallest reported drift.
     Drift,
+    /// A significant step (a bad recalibration) beyond the smallest reported step.
+    Step,
     /// Too few fills, or too short a period, to test.
     NotEnoughData,
 }
@@ -48,7 +52,12 @@ pub struct GaugeFinding {
     pub drift_percent_per_year: Option<f64>,
     /// Its standard error, % per year.
     pub drift_se_percent_per_year: Option<f64>,
-    /// Two-sided p-value of the weighted least-squares slope t-test.
+    /// The best step of the ratios, after − before, % (≈ of span).
+    pub step_percent: Option<f64>,
+    /// When that step happened, ms (dated from the readings where they show it).
+    pub step_ms: Option<i64>,
+    /// The tank's p-value: the smaller of the slope's and the step's (Bonferroni over the splits),
+    /// doubled for the two models.
     pub p_value: Option<f64>,
     /// The p-value after Holm's correction across the tanks tested.
     pub p_adjusted: Option<f64>,
@@ -128,62 +137,20 @@ pub struct FleetAudit {
     pub tanks: Vec<TankSummary>,
 }
 
-const DRIFT_TEST: &str = "weighted least-squares slope t-test of (gained+drawn)/billed on time, vehicle effects removed; Holm across tanks";
-const VEHICLE_TEST: &str = "one-sample t-test of tank-adjusted ratios (tank levels by Tukey's median polish, leaving the vehicle out); Holm across vehicles";
+const GAUGE_TEST: &str = "(gained+drawn)/billed over time, vehicle effects removed: weighted least-squares slope t-test (drift) and best split of two means with a Bonferroni-adjusted t-test (step), the better-fitting model named; Holm across tanks";
+const VEHICLE_TEST: &str = "one-sample t-test of the ratios less their tank's level (tank levels and vehicle effects fitted jointly by Huber-weighted least squares); Holm across vehicles";
 
 fn usable(b: &Balance) -> bool {
     b.ratio.is_finite() && b.before.is_some() && b.after.is_some() && b.billed_kg > 0.0
-}
-
-/// Tukey's median polish of ratio = tank level + vehicle effect (Tukey, Exploratory Data Analysis,
-/// 1977). Returns the vehicle effects, centred on their median.
-fn median_polish(
-    rows: &[(usize, usize, f64)],
-    tanks: usize,
-    vehicles: usize,
-) -> (Vec<f64>, Vec<f64>) {
-    let by_tank = groups(rows.iter().map(|r| r.0), tanks);
-    let by_vehicle = groups(rows.iter().map(|r| r.1), vehicles);
-    let mut a = vec![0.0; tanks];
-    let mut b = vec![0.0; vehicles];
-    let mut buf: Vec<f64> = Vec::new();
-    for _ in 0..10 {
-        for (at, idx) in a.iter_mut().zip(&by_tank) {
-            buf.clear();
-            buf.extend(idx.iter().map(|&k| rows[k].2 - b[rows[k].1]));
-            *at = median(&buf).unwrap_or(1.0);
-        }
-        for (bw, idx) in b.iter_mut().zip(&by_vehicle) {
-            buf.clear();
-            buf.extend(idx.iter().map(|&k| rows[k].2 - a[rows[k].0]));
-            *bw = median(&buf).unwrap_or(0.0);
-        }
-        let centre = median(&b).unwrap_or(0.0);
-        for x in &mut b {
-            *x -= centre;
-        }
-        for x in &mut a {
-            *x += centre;
-        }
-    }
-    (a, b)
-}
-
-/// Row indexes grouped by a key in 0..n.
-fn groups(keys: impl Iterator<Item = usize>, n: usize) -> Vec<Vec<usize>> {
-    let mut out: Vec<Vec<usize>> = vec![Vec::new(); n];
-    for (k, key) in keys.enumerate() {
-        if let Some(v) = out.get_mut(key) {
-            v.push(k);
-        }
-    }
-    out
 }
 
 /// Fleet statistics over every tank's audit.
 pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
     let mut tanks = tanks;
     tanks.sort_by(|a, b| a.tank.cmp(&b.tank));
+    if opts.type_a {
+        crate::precision::refine(&mut tanks, opts);
+    }
     let tank_names: Vec<String> = tanks.iter().map(|t| t.tank.clone()).collect();
     let mut vehicle_names: Vec<(String, String)> = tanks
         .iter()
@@ -215,76 +182,86 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
                 })
         })
         .collect();
-    let plain: Vec<(usize, usize, f64)> = rows.iter().map(|r| (r.0, r.1, r.2)).collect();
-    let (_, veff) = median_polish(&plain, tanks.len(), vehicle_names.len());
+    let plain: Vec<Row> = rows.iter().map(|r| (r.0, r.1, r.2)).collect();
+    let veff = two_way(&plain, tanks.len(), vehicle_names.len()).vehicle;
 
-    // gauge drift per tank
+    // gauge faults per tank
     let mut gauges: Vec<GaugeFinding> = Vec::new();
     let mut raw_p: Vec<(usize, f64)> = Vec::new();
+    let mut tests: Vec<Option<FaultTest>> = Vec::new();
     let rows_of_tank = groups(rows.iter().map(|r| r.0), tanks.len());
     for (ti, t) in tanks.iter().enumerate() {
-        let pts: Vec<(f64, f64, f64)> = rows_of_tank[ti]
+        let mut pts: Vec<Point> = rows_of_tank[ti]
             .iter()
             .map(|&k| &rows[k])
-            .map(|r| {
-                let w = 1.0 / r.3.max(1e-4).powi(2);
-                (r.4 as f64 / YEAR_MS, r.2 - veff[r.1], w)
-            })
+            .map(|r| (r.4, r.2 - veff[r.1], 1.0 / r.3.max(1e-4).powi(2)))
             .collect();
-        let span_years = pts.iter().map(|p| p.0).fold(f64::NEG_INFINITY, f64::max)
-            - pts.iter().map(|p| p.0).fold(f64::INFINITY, f64::min);
+        pts.sort_by_key(|p| p.0);
+        let span_years = match (pts.first(), pts.last()) {
+            (Some(a), Some(b)) => (b.0 - a.0) as f64 / YEAR_MS,
+            _ => 0.0,
+        };
         let mut g = GaugeFinding {
             tank: t.tank.clone(),
             status: GaugeStatus::NotEnoughData,
             fills: pts.len(),
             drift_percent_per_year: None,
             drift_se_percent_per_year: None,
+            step_percent: None,
+            step_ms: None,
             p_value: None,
             p_adjusted: None,
-            test: DRIFT_TEST,
+            test: GAUGE_TEST,
             ner_setting_percent_per_day: t.ner_setting_percent_per_day,
             ner_fitted_percent_per_day: t.ner_fitted_percent_per_day,
         };
-        if pts.len() >= opts.drift_min_fills.max(3)
-            && span_years > 60.0 / 365.0
-            && let Some(fit) = weighted_line(&pts)
-        {
-            let tstat = if fit.slope_se > 0.0 {
-                fit.slope / fit.slope_se
-            } else {
-                f64::INFINITY * fit.slope.signum()
-            };
-            let p = t_two_sided_p(tstat, fit.n as f64 - 2.0);
-            g.drift_percent_per_year = Some(100.0 * fit.slope);
-            g.drift_se_percent_per_year = Some(100.0 * fit.slope_se);
-            g.p_value = Some(p);
-            g.status = GaugeStatus::Ok;
-            raw_p.push((gauges.len(), p));
+        let mut found = None;
+        if pts.len() >= opts.drift_min_fills.max(3) && span_years > 60.0 / 365.0 {
+            let ft = gauge_faults::test(&pts, &t.jumps);
+            g.drift_percent_per_year = ft.drift.map(|d| 100.0 * d.0);
+            g.drift_se_percent_per_year = ft.drift.map(|d| 100.0 * d.1);
+            g.step_percent = ft.step.map(|s| 100.0 * s.0);
+            g.step_ms = ft.step.map(|s| s.1);
+            g.p_value = ft.p;
+            if let Some(p) = ft.p {
+                g.status = GaugeStatus::Ok;
+                raw_p.push((gauges.len(), p));
+            }
+            found = Some(ft);
         }
+        tests.push(found);
         gauges.push(g);
     }
     let adjusted = holm_adjust(&raw_p.iter().map(|x| x.1).collect::<Vec<_>>());
     for ((gi, _), pa) in raw_p.iter().zip(adjusted) {
         let g = &mut gauges[*gi];
         g.p_adjusted = Some(pa);
-        if pa < opts.drift_alpha
-            && g.drift_percent_per_year
-                .is_some_and(|d| d.abs() >= 100.0 * opts.drift_min_per_year)
-        {
-            g.status = GaugeStatus::Drift;
+        let Some(ft) = tests.get(*gi).copied().flatten() else {
+            continue;
+        };
+        if pa >= opts.drift_alpha {
+            continue;
         }
+        let step_big = ft.step.is_some_and(|s| s.0.abs() >= opts.step_min_fraction);
+        let drift_big = ft
+            .drift
+            .is_some_and(|d| d.0.abs() >= opts.drift_min_per_year);
+        g.status = match (ft.step_fits_better, step_big, drift_big) {
+            (true, true, _) | (false, true, false) => GaugeStatus::Step,
+            (_, _, true) => GaugeStatus::Drift,
+            _ => GaugeStatus::Ok,
+        };
     }
-    let drifting: Vec<bool> = gauges
+    let faulty: Vec<bool> = gauges
         .iter()
-        .map(|g| g.status == GaugeStatus::Drift)
+        .map(|g| matches!(g.status, GaugeStatus::Drift | GaugeStatus::Step))
         .collect();
 
-    // vehicle bias, drifting gauges left out
-    let kept: Vec<(usize, usize, f64)> = plain.iter().copied().filter(|r| !drifting[r.0]).collect();
-    let (_, veff2) = median_polish(&kept, tanks.len(), vehicle_names.len());
+    // vehicle bias, tanks with a gauge fault left out
+    let kept: Vec<Row> = plain.iter().copied().filter(|r| !faulty[r.0]).collect();
+    let levels = two_way(&kept, tanks.len(), vehicle_names.len()).tank;
     let mut vehicles: Vec<VehicleFinding> = Vec::new();
     let mut vp: Vec<(usize, f64)> = Vec::new();
-    let kept_of_tank = groups(kept.iter().map(|r| r.0), tanks.len());
     let kept_of_vehicle = groups(kept.iter().map(|r| r.1), vehicle_names.len());
     let mut verdict_counts: Vec<BTreeMap<Verdict, usize>> =
         vec![BTreeMap::new(); vehicle_names.len()];
@@ -294,19 +271,11 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
         }
     }
     for (vi, (name, carrier)) in vehicle_names.iter().enumerate() {
-        let mut d: Vec<f64> = Vec::new();
-        for r in kept_of_vehicle[vi].iter().map(|&k| &kept[k]) {
-            // the tank's level from the other vehicles' fills, their effects removed
-            let others: Vec<f64> = kept_of_tank[r.0]
-                .iter()
-                .map(|&k| &kept[k])
-                .filter(|o| o.1 != vi)
-                .map(|o| o.2 - veff2[o.1])
-                .collect();
-            if let Some(level) = median(&others) {
-                d.push(r.2 - level);
-            }
-        }
+        // each fill against its tank's level (levels and effects fitted jointly and robustly)
+        let d: Vec<f64> = kept_of_vehicle[vi]
+            .iter()
+            .map(|&k| kept[k].2 - levels[kept[k].0])
+            .collect();
         let verdicts = std::mem::take(&mut verdict_counts[vi]);
         let mut f = VehicleFinding {
             vehicle: name.clone(),
@@ -361,13 +330,25 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
     let mut findings = Vec::new();
     let mut summaries = Vec::new();
     for (ti, t) in tanks.into_iter().enumerate() {
-        let drift = gauges
-            .get(ti)
+        let g = gauges.get(ti);
+        let drift = g
             .filter(|g| g.status == GaugeStatus::Drift)
             .and_then(|g| g.drift_percent_per_year);
+        let step = g
+            .filter(|g| g.status == GaugeStatus::Step)
+            .and_then(|g| Some((g.step_ms?, g.step_percent?)));
         for mut b in t.balances {
             if drift.is_some() {
                 b.gauge_drift_percent_per_year = drift;
+                set_verdict(&mut b, opts);
+            }
+            if let Some((at_ms, size_percent)) = step
+                && b.end_ms > at_ms
+            {
+                b.gauge_step = Some(GaugeStep {
+                    at_ms,
+                    size_percent,
+                });
                 set_verdict(&mut b, opts);
             }
             fills.push(b);

@@ -70,7 +70,10 @@
 
 mod balance;
 mod between_fills;
+mod effects;
 mod fleet;
+mod gauge_faults;
+mod precision;
 mod props;
 mod records;
 pub mod stats;
@@ -84,7 +87,8 @@ pub use fleet::{
     FleetAudit, GaugeFinding, GaugeStatus, TankSummary, VehicleFinding, VehicleStatus, audit_fleet,
 };
 pub use records::{
-    Balance, BracketReading, Finding, FindingKind, Forecast, GaugeStep, ReadingState, TankAudit,
+    Balance, BracketReading, Finding, FindingKind, Forecast, GaugeStep, Jump, ReadingState,
+    TankAudit,
 };
 pub use tank_audit::audit_tank;
 pub use thermal::{default_ner_percent_per_day, default_supply_pressure_pa, mix_liquids};
@@ -202,6 +206,9 @@ pub struct AuditOptions {
     pub inconclusive_fraction: f64,
     /// Default meter repeatability, standard uncertainty, % of delivered (0.5).
     pub meter_repeatability_percent: f64,
+    /// Refine each vehicle's meter noise and each tank's reading noise from the scatter of the
+    /// fleet's balances, the settings as priors (a Type A evaluation; true).
+    pub type_a: bool,
     /// Tank pressure standard uncertainty, Pa (5 kPa).
     pub pressure_u_pa: f64,
     /// Uncertainty of the tracked liquid saturation pressure: this fraction of (tank pressure −
@@ -216,9 +223,12 @@ pub struct AuditOptions {
     pub drift_min_per_year: f64,
     /// Fewest fills for a drift test (6).
     pub drift_min_fills: usize,
+    /// Smallest gauge step reported, fraction of the fills' ratio (0.01).
+    pub step_min_fraction: f64,
     /// Significance level of the vehicle test after Holm's correction across vehicles (0.01).
     pub vehicle_alpha: f64,
-    /// Smallest vehicle bias reported, fraction (0.005).
+    /// Smallest vehicle bias reported, fraction (0.01: tank levels estimated from the other vehicles'
+    /// fills leave about half a percent of confounding between vehicles that share tanks).
     pub vehicle_min_bias: f64,
     /// Fewest fills for a vehicle test (5).
     pub vehicle_min_fills: usize,
@@ -266,14 +276,16 @@ impl Default for AuditOptions {
             materiality_fraction: 0.01,
             inconclusive_fraction: 0.05,
             meter_repeatability_percent: 0.5,
+            type_a: true,
             pressure_u_pa: 5e3,
             liquid_state_u_fraction: 0.05,
             liquid_state_u_pa: 5e3,
             drift_alpha: 0.01,
             drift_min_per_year: 0.02,
             drift_min_fills: 6,
+            step_min_fraction: 0.01,
             vehicle_alpha: 0.01,
-            vehicle_min_bias: 0.005,
+            vehicle_min_bias: 0.01,
             vehicle_min_fills: 5,
             legal_tolerance: 0.015,
             gain_sigmas: 6.0,

@@ -96,6 +96,11 @@ pub struct Balance {
     pub after_hours: Option<f64>,
     /// Billed on other tickets between the same two readings (taken as delivered), kg.
     pub other_fills_kg: f64,
+    /// Their meters' part of the uncertainty, kg.
+    pub sigma_other_tickets_kg: f64,
+    /// The delivering meter's repeatability the balance is judged with, % (the vehicle's setting or
+    /// the default, refined by the fleet's own balances).
+    pub meter_percent: f64,
     /// The use model's share of the balance's variance, %.
     pub usage_share_percent: Option<f64>,
     /// The tank's gauge drift, % of span per year, when its gauge was found drifting.
@@ -113,6 +118,18 @@ pub struct GaugeStep {
     pub at_ms: i64,
     /// Its size, % of the fills' ratio (≈ of span for a span step).
     pub size_percent: f64,
+}
+
+/// An interval whose loss departs from the use model by three standard uncertainties or more: where a
+/// gauge step shows in the readings.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct Jump {
+    /// Start, ms.
+    pub from_ms: i64,
+    /// End, ms.
+    pub to_ms: i64,
+    /// (lost − expected) / its standard uncertainty: positive when the tank seemed to lose.
+    pub z: f64,
 }
 
 /// What a finding between fills is.
@@ -192,4 +209,7 @@ pub struct TankAudit {
     pub readings: Vec<ReadingState>,
     /// The state behind the latest reading the engine accepted.
     pub latest: Option<ReadingState>,
+    /// Intervals departing from the use model by 3 standard uncertainties or more (to date steps).
+    #[serde(skip)]
+    pub jumps: Vec<Jump>,
 }

@@ -9,7 +9,7 @@ use crate::props::AuditFluid;
 use crate::records::*;
 use crate::stats::median;
 use crate::thermal::*;
-use crate::use_model::{Observed, UseModel, Window};
+use crate::use_model::{Observed, UseModel};
 use crate::{AuditError, AuditOptions, ReadingInput, TankInput};
 
 pub(crate) const DAY_S: f64 = 86_400.0;
@@ -129,7 +129,7 @@ pub fn audit_tank(input: &TankInput, opts: &AuditOptions) -> Result<TankAudit, A
             }
         }
         // use per fill from the first pass (the NER barely moves it)
-        let model = use_model(&ctx, &intervals(&ctx, &evals), Window::Centred);
+        let model = use_model(&ctx, &intervals(&ctx, &evals));
         let drawn: Vec<f64> = ctx
             .deliveries
             .iter()
@@ -200,8 +200,7 @@ pub fn audit_tank(input: &TankInput, opts: &AuditOptions) -> Result<TankAudit, A
         }
     }
     let intervals = intervals(&ctx, &evals);
-    let model = use_model(&ctx, &intervals, Window::Centred);
-    let past = use_model(&ctx, &intervals, Window::Trailing);
+    let model = use_model(&ctx, &intervals);
     let balances: Vec<Balance> = ctx
         .deliveries
         .iter()
@@ -210,8 +209,7 @@ pub fn audit_tank(input: &TankInput, opts: &AuditOptions) -> Result<TankAudit, A
         .collect();
     let mut balances = balances;
     balances.sort_by(|a, b| a.start_ms.cmp(&b.start_ms).then(a.ticket.cmp(&b.ticket)));
-    let _ = &past;
-    let findings = findings(&ctx, &intervals, &model);
+    let (findings, jumps) = findings(&ctx, &intervals, &model);
     let forecast = forecast(&ctx, &evals, &model);
     let readings_used = evals.iter().filter(|e| e.is_some()).count();
     let state = |(r, e): (&ReadingInput, &Option<Eval>)| {
@@ -242,6 +240,7 @@ pub fn audit_tank(input: &TankInput, opts: &AuditOptions) -> Result<TankAudit, A
         forecast,
         readings: kept,
         latest,
+        jumps,
     })
 }
 
@@ -275,7 +274,7 @@ pub(crate) fn intervals(ctx: &Ctx<'_>, evals: &[Option<Eval>]) -> Vec<Interval> 
 }
 
 /// The tank's use model from the intervals no logged fill touches.
-pub(crate) fn use_model(ctx: &Ctx<'_>, intervals: &[Interval], window: Window) -> UseModel {
+pub(crate) fn use_model(ctx: &Ctx<'_>, intervals: &[Interval]) -> UseModel {
     let observed: Vec<Observed> = intervals
         .iter()
         .filter(|iv| iv.clean)
@@ -285,5 +284,5 @@ pub(crate) fn use_model(ctx: &Ctx<'_>, intervals: &[Interval], window: Window) -
             lost_kg: iv.from_kg - iv.to_kg,
         })
         .collect();
-    UseModel::fit(&observed, ctx.full_mass_kg, window)
+    UseModel::fit(&observed, ctx.full_mass_kg)
 }

@@ -34,8 +34,6 @@ const DAY_MS: i64 = 24 * HOUR_MS;
 const ANCHOR_STEP_MS: i64 = 14 * DAY_MS;
 /// A profile uses the intervals within this distance of its anchor (all of them when too few).
 const WINDOW_MS: i64 = 45 * DAY_MS;
-/// A trailing profile uses the intervals of this many days before its anchor.
-const TRAILING_MS: i64 = 60 * DAY_MS;
 /// Intervals longer than this say little about the weekly pattern and are left out of the fit.
 const LONGEST_INTERVAL_MS: i64 = 15 * DAY_MS;
 /// Huber's tuning constant for the robust reweighting.
@@ -124,16 +122,6 @@ impl UseFit {
     }
 }
 
-/// Which intervals a profile at an anchor is fitted to.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub(crate) enum Window {
-    /// Those within 45 days either side: the best estimate of use at the anchor (balances).
-    Centred,
-    /// Those of the 60 days before it: what use was expected from the past, so that a change (a
-    /// leak) stands out at its start instead of being averaged in (findings between fills).
-    Trailing,
-}
-
 /// The tank's profiles over time.
 #[derive(Debug, Clone, Default)]
 pub(crate) struct UseModel {
@@ -143,7 +131,7 @@ pub(crate) struct UseModel {
 impl UseModel {
     /// Fit profiles from the stretches no logged fill touches. `scale_kg` sets the floors of the
     /// variances (a full tank's mass).
-    pub(crate) fn fit(observed: &[Observed], scale_kg: f64, window: Window) -> UseModel {
+    pub(crate) fn fit(observed: &[Observed], scale_kg: f64) -> UseModel {
         let usable: Vec<Observed> = observed
             .iter()
             .copied()
@@ -158,26 +146,9 @@ impl UseModel {
             let near: Vec<Observed> = usable
                 .iter()
                 .copied()
-                .filter(|o| match window {
-                    Window::Centred => o.to_ms >= t - WINDOW_MS && o.from_ms <= t + WINDOW_MS,
-                    Window::Trailing => o.to_ms <= t && o.from_ms >= t - TRAILING_MS,
-                })
+                .filter(|o| o.to_ms >= t - WINDOW_MS && o.from_ms <= t + WINDOW_MS)
                 .collect();
-            let centred: Vec<Observed>;
-            let data = if near.len() >= 8 {
-                &near
-            } else {
-                centred = usable
-                    .iter()
-                    .copied()
-                    .filter(|o| o.to_ms >= t - WINDOW_MS && o.from_ms <= t + WINDOW_MS)
-                    .collect();
-                if centred.len() >= 8 {
-                    &centred
-                } else {
-                    &usable
-                }
-            };
+            let data = if near.len() >= 8 { &near } else { &usable };
             if let Some(f) = fit_one(data, scale_kg) {
                 anchors.push((t, f));
             }
@@ -399,7 +370,7 @@ mod tests {
                 }
             })
             .collect();
-        let model = UseModel::fit(&observed, 20_000.0, Window::Centred);
+        let model = UseModel::fit(&observed, 20_000.0);
         let sat = monday + 5 * DAY_MS;
         let (weekend, sd) = model.predict(sat, sat + 2 * DAY_MS).unwrap();
         assert!(

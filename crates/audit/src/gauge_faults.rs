@@ -1,0 +1,174 @@
+//! A gauge's fault from the fills' ratios over time, vehicle effects removed: a linear drift of its
+//! span or a step (a bad recalibration), whichever fits better.
+//!
+//! - Drift: the weighted least-squares slope of the ratios on time and its t-test.
+//! - Step: the fills split into a before and an after group where the readings jumped away from the
+//!   use model (a step shows there at once), else at every possible split; the difference of the two
+//!   means and its t-test, Bonferroni-adjusted over the candidate splits (a conservative bound for the
+//!   maximum of the split statistics; Worsley, "On the likelihood ratio test for a shift in location
+//!   of normal populations", JASA 74, 1979).
+//! - The tank's p-value is the smaller of the two, doubled (Bonferroni over the two models); the
+//!   fault named is the model Schwarz's criterion prefers (Schwarz, "Estimating the dimension of a
+//!   model", Ann. Statist. 6, 1978; the step's position counts as a parameter).
+//!
+//! A step is dated from the readings: the fills only say between which two fills it happened, the
+//! interval whose loss departs most from the use model in that stretch (with the step's sign) says
+//! when.
+
+use crate::records::Jump;
+use crate::stats::{t_two_sided_p, weighted_line};
+
+const YEAR_MS: f64 = 365.0 * 86_400_000.0;
+/// Fewest fills on each side of a step.
+const STEP_SIDE: usize = 2;
+/// A jump of the readings this many standard uncertainties from the use model places a step.
+const JUMP_Z: f64 = 4.0;
+
+/// One fill's point: (time ms, ratio with vehicle effect removed, weight).
+pub(crate) type Point = (i64, f64, f64);
+
+/// What the tests found for one tank.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub(crate) struct FaultTest {
+    /// Slope, per year, and its standard error.
+    pub(crate) drift: Option<(f64, f64)>,
+    /// p-value of the slope.
+    pub(crate) p_drift: Option<f64>,
+    /// The step: size (after − before), its time (ms), p-value (Bonferroni over splits).
+    pub(crate) step: Option<(f64, i64, f64)>,
+    /// The tank's p-value: twice the smaller of the two.
+    pub(crate) p: Option<f64>,
+    /// True when the step fits better than the line.
+    pub(crate) step_fits_better: bool,
+}
+
+fn weighted_mean(pts: &[Point]) -> (f64, f64) {
+    let (s, w) = pts
+        .iter()
+        .fold((0.0, 0.0), |(s, w), p| (s + p.2 * p.1, w + p.2));
+    (if w > 0.0 { s / w } else { 0.0 }, w)
+}
+
+fn rss(pts: &[Point], mean: f64) -> f64 {
+    pts.iter().map(|p| p.2 * (p.1 - mean).powi(2)).sum()
+}
+
+/// Test one tank's points (sorted by time).
+pub(crate) fn test(pts: &[Point], jumps: &[Jump]) -> FaultTest {
+    let mut out = FaultTest {
+        drift: None,
+        p_drift: None,
+        step: None,
+        p: None,
+        step_fits_better: false,
+    };
+    let n = pts.len();
+    let line_pts: Vec<(f64, f64, f64)> = pts
+        .iter()
+        .map(|p| (p.0 as f64 / YEAR_MS, p.1, p.2))
+        .collect();
+    let mut rss_line = f64::INFINITY;
+    if let Some(fit) = weighted_line(&line_pts) {
+        let t = if fit.slope_se > 0.0 {
+            fit.slope / fit.slope_se
+        } else {
+            f64::INFINITY * fit.slope.signum()
+        };
+        out.drift = Some((fit.slope, fit.slope_se));
+        out.p_drift = Some(t_two_sided_p(t, fit.n as f64 - 2.0));
+        rss_line = line_pts
+            .iter()
+            .map(|p| p.2 * (p.1 - fit.intercept - fit.slope * p.0).powi(2))
+            .sum();
+    }
+    if n >= 2 * STEP_SIDE {
+        // candidate splits: where the readings jumped (a step shows there at once), else every split
+        let mut candidates: Vec<usize> = jumps
+            .iter()
+            .filter(|j| j.z.abs() >= JUMP_Z)
+            .filter_map(|j| {
+                let k = pts.partition_point(|p| p.0 < j.to_ms);
+                (STEP_SIDE..=n - STEP_SIDE).contains(&k).then_some(k)
+            })
+            .collect();
+        candidates.sort_unstable();
+        candidates.dedup();
+        let guided = !candidates.is_empty();
+        if !guided {
+            candidates = (STEP_SIDE..=n - STEP_SIDE).collect();
+        }
+        let mut best: Option<(usize, f64, f64)> = None; // split, rss, p
+        for &k in &candidates {
+            let (m1, w1) = weighted_mean(&pts[..k]);
+            let (m2, w2) = weighted_mean(&pts[k..]);
+            let r = rss(&pts[..k], m1) + rss(&pts[k..], m2);
+            let s2 = r / (n as f64 - 2.0);
+            let se = (s2 * (1.0 / w1 + 1.0 / w2)).sqrt();
+            let t = if se > 0.0 { (m2 - m1) / se } else { 0.0 };
+            let p = (candidates.len() as f64 * t_two_sided_p(t, n as f64 - 2.0)).min(1.0);
+            if best.is_none_or(|(_, _, bp)| p < bp) {
+                best = Some((k, r, p));
+            }
+        }
+        if let Some((k, r, p)) = best {
+            let (m1, _) = weighted_mean(&pts[..k]);
+            let (m2, _) = weighted_mean(&pts[k..]);
+            let size = m2 - m1;
+            out.step = Some((size, date(pts[k - 1].0, pts[k].0, size, jumps), p));
+            // Schwarz's criterion: the step has one parameter more than the line (where it falls),
+            // unless the readings placed it
+            let nf = n as f64;
+            let bic = |rss: f64, k: f64| nf * (rss.max(1e-300) / nf).ln() + k * nf.ln();
+            let k_step = if guided { 2.0 } else { 3.0 };
+            out.step_fits_better = bic(r, k_step) < bic(rss_line, 2.0);
+        }
+    }
+    let best_p = match (out.p_drift, out.step) {
+        (Some(a), Some((_, _, b))) => Some(a.min(b)),
+        (Some(a), None) => Some(a),
+        (None, Some((_, _, b))) => Some(b),
+        (None, None) => None,
+    };
+    out.p = best_p.map(|p| (2.0 * p).min(1.0));
+    out
+}
+
+/// When a step of `size` happened between fills at `from` and `to`: the end of the interval in that
+/// stretch whose loss departs most from the use model with the step's sign (a span reading low makes
+/// the tank seem to lose), else the middle of the stretch.
+fn date(from: i64, to: i64, size: f64, jumps: &[Jump]) -> i64 {
+    jumps
+        .iter()
+        .filter(|j| j.from_ms >= from && j.to_ms <= to && j.z * size < 0.0)
+        .max_by(|a, b| a.z.abs().total_cmp(&b.z.abs()))
+        .map_or(from + (to - from) / 2, |j| j.to_ms)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Twelve monthly fills at ratio 1.00, then 1.00 − 3 % from the seventh (exact): the step fits
+    /// better than a line, its size is −3 % to 1e-12, and with a jump of the right sign between the
+    /// sixth and seventh fill it is dated at that jump's end (constructed example).
+    #[test]
+    fn a_step_is_told_from_a_drift_and_dated() {
+        let month = 30 * 86_400_000_i64;
+        let pts: Vec<Point> = (0..12)
+            .map(|i| {
+                let jitter = if i % 2 == 0 { 1e-4 } else { -1e-4 };
+                (i * month, if i < 6 { 1.0 } else { 0.97 } + jitter, 1.0)
+            })
+            .collect();
+        let jump = Jump {
+            from_ms: 5 * month + 86_400_000,
+            to_ms: 5 * month + 2 * 86_400_000,
+            z: 6.0,
+        };
+        let t = test(&pts, &[jump]);
+        let (size, at, p) = t.step.unwrap();
+        assert!((size + 0.03).abs() < 1e-12, "{size}");
+        assert_eq!(at, jump.to_ms);
+        assert!(p < 1e-6 && t.step_fits_better);
+    }
+}
