@@ -4,7 +4,7 @@ use crate::balance::fmt_kg;
 use crate::records::*;
 use crate::tank_audit::*;
 use crate::thermal::*;
-use crate::use_model::UseModel;
+use crate::use_model::{Observed, UseModel};
 
 /// Findings between fills, each interval judged against the tank's weekly use model:
 /// - a gain no ticket explains: an interval whose mass rose beyond the model's use by more than
@@ -21,8 +21,8 @@ pub(crate) fn findings(
     let opts = ctx.opts;
     let mut out = Vec::new();
     let mut jumps = Vec::new();
-    // (from, to, excess loss kg, standardized excess)
-    let mut judged: Vec<(i64, i64, f64, f64, f64)> = Vec::new();
+    // (from, to, excess loss kg, standardized excess, use kg/day, loss kg)
+    let mut judged: Vec<(i64, i64, f64, f64, f64, f64)> = Vec::new();
     for iv in intervals.iter().filter(|iv| iv.clean) {
         let Some(fit) = model.at(iv.from_ms + (iv.to_ms - iv.from_ms) / 2) else {
             continue;
@@ -59,13 +59,7 @@ pub(crate) fn findings(
             });
             continue;
         }
-        judged.push((
-            iv.from_ms,
-            iv.to_ms,
-            lost - expected,
-            (lost - expected) / sd,
-            usage,
-        ));
+        judged.push((iv.from_ms, iv.to_ms, lost - expected, z, usage, lost));
     }
     // one-sided CUSUM of the standardized excess losses
     let mut s = 0.0;
@@ -89,8 +83,25 @@ pub(crate) fn findings(
                 last += 1;
             }
             let part = &judged[first..=last];
-            let excess: f64 = part.iter().map(|p| p.2).sum();
             let (from, to) = (part[0].0, part[part.len() - 1].1);
+            // the use the run's own losses pulled into the model: expected again without them
+            let without: Vec<Observed> = intervals
+                .iter()
+                .filter(|iv| iv.clean && (iv.to_ms <= from || iv.from_ms >= to))
+                .map(|iv| Observed {
+                    from_ms: iv.from_ms,
+                    to_ms: iv.to_ms,
+                    lost_kg: iv.from_kg - iv.to_kg,
+                })
+                .collect();
+            let refit = UseModel::fit(&without, ctx.full_mass_kg);
+            let excess: f64 = part
+                .iter()
+                .map(|p| match refit.predict(p.0, p.1) {
+                    Some((expected, _)) => p.5 - expected,
+                    None => p.2,
+                })
+                .sum();
             let days = (to - from) as f64 / (DAY_S * 1000.0);
             let usage = part.iter().map(|p| p.4).sum::<f64>() / part.len() as f64;
             let rate = excess / days.max(1e-9);
