@@ -35,3 +35,8 @@ mod one_path;
 /// outside any real tank refused with the plausible range.
 #[path = "e2e/edges.rs"]
 mod edges;
+
+/// Paths nobody tested before: spreadsheet CSV, empty and header-only files, gas-volume tickets,
+/// `contents --tank`, thread counts, two writers, corrupt and newer databases.
+#[path = "e2e/paths.rs"]
+mod paths;

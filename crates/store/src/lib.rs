@@ -83,6 +83,16 @@ pub enum StoreError {
         /// The cause.
         source: std::io::Error,
     },
+    /// The database was written by a newer cryoledger.
+    #[error(
+        "the database has schema version {found}, newer than this cryoledger knows ({known}): open it with the version that wrote it"
+    )]
+    NewerSchema {
+        /// Its schema version.
+        found: i64,
+        /// The newest this build knows.
+        known: i64,
+    },
     /// Stored data could not be read back.
     #[error("{what} cannot be read: {reason}")]
     Corrupt {

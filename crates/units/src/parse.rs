@@ -19,6 +19,14 @@ pub enum UnitError {
         /// The offending text.
         text: String,
     },
+    /// A comma inside the number (a decimal comma or a thousands separator).
+    #[error(
+        "'{text}' has a comma in its number: write a decimal point and no thousands separators (1.5, 1200)"
+    )]
+    Comma {
+        /// The offending text.
+        text: String,
+    },
     /// The number is infinite or NaN.
     #[error("'{text}' is not a finite number")]
     NotFinite {
@@ -121,6 +129,16 @@ fn key(unit: &str) -> Key {
         if c.is_whitespace() || c == '°' || c == '(' || c == ')' {
             continue;
         }
+        // subscript and superscript digits read as digits: inH₂O is inH2O, Nm³ is Nm3
+        let c = match c {
+            '₀'..='₉' => {
+                char::from_u32(u32::from(c) - u32::from('₀') + u32::from('0')).unwrap_or(c)
+            }
+            '²' => '2',
+            '³' => '3',
+            '¹' => '1',
+            _ => c,
+        };
         for l in c.to_lowercase() {
             let bytes = l.encode_utf8(&mut tmp).as_bytes();
             match k.buf.get_mut(k.len..k.len + bytes.len()) {
@@ -317,6 +335,10 @@ fn split_number<'a>(text: &'a str, expected: &'static str) -> Result<(f64, &'a s
         }
     }
     let (num, rest) = t.split_at(i);
+    // a comma after the digits is a decimal comma or a thousands separator: refused, never guessed
+    if rest.starts_with(',') && rest[1..].starts_with(|c: char| c.is_ascii_digit()) {
+        return Err(UnitError::Comma { text: t.to_owned() });
+    }
     let value: f64 = num
         .parse()
         .map_err(|_| UnitError::BadNumber { text: t.to_owned() })?;

@@ -55,6 +55,11 @@ impl Store {
         conn.pragma_update(None, "foreign_keys", "ON")?;
         conn.pragma_update(None, "cache_size", -131_072)?; // up to 128 MiB page cache: large imports spill less
         conn.busy_timeout(std::time::Duration::from_secs(5))?;
+        let found: i64 = conn.pragma_query_value(None, "user_version", |r| r.get(0))?;
+        let known = MIGRATION_FILES.len() as i64;
+        if found > known {
+            return Err(StoreError::NewerSchema { found, known });
+        }
         migrations().to_latest(&mut conn)?;
         Ok(Self { conn })
     }
