@@ -18,7 +18,7 @@ import time
 from datetime import datetime
 
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
-INCH_WATER_PA = 249.08891  # conventional inch of water (physics.md)
+INCH_WATER_PA = 249.08891  # conventional inch of water (NIST SP 811)
 BAR_PA = 1e5
 
 

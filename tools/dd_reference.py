@@ -273,19 +273,41 @@ def tables():
     return "\n".join(out)
 
 
+def blocks(text):
+    """The rows of each `const NAME: ... = &[` ... `];` table in `text`, by name (lines stripped)."""
+    out, name = {}, None
+    for line in text.splitlines():
+        t = line.strip()
+        if t.startswith("const ") and t.endswith("= &["):
+            name = t.split()[1].rstrip(":")
+            out[name] = []
+        elif name is not None and t == "];":
+            name = None
+        elif name is not None and t and not t.startswith("//"):
+            out[name].append(t)
+    return out
+
+
 def check(path):
-    """Exit 1 unless every generated table line (comments aside) appears in the Rust source at `path`."""
-    src = open(path, encoding="utf-8").read()
-    missing = [
-        line.strip()
-        for line in tables().splitlines()
-        if line.strip() and not line.strip().startswith("//") and line.strip() not in src
-    ]
-    for line in missing[:5]:
-        print(f"{path}: missing generated line: {line}", file=sys.stderr)
-    if missing:
+    """Exit 1 unless every generated table in the Rust source at `path` holds exactly the generated
+    rows, in order: a row missing, changed or added by hand fails."""
+    src = blocks(open(path, encoding="utf-8").read())
+    want = blocks(tables())
+    bad = []
+    for name, rows in want.items():
+        got = src.get(name)
+        if got is None:
+            bad.append(f"table {name} is missing")
+        elif got != rows:
+            extra = [r for r in got if r not in rows]
+            missing = [r for r in rows if r not in got]
+            bad.append(f"table {name}: {len(missing)} row(s) missing, {len(extra)} not generated"
+                       + (f" (e.g. {extra[0]})" if extra else "") + ("" if extra or missing else " (order)"))
+    for b in bad:
+        print(f"{path}: {b}", file=sys.stderr)
+    if bad:
         sys.exit(1)
-    print(f"{path}: all {len(tables().splitlines())} generated table lines present")
+    print(f"{path}: all {len(want)} generated tables match ({sum(map(len, want.values()))} rows)")
 
 
 def main():

@@ -60,7 +60,7 @@ fn contents_command_matches_the_independent_cases() {
 }
 
 /// Saturation and state commands: field names of the contract and check figures from
-/// shared/design/physics.md (CoolProp 8.0.0): saturated liquid nitrogen 806.09 kg/m³ at 1.01325 bar and
+/// CoolProp 8.0.0: saturated liquid nitrogen 806.09 kg/m³ at 1.01325 bar and
 /// 665.83 kg/m³ at 10 bar abs.
 #[test]
 fn saturation_and_state_commands() {

@@ -398,21 +398,45 @@ fn saturation_exists_all_the_way_to_the_critical_point() {
     for id in FluidId::ALL {
         let f = fluid(id);
         let (tc, pc) = (f.critical().temperature_k, f.critical().pressure_pa);
+        let mut last_p = 0.0;
         for i in 0..=320 {
             let d = 10f64.powf(-f64::from(i) / 20.0);
             let t = tc * (1.0 - d);
             if t >= f.triple().temperature_k {
-                f.saturation_from_temperature(t)
+                let fast = f
+                    .saturation_from_temperature(t)
                     .unwrap_or_else(|e| panic!("{id} fast at 1 - T/Tc = {d:e}: {e}"));
-                f.solve_saturation_from_temperature(t, &opts)
+                let full = f
+                    .solve_saturation_from_temperature(t, &opts)
                     .unwrap_or_else(|e| panic!("{id} full at 1 - T/Tc = {d:e}: {e}"));
+                // thermodynamic identities: the phases straddle the critical density, below p_c
+                let rho_c = f.critical().density_kg_m3;
+                for s in [&fast, &full] {
+                    assert!(
+                        s.vapor_density_kg_m3 <= rho_c * (1.0 + 1e-6)
+                            && rho_c * (1.0 - 1e-6) <= s.liquid_density_kg_m3
+                            && s.pressure_pa <= pc * (1.0 + 1e-9),
+                        "{id} at 1 - T/Tc = {d:e}: {s:?}"
+                    );
+                }
+                // the pressure rises toward p_c as T does (Clausius-Clapeyron: dp/dT > 0)
+                assert!(full.pressure_pa >= last_p * (1.0 - 1e-12), "{id} at {d:e}");
+                last_p = full.pressure_pa;
             }
             let p = pc * (1.0 - d);
             if p >= f.triple().pressure_pa {
-                f.saturation_from_pressure(p)
+                let fast = f
+                    .saturation_from_pressure(p)
                     .unwrap_or_else(|e| panic!("{id} fast at 1 - p/pc = {d:e}: {e}"));
-                f.solve_saturation_from_pressure(p, &opts)
+                let full = f
+                    .solve_saturation_from_pressure(p, &opts)
                     .unwrap_or_else(|e| panic!("{id} full at 1 - p/pc = {d:e}: {e}"));
+                for s in [&fast, &full] {
+                    assert!(
+                        s.temperature_k <= tc * (1.0 + 1e-12),
+                        "{id} at {d:e}: {s:?}"
+                    );
+                }
             }
         }
     }

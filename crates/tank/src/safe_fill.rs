@@ -7,6 +7,13 @@
 //! ```text
 //! V_max_now = (1 − f_v) · V_gross · rho_L_sat(p_relief) / rho_L_now
 //! ```
+//!
+//! The rule is the one behind a cryogenic vessel's maximum filling degree: filled no further than its
+//! contents, warmed until the relief valve lifts, leave the vessel not liquid-full (the principle of
+//! the maximum filling mass in EN 13458-2 for static vacuum-insulated vessels, recalled from memory).
+//! The vapour space kept at that point, 2 %, is common practice, no source. Local codes, the vessel
+//! maker's figure and licensed practice govern; the window and the command line show the cautions
+//! with it.
 
 use serde::{Deserialize, Serialize};
 

@@ -1,5 +1,5 @@
 //! Conversion factors to SI. Sources: NIST Special Publication 811 (2008), appendix B.8 and B.9, and
-//! the conventions of `shared/design/physics.md`.
+//! the conventional inch of water of NIST SP 811 (1000 kg/m³ × 0.0254 m × g_n).
 
 /// Standard acceleration of gravity, m/s² (CGPM 1901; NIST SP 811 B.8).
 pub const STANDARD_GRAVITY_M_S2: f64 = 9.806_65;

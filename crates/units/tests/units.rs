@@ -15,7 +15,7 @@ fn factors_match_nist_sp811() {
     assert!(close(PSI_PA, 6894.757, 1e-7));
     // NIST SP 811: inch of water (conventional) = 2.490 889 E+02 Pa.
     assert!(close(INCH_WATER_CONVENTIONAL_PA, 249.0889, 1e-6));
-    // shared/design/physics.md: 1000 kg/m³ × 0.0254 m × g_n = 249.088 91 Pa.
+    // the conventional inch of water: 1000 kg/m³ × 0.0254 m × g_n = 249.088 91 Pa (NIST SP 811, B.8).
     assert!(close(INCH_WATER_CONVENTIONAL_PA, 249.088_91, 1e-9));
     // NIST SP 811: inch of water (39.2 °F) = 2.490 82 E+02 Pa; (60 °F) = 2.4884 E+02 Pa.
     assert!(close(INCH_WATER_4C_PA, 249.082, 1e-9));
@@ -80,7 +80,7 @@ fn gauge_needs_the_barometer() {
 #[test]
 fn dp_units_from_the_issue() {
     let cases: &[(&str, f64)] = &[
-        // Factors: NIST SP 811 and physics.md (conventional inch of water 249.088 91 Pa).
+        // Factors: NIST SP 811 (conventional inch of water 249.088 91 Pa).
         ("85 inH2O", 85.0 * 249.088_91),
         ("2150 mmH2O", 2150.0 * 9.806_65),
         ("21.2 kPa", 21_200.0),
