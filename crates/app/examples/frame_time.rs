@@ -1,12 +1,13 @@
-//! Frame-time and page-open benchmark (ignored by default; run in release):
-//! `cargo test -p app --release --test frame_time -- --ignored --nocapture`.
+//! Frame-time and page-open benchmark, a bench command (CI runs it):
+//! `cargo run -p app --release --example frame_time` (`-- --tanks N` for a smaller fleet).
 //!
 //! A fleet of 1,000 tanks in the navigator (30 days of readings each) and one tank with five years of
 //! daily readings shown on the Trend tab over its whole history. Reports the time to open that tank's
 //! page (every reading evaluated with its uncertainty) and the CPU time per frame: the app's own timer
 //! (logic + ui) and the whole harness step (egui layout, accessibility tree).
-#![allow(clippy::expect_used)] // benchmark set-up: a failure is a test failure
+#![allow(clippy::expect_used)] // benchmark set-up: a failure stops the benchmark
 
+#[path = "../tests/common/mod.rs"]
 mod common;
 
 use app::CryoApp;
@@ -31,9 +32,14 @@ fn stats(mut v: Vec<f64>) -> (f64, f64, f64) {
     )
 }
 
-#[test]
-#[ignore = "benchmark: run in release with --ignored --nocapture"]
-fn frame_time_with_a_five_year_trend_and_a_fleet_of_1000_tanks() {
+fn main() {
+    let args: Vec<String> = std::env::args().collect();
+    let tanks: u32 = args
+        .iter()
+        .position(|a| a == "--tanks")
+        .and_then(|i| args.get(i + 1))
+        .and_then(|v| v.parse().ok())
+        .unwrap_or(1000);
     let t0 = Instant::now();
     // A database file, as in the app: the fleet summary then reads through its own connection.
     let dir = std::env::temp_dir().join(format!("cryoledger-frame-time-{}", std::process::id()));
@@ -51,7 +57,7 @@ fn frame_time_with_a_five_year_trend_and_a_fleet_of_1000_tanks() {
         ))
         .expect("tank");
     add_history(&mut s, big, end, 5 * 365 + 1, "AW", 0);
-    for n in 0..999 {
+    for n in 0..tanks.saturating_sub(1) {
         let site = format!("Bench Site {:03}", n / 10);
         let name = format!("BX-{n:04}");
         let id = s
@@ -66,10 +72,10 @@ fn frame_time_with_a_five_year_trend_and_a_fleet_of_1000_tanks() {
     let spawn_ms = t1.elapsed().as_secs_f64() * 1e3;
     app.wait_for_background();
     println!(
-        "fleet summary of 1000 tanks: {spawn_ms:.0} ms on the UI thread, {:.0} ms until the background summary (reads, contents, audit) was in",
+        "fleet summary of {tanks} tanks: {spawn_ms:.0} ms on the UI thread, {:.0} ms until the background summary (reads, contents, fleet audit) was in",
         t1.elapsed().as_secs_f64() * 1e3
     );
-    assert_eq!(app.view().fleet.counts.0, 1000);
+    assert_eq!(app.view().fleet.counts.0, tanks as usize);
 
     let mut opens = Vec::new();
     for _ in 0..5 {
@@ -83,7 +89,6 @@ fn frame_time_with_a_five_year_trend_and_a_fleet_of_1000_tanks() {
     let n = page.readings.len();
     assert!(n > 5 * 365, "{n} readings");
     let (open_med, open_p95, _) = stats(opens.clone());
-    assert!(open_med < 100.0, "opening took {open_med:.1} ms");
     println!(
         "open the 5-year tank page ({n} readings, thermal history, GUM uncertainty): median {open_med:.1} ms, max of 5 {open_p95:.1} ms"
     );
@@ -118,14 +123,10 @@ fn frame_time_with_a_five_year_trend_and_a_fleet_of_1000_tanks() {
     let (o_med, o_p95, o_mean) = stats(own);
     let (s_med, s_p95, s_mean) = stats(step);
     let (t_med, t_p95, t_mean) = stats(total);
-    println!("trend (all 5 years) + 1000-tank navigator, 300 frames:");
+    println!("trend (all 5 years) + {tanks}-tank navigator, 300 frames:");
     println!("  app logic+ui CPU: median {o_med:.2} ms, p95 {o_p95:.2} ms, mean {o_mean:.2} ms");
     println!("  whole harness step: median {s_med:.2} ms, p95 {s_p95:.2} ms, mean {s_mean:.2} ms");
     println!("  step + tessellation: median {t_med:.2} ms, p95 {t_p95:.2} ms, mean {t_mean:.2} ms");
-    assert!(
-        t_med < 4.0,
-        "frame CPU {t_med:.2} ms is over the 4 ms target"
-    );
 
     // The Readings table (1826 rows, virtualised) beside the navigator.
     h.state_mut().push(Action::ShowTab(TankTab::Readings));
