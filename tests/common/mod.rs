@@ -53,3 +53,31 @@ pub fn seeded_db(dir: &Path) -> PathBuf {
 pub fn dump(db: &Path) -> String {
     store::Store::open(db).unwrap().dump().unwrap()
 }
+
+/// A database holding the embedded demo fleet, written by `cryoledger demo`.
+pub fn demo_db(dir: &Path) -> PathBuf {
+    let db = dir.join("demo.db");
+    let out = bin().arg("demo").arg("--db").arg(&db).output().unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    db
+}
+
+/// `cryoledger audit --format json --db DB` with extra arguments, parsed.
+pub fn audit_json(db: &Path, args: &[&str]) -> serde_json::Value {
+    let out = bin()
+        .args(["audit", "--format", "json", "--db"])
+        .arg(db)
+        .args(args)
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    serde_json::from_slice(&out.stdout).unwrap()
+}

@@ -1,17 +1,6 @@
 use crate::common::*;
 use std::path::Path;
 
-fn demo_db(dir: &Path) -> std::path::PathBuf {
-    let db = dir.join("demo.db");
-    let out = bin().arg("demo").arg("--db").arg(&db).output().unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    db
-}
-
 fn audit(db: &Path, args: &[&str]) -> std::process::Output {
     bin()
         .arg("audit")
@@ -20,16 +9,6 @@ fn audit(db: &Path, args: &[&str]) -> std::process::Output {
         .args(args)
         .output()
         .unwrap()
-}
-
-fn audit_json(db: &Path, args: &[&str]) -> serde_json::Value {
-    let out = audit(db, &[&["--format", "json"], args].concat());
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    serde_json::from_slice(&out.stdout).unwrap()
 }
 
 /// The JSON contract: fills with ticket, tank, vehicle, verdict, billed_kg, gained_kg, drawn_kg,

@@ -11,20 +11,8 @@ use store::{Repository, Store};
 #[test]
 fn window_and_command_line_give_the_same_verdicts() {
     let dir = tempfile::tempdir().unwrap();
-    let db = dir.path().join("demo.db");
-    let out = bin().arg("demo").arg("--db").arg(&db).output().unwrap();
-    assert!(out.status.success());
-    let out = bin()
-        .args(["audit", "--format", "json", "--db"])
-        .arg(&db)
-        .output()
-        .unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    let cli: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let db = demo_db(dir.path());
+    let cli = audit_json(&db, &[]);
 
     let store = Store::open(&db).unwrap();
     let mut window = app::CryoApp::new(Store::open(&db).unwrap(), db.clone());
@@ -106,17 +94,7 @@ fn window_and_command_line_give_the_same_verdicts() {
 #[test]
 fn a_failing_tank_stops_the_fleet_audit_and_is_named() {
     let dir = tempfile::tempdir().unwrap();
-    let db = dir.path().join("demo.db");
-    assert!(
-        bin()
-            .arg("demo")
-            .arg("--db")
-            .arg(&db)
-            .output()
-            .unwrap()
-            .status
-            .success()
-    );
+    let db = demo_db(dir.path());
     let conn = rusqlite::Connection::open(&db).unwrap();
     conn.execute(
         "UPDATE tanks SET heads = 'torispherical', crown_ratio = 0.3 WHERE name = 'DSF-AR-7'",

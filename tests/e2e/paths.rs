@@ -204,17 +204,7 @@ fn contents_of_a_stored_tank() {
 #[test]
 fn audit_output_does_not_depend_on_threads() {
     let dir = tempfile::tempdir().unwrap();
-    let db = dir.path().join("demo.db");
-    assert!(
-        bin()
-            .arg("demo")
-            .arg("--db")
-            .arg(&db)
-            .output()
-            .unwrap()
-            .status
-            .success()
-    );
+    let db = demo_db(dir.path());
     let run = |n: &str| {
         let out = bin()
             .args(["audit", "--format", "json", "--threads", n, "--db"])
@@ -237,17 +227,21 @@ fn an_import_while_another_connection_writes() {
     let db = seeded_db(dir.path());
     let mut window = Store::open(&db).unwrap();
     let t = window.tank_by_name("HW-N2-1").unwrap();
-    let r = store::ReadingFields {
-        time: "2026-04-01T08:00:00Z",
-        dp: "150",
-        dp_unit: "inH2O",
-        pressure: "11",
-        pressure_unit: "barg",
-        ..Default::default()
-    }
-    .check(t.barometer_pa)
-    .unwrap();
-    window.add_reading(t.id, &r).unwrap();
+    let reading = |time: &str, dp: &str| {
+        store::ReadingFields {
+            time,
+            dp,
+            dp_unit: "inH2O",
+            pressure: "11",
+            pressure_unit: "barg",
+            ..Default::default()
+        }
+        .check(t.barometer_pa)
+        .unwrap()
+    };
+    window
+        .add_reading(t.id, &reading("2026-04-01T08:00:00Z", "150"))
+        .unwrap();
     let more = write(
         dir.path(),
         "r.csv",
@@ -259,19 +253,9 @@ fn an_import_while_another_connection_writes() {
         "{}",
         String::from_utf8_lossy(&out.stderr)
     );
-    let r2 = store::ReadingFields {
-        time: "2026-04-03T08:00:00Z",
-        ..store::ReadingFields {
-            dp: "130",
-            dp_unit: "inH2O",
-            pressure: "11",
-            pressure_unit: "barg",
-            ..Default::default()
-        }
-    }
-    .check(t.barometer_pa)
-    .unwrap();
-    window.add_reading(t.id, &r2).unwrap();
+    window
+        .add_reading(t.id, &reading("2026-04-03T08:00:00Z", "130"))
+        .unwrap();
     let all = window
         .readings(t.id, Some((1_775_000_000_000, i64::MAX)))
         .unwrap();

@@ -49,7 +49,17 @@ fn one_fill(geometry: Geometry, id: FluidId, p_pa: f64, added_kg: f64) -> (TankI
             liquid_temperature_k: None,
         })
         .collect();
-    let input = TankInput {
+    (input_of(engine, readings, arrived, p_pa), arrived)
+}
+
+/// The input of a tank with its readings and one ticket between hours 24 and 25.
+fn input_of(
+    engine: Tank<&'static fluids::Fluid>,
+    readings: Vec<ReadingInput>,
+    billed_kg: f64,
+    p_pa: f64,
+) -> TankInput {
+    TankInput {
         name: "T".into(),
         tank: engine,
         ner_percent_per_day: Some(0.3),
@@ -63,12 +73,11 @@ fn one_fill(geometry: Geometry, id: FluidId, p_pa: f64, added_kg: f64) -> (TankI
             carrier: "C".into(),
             start_ms: 24 * H + H / 4,
             end_ms: 24 * H + 3 * H / 4,
-            billed_kg: arrived,
+            billed_kg,
             supply_pressure_pa: Some(p_pa),
             meter_repeatability_percent: None,
         }],
-    };
-    (input, arrived)
+    }
 }
 
 fn options() -> AuditOptions {
@@ -260,25 +269,7 @@ fn a_measured_liquid_temperature_is_used() {
             liquid_temperature_k: Some(cold_k),
         })
         .collect();
-    let input = TankInput {
-        name: "T".into(),
-        tank: engine,
-        ner_percent_per_day: Some(0.3),
-        reorder_percent: None,
-        line_temperature_k: 288.15,
-        dp_noise_u_pa: 5.0,
-        readings,
-        deliveries: vec![DeliveryInput {
-            ticket: "K1".into(),
-            vehicle: "V1".into(),
-            carrier: "C".into(),
-            start_ms: 24 * H + H / 4,
-            end_ms: 24 * H + 3 * H / 4,
-            billed_kg: arrived,
-            supply_pressure_pa: Some(p),
-            meter_repeatability_percent: None,
-        }],
-    };
+    let input = input_of(engine, readings, arrived, p);
     let b = verdict(&input);
     assert_eq!(b.verdict, Verdict::Consistent, "{}", b.explanation);
     assert!(b.residual_kg.abs() < 1e-6 * arrived, "{}", b.residual_kg);
