@@ -4,6 +4,15 @@ use std::path::{Path, PathBuf};
 use std::process::Output;
 use store::Repository;
 
+/// Fail with the command's own error output unless it succeeded.
+pub fn expect_success(out: &Output) {
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+}
+
 /// The binary under test.
 pub fn bin() -> std::process::Command {
     std::process::Command::new(env!("CARGO_BIN_EXE_cryoledger"))
@@ -58,11 +67,7 @@ pub fn dump(db: &Path) -> String {
 pub fn demo_db(dir: &Path) -> PathBuf {
     let db = dir.join("demo.db");
     let out = bin().arg("demo").arg("--db").arg(&db).output().unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
+    expect_success(&out);
     db
 }
 
@@ -74,10 +79,6 @@ pub fn audit_json(db: &Path, args: &[&str]) -> serde_json::Value {
         .args(args)
         .output()
         .unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
+    expect_success(&out);
     serde_json::from_slice(&out.stdout).unwrap()
 }

@@ -7,11 +7,7 @@ fn demo_writes_once() {
     let dir = tempfile::tempdir().unwrap();
     let db = dir.path().join("sub").join("demo.db");
     let out = bin().arg("demo").arg("--db").arg(&db).output().unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
+    expect_success(&out);
     let text = String::from_utf8(out.stdout).unwrap();
     assert!(text.contains("16 tanks"), "{text}");
     let before = dump(&db);

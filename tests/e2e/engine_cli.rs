@@ -191,9 +191,5 @@ fn import_refuses_dp_beyond_a_full_tank() {
     // 200 inH2O is a nearly full tank and is accepted.
     std::fs::write(&f, "tank,time,dp,dp_unit,pressure,pressure_unit\nHW-N2-1,2026-04-01T08:00:00Z,200,inH2O,11,barg\n").unwrap();
     let out = import(&db, &["--readings", f.to_str().unwrap()]);
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
+    expect_success(&out);
 }

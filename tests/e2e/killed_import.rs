@@ -62,9 +62,5 @@ fn killed_import_leaves_the_database_as_before() {
     let one = dir.path().join("one.csv");
     std::fs::write(&one, "tank,time,dp,dp_unit,pressure,pressure_unit\nHW-N2-1,2026-05-01T08:00:00Z,150,inH2O,11,barg\n").unwrap();
     let out = import(&db, &["--readings", one.to_str().unwrap()]);
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
+    expect_success(&out);
 }

@@ -23,11 +23,7 @@ fn spreadsheet_csv_is_read() {
     );
     let db = dir.path().join("a.db");
     let out = import(&db, &["--tanks", &tanks]);
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
+    expect_success(&out);
     let s = Store::open(&db).unwrap();
     let t = s.tank_by_name("MR-1").unwrap();
     assert_eq!(t.spec.site, "Mill Road, Unit 4");
@@ -47,11 +43,7 @@ fn empty_header_only_and_bad_strapping() {
     assert!(err.contains("empty.csv:1:"), "{err}");
     let header = write(dir.path(), "header.csv", TANKS.as_bytes());
     let out = import(&db, &["--tanks", &header]);
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
+    expect_success(&out);
     assert!(String::from_utf8_lossy(&out.stdout).contains("imported 0 tanks"));
     let bad = write(
         dir.path(),
@@ -110,21 +102,13 @@ fn gas_volume_tickets_become_masses() {
             &deliveries,
         ],
     );
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
+    expect_success(&out);
     let out = bin()
         .args(["audit", "--format", "json", "--db"])
         .arg(&db)
         .output()
         .unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
+    expect_success(&out);
     let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
     let billed = |ticket: &str| {
         v["fills"]
@@ -171,11 +155,7 @@ fn contents_of_a_stored_tank() {
             ])
             .output()
             .unwrap();
-        assert!(
-            out.status.success(),
-            "{}",
-            String::from_utf8_lossy(&out.stderr)
-        );
+        expect_success(&out);
         serde_json::from_slice(&out.stdout).unwrap()
     };
     let stored = json(&["--tank", "HW-N2-1", "--db", db.to_str().unwrap()]);
@@ -248,11 +228,7 @@ fn an_import_while_another_connection_writes() {
         b"tank,time,dp,dp_unit,pressure,pressure_unit\nHW-N2-1,2026-04-02T08:00:00Z,140,inH2O,11,barg\n",
     );
     let out = import(&db, &["--readings", &more]);
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
+    expect_success(&out);
     window
         .add_reading(t.id, &reading("2026-04-03T08:00:00Z", "130"))
         .unwrap();

@@ -9,11 +9,7 @@ fn export(db: &Path, what: &str) -> String {
         .args(["--what", what])
         .output()
         .unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
+    expect_success(&out);
     String::from_utf8(out.stdout).unwrap()
 }
 
@@ -35,11 +31,7 @@ fn export_then_import_reproduces_the_data() {
         .collect();
     let args: Vec<&str> = args.iter().map(String::as_str).collect();
     let out = import(&fresh, &args);
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
+    expect_success(&out);
     for (what, _, text) in &files {
         assert_eq!(
             &export(&fresh, what),

@@ -10,6 +10,14 @@ use std::collections::HashMap;
 use std::io::Write;
 use units::Unit;
 
+/// Flush a CSV writer; a failure names the output.
+fn finish(mut w: csv::Writer<&mut dyn Write>) -> Result<(), StoreError> {
+    w.flush().map_err(|source| StoreError::Io {
+        path: "output".into(),
+        source,
+    })
+}
+
 /// Write all live tanks in the tanks CSV format.
 pub(crate) fn tanks(store: &Store, out: &mut dyn Write) -> Result<(), StoreError> {
     let sites: HashMap<SiteId, Site> = store.sites()?.into_iter().map(|s| (s.id, s)).collect();
@@ -45,11 +53,7 @@ pub(crate) fn tanks(store: &Store, out: &mut dyn Write) -> Result<(), StoreError
             format_strapping(&s.strapping),
         ])?;
     }
-    w.flush().map_err(|source| StoreError::Io {
-        path: "output".into(),
-        source,
-    })?;
-    Ok(())
+    finish(w)
 }
 
 /// Write all live readings in the readings CSV format, in the order they were written.
@@ -74,11 +78,7 @@ pub(crate) fn readings(store: &Store, out: &mut dyn Write) -> Result<(), StoreEr
             r.get::<_, Option<String>>(7)?.unwrap_or_default(),
         ])?;
     }
-    w.flush().map_err(|source| StoreError::Io {
-        path: "output".into(),
-        source,
-    })?;
-    Ok(())
+    finish(w)
 }
 
 /// Write all live deliveries in the deliveries CSV format.
@@ -109,11 +109,7 @@ pub(crate) fn deliveries(store: &Store, out: &mut dyn Write) -> Result<(), Store
                 .unwrap_or_default(),
         ])?;
     }
-    w.flush().map_err(|source| StoreError::Io {
-        path: "output".into(),
-        source,
-    })?;
-    Ok(())
+    finish(w)
 }
 
 pub(crate) fn dump(store: &Store) -> Result<String, StoreError> {
