@@ -190,7 +190,6 @@ pub fn audit_tank(
     let input = tank_input(&t, &readings, &deliveries, &meters(repo)?, None)?;
     let opts = AuditOptions {
         keep_readings: true,
-        exact_properties: true,
         ..options.clone()
     };
     audit_one(&input, &opts)
