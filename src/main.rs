@@ -5,7 +5,7 @@ mod commands;
 
 use anyhow::{Context, Result};
 use clap::{Parser, Subcommand};
-use commands::{audit, contents, demo, fluids, io};
+use commands::{audit, contents, demo, fluids, history, io};
 use std::path::PathBuf;
 use std::process::ExitCode;
 use store::Store;
@@ -51,17 +51,22 @@ enum Command {
     /// Reconcile deliveries and audit the fleet: fill balances, gauge drift, vehicle bias, forecasts
     #[command(
         long_about = "Reconcile every delivery against the tank's readings and audit the fleet.\n\n\
-        Each fill's balance is billed - (gained + drawn) with its standard uncertainty (both readings, the \
-        usage model, the vehicle's meter); the liquid's thermal history (mixing at fills, heat leak between \
-        them) sets each reading's liquid density. Verdicts: consistent, short, excess, inconclusive. Gauges: \
-        ok or drift (a trend in the fills' ratios, weighted least-squares slope t-test, Holm across tanks). \
-        Vehicles: ok or biased (one-sample t-test of tank-adjusted ratios, Holm across vehicles), with the \
-        bias, its 95 % interval and the legal tolerance. Also gains and losses between fills, use rates \
-        and the next fill."
+        Each fill is bracketed by the nearest usable readings, however far (a driver's readings at the fill \
+        or the operator's routine ones); its balance is billed - (gained + drawn) with its standard \
+        uncertainty (both readings, the tank's weekly use model, the vehicle's meter, refined from the \
+        fleet's own balances); the liquid's thermal history (mixing at fills, heat leak between them) sets \
+        each reading's liquid density. Verdicts: consistent, short, excess, inconclusive. Gauges: ok, drift \
+        or step (Holm across tanks). Vehicles: ok or biased (tank levels and vehicle effects fitted jointly, \
+        one-sample t-tests, Holm across vehicles), with the bias, its 95 % interval and the legal tolerance. \
+        Also gains and leaks between fills, use rates and the next fill."
     )]
     Audit(audit::AuditArgs),
     /// Write the fictional demo fleet into a database (default: your data directory's)
     Demo(demo::DemoArgs),
+    /// Check the history: name every record changed, added or removed outside cryoledger
+    Verify(history::VerifyArgs),
+    /// Copy the database consistently (safe while the window writes); the copy is verified
+    Backup(history::BackupArgs),
 }
 
 fn default_db_path() -> Result<PathBuf> {
@@ -96,6 +101,8 @@ fn run(cli: Cli) -> Result<ExitCode> {
         Some(Command::Contents(a)) => contents::run(*a),
         Some(Command::Audit(a)) => audit::run(a),
         Some(Command::Demo(a)) => demo::run(a, default_db_path),
+        Some(Command::Verify(a)) => history::verify(a),
+        Some(Command::Backup(a)) => history::backup(a),
     }
 }
 

@@ -40,3 +40,7 @@ mod edges;
 /// `contents --tank`, thread counts, two writers, corrupt and newer databases.
 #[path = "e2e/paths.rs"]
 mod paths;
+
+/// `verify` and `backup`: the hash-linked history, a consistent copy, read-only files refused.
+#[path = "e2e/history.rs"]
+mod history;

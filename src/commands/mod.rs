@@ -4,6 +4,7 @@ pub mod audit;
 pub mod contents;
 pub mod demo;
 pub mod fluids;
+pub mod history;
 pub mod io;
 
 use std::io::Write;

@@ -58,6 +58,8 @@ pub enum Action {
     DismissMessage,
     /// Re-read everything from the store (the fleet summary runs in the background).
     Reload,
+    /// Check the ledger's history (its hash chain) again, in the background with the fleet summary.
+    VerifyHistory,
 }
 
 /// The fleet summary running on its background thread.
@@ -211,6 +213,7 @@ impl Core {
         self.view.fleet.progress = None;
         match result {
             Ok(summary) => {
+                self.view.history_check = Some(summary.history);
                 self.view.fleet.sites = summary.sites;
                 self.fleet_audit = Some(summary.audit);
                 build::fleet_rows(&mut self.view.fleet);
@@ -478,6 +481,10 @@ impl Core {
             Action::DismissMessage => {
                 self.view.notice = None;
                 self.view.error = None;
+            }
+            Action::VerifyHistory => {
+                self.view.history_check = None;
+                self.start_fleet_summary();
             }
             Action::Reload => {
                 self.start_fleet_summary();

@@ -543,6 +543,15 @@ pub struct TankView {
     pub build_ms: f64,
 }
 
+/// The result of a verify run over the ledger's hash chain.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct HistoryCheck {
+    /// True when no record was changed, added or removed outside cryoledger.
+    pub ok: bool,
+    /// One line to show: the summary, or the problems counted with the first named.
+    pub text: String,
+}
+
 /// Everything the panels draw.
 #[derive(Debug, Clone, Default)]
 pub struct ViewState {
@@ -574,4 +583,6 @@ pub struct ViewState {
     pub frame_ms: f64,
     /// The caution texts shown beside the safe-fill limit and in help.
     pub cautions: Vec<&'static str>,
+    /// The last check of the ledger's history (its hash chain), when one has run.
+    pub history_check: Option<HistoryCheck>,
 }

@@ -422,3 +422,31 @@ fn a_deleted_reading_leaves_the_log_and_keeps_its_history() {
     );
     assert!(h.query_by_label_contains("Reading deleted").is_some());
 }
+
+/// The status bar shows the result of a verify run over the ledger's hash chain at start-up, and the
+/// "Verify history" button runs it again (the fixture is written only through the store, so it
+/// verifies: every record has its link).
+#[test]
+fn the_window_shows_the_history_check() {
+    let mut h = harness(common::small_fleet(10));
+    h.run();
+    let check = h
+        .state()
+        .view()
+        .history_check
+        .clone()
+        .expect("checked at start-up");
+    assert!(check.ok, "{}", check.text);
+    assert!(h.query_by_label_contains("History verified").is_some());
+    h.get_by_label("Verify history").click();
+    h.run();
+    h.state_mut().wait_for_background();
+    h.run();
+    assert!(
+        h.state()
+            .view()
+            .history_check
+            .as_ref()
+            .is_some_and(|c| c.ok)
+    );
+}

@@ -162,6 +162,8 @@ pub(crate) struct Sink {
     errors: Vec<RowError>,
     max: usize,
     truncated: bool,
+    /// A failure of the storage itself (a full disk, an I/O error): the import stops at once.
+    pub(crate) fatal: Option<StoreError>,
 }
 
 impl Sink {
@@ -170,6 +172,7 @@ impl Sink {
             errors: Vec::new(),
             max: max.max(1),
             truncated: false,
+            fatal: None,
         }
     }
     /// Every error, or None when there was none.
@@ -284,6 +287,9 @@ pub(crate) fn each_row(
 ) -> Result<(), StoreError> {
     let mut rec = csv::StringRecord::new();
     loop {
+        if sink.fatal.is_some() {
+            break;
+        }
         if sink.full() {
             sink.truncated = true;
             break;

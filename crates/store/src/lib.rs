@@ -40,6 +40,7 @@ pub use csv_format::{
 };
 pub use records::*;
 pub use repository::{RecordKind, Repository};
+pub use sqlite::chain::{Tampering, Verification};
 pub use sqlite::{MIGRATION_FILES, Store};
 
 /// The database driver's own error, kept as its message (callers never see the driver's type).
@@ -52,9 +53,16 @@ pub struct DriverError {
 
 impl From<rusqlite::Error> for StoreError {
     fn from(e: rusqlite::Error) -> Self {
-        StoreError::Database(DriverError {
-            message: e.to_string(),
-        })
+        match e.sqlite_error_code() {
+            Some(rusqlite::ErrorCode::DiskFull) => StoreError::Full,
+            Some(rusqlite::ErrorCode::ReadOnly) => StoreError::ReadOnly {
+                path: "the database".into(),
+            },
+            Some(rusqlite::ErrorCode::NotADatabase) => StoreError::NotADatabase,
+            _ => StoreError::Database(DriverError {
+                message: e.to_string(),
+            }),
+        }
     }
 }
 
@@ -83,6 +91,24 @@ pub enum StoreError {
         /// The cause.
         source: std::io::Error,
     },
+    /// The disk (or the database's size limit) is full.
+    #[error(
+        "the disk holding the database is full: free some space and try again (nothing of this change was written)"
+    )]
+    Full,
+    /// The database file or its folder cannot be written.
+    #[error(
+        "{path} is read-only: make it writable, or copy it somewhere writable, to open it in cryoledger"
+    )]
+    ReadOnly {
+        /// The file or folder.
+        path: String,
+    },
+    /// The file is not a cryoledger database.
+    #[error(
+        "the file is not a cryoledger database (not SQLite, or damaged): check the path, or restore a backup"
+    )]
+    NotADatabase,
     /// The database was written by a newer cryoledger.
     #[error(
         "the database has schema version {found}, newer than this cryoledger knows ({known}): open it with the version that wrote it"

@@ -7,6 +7,7 @@ use std::io::Write;
 use crate::StoreError;
 use crate::csv_format::{ImportOptions, ImportSources, ImportSummary};
 use crate::records::*;
+use crate::sqlite::chain::Verification;
 
 /// The kinds of record the CSV formats carry.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
@@ -118,4 +119,11 @@ pub trait Repository {
 
     /// A full text dump of every stored row, for comparing two databases.
     fn dump(&self) -> Result<String, StoreError>;
+
+    /// Walk the hash chain and the current records: every record changed, added or removed outside
+    /// cryoledger is named.
+    fn verify(&self) -> Result<Verification, StoreError>;
+
+    /// A consistent copy of the whole ledger at `to` (a new file), safe while others write.
+    fn backup(&self, to: &std::path::Path) -> Result<(), StoreError>;
 }

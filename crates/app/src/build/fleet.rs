@@ -6,13 +6,42 @@ use audit::{FleetAudit, TankSummary};
 use std::sync::Arc;
 use std::sync::atomic::AtomicBool;
 
-/// The fleet list and the fleet audit it comes from.
+/// The fleet list, the fleet audit it comes from, and the check of the ledger's history.
 #[derive(Debug, Clone)]
 pub struct FleetSummary {
     /// Sites with their tanks' lines.
     pub sites: Vec<FleetSite>,
     /// The fleet audit (the same the command line's `audit` gives).
     pub audit: Arc<FleetAudit>,
+    /// The verify run over the hash chain.
+    pub history: HistoryCheck,
+}
+
+/// Verify the ledger's history (the same walk as `cryoledger verify`).
+pub fn history_check(repo: &dyn Repository) -> Result<HistoryCheck, StoreError> {
+    let v = repo.verify()?;
+    let head: String = v.head.chars().take(12).collect();
+    Ok(match v.problems.first() {
+        None => HistoryCheck {
+            ok: true,
+            text: format!(
+                "History verified: {} records, {} links, chain head {head}…",
+                v.records, v.links
+            ),
+        },
+        Some(first) => HistoryCheck {
+            ok: false,
+            text: format!(
+                "History NOT verified: {} record(s) changed outside cryoledger, e.g. {} — run `cryoledger verify` for the list",
+                v.problems.len(),
+                first
+                    .record
+                    .as_ref()
+                    .map(|(k, id)| format!("{k} {id}: {}", first.what))
+                    .unwrap_or_else(|| first.what.clone())
+            ),
+        },
+    })
 }
 
 /// The fleet list: the bridge's fleet audit (the same as `cryoledger audit`), then each tank's latest
@@ -36,6 +65,7 @@ pub fn fleet_summary(
     Ok(FleetSummary {
         sites: fleet_sites(repo, lines)?,
         audit: Arc::new(audit),
+        history: history_check(repo)?,
     })
 }
 

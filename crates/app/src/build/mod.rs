@@ -11,7 +11,7 @@ mod reading;
 mod tank_page;
 mod trend;
 
-pub use fleet::{FleetSummary, fleet_rows, fleet_sites, fleet_summary};
+pub use fleet::{FleetSummary, fleet_rows, fleet_sites, fleet_summary, history_check};
 pub use form_fill::{
     delivery_form_for, new_delivery_form, new_reading_form, new_setup_form, reading_form_for,
     setup_form_for,

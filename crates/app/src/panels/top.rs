@@ -44,13 +44,34 @@ pub fn top_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
 }
 
 /// The status bar.
-pub fn status_ui(ui: &mut Ui, view: &ViewState, _out: &mut Vec<Action>) {
+pub fn status_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
     ui.horizontal(|ui| {
         ui.label(
             RichText::new("Figures are estimates: see Help and cautions before any fill.")
                 .color(style::MUTED)
                 .small(),
         );
+        ui.separator();
+        match &view.history_check {
+            Some(h) => {
+                let colour = if h.ok { style::MUTED } else { style::ERROR };
+                ui.label(RichText::new(&h.text).color(colour).small());
+            }
+            None => {
+                ui.label(
+                    RichText::new("History: checking…")
+                        .color(style::MUTED)
+                        .small(),
+                );
+            }
+        }
+        if ui
+            .small_button("Verify history")
+            .on_hover_text("Check that no record was changed outside cryoledger (its hash chain)")
+            .clicked()
+        {
+            out.push(Action::VerifyHistory);
+        }
         if let Some((done, total)) = view.fleet.progress {
             ui.separator();
             ui.label(

@@ -1,7 +1,8 @@
 //! The SQLite side of a CSV import: one transaction, every row checked, all or nothing.
 
-use super::Store;
+use super::chain::{self, Action, ChainWriter, Kind};
 use super::rows::*;
+use super::{SiteError, Store, site_with};
 use crate::StoreError;
 use crate::check::{DeliveryFields, FieldError, ReadingFields, TankFields};
 use crate::csv_format::*;
@@ -23,6 +24,7 @@ pub(crate) fn import(
         .map(|t| (t.spec.name.clone(), t))
         .collect();
     let tx = store.conn.transaction()?;
+    let mut chain = ChainWriter::new(&tx)?;
     let ImportSources {
         tanks: tank_source,
         readings,
@@ -31,17 +33,32 @@ pub(crate) fn import(
     if let Some(src) = tank_source
         && let Some(mut t) = Table::open(src, &TANK_HEADER[..TANK_REQUIRED], &mut sink)
     {
-        import_tanks(&tx, &mut t, &mut sink, &mut tanks, &mut summary)?;
+        import_tanks(&tx, &mut chain, &mut t, &mut sink, &mut tanks, &mut summary)?;
     }
     if let Some(src) = readings
         && let Some(mut t) = Table::open(src, &READING_HEADER[..READING_REQUIRED], &mut sink)
     {
-        import_readings(&tx, &mut t, &mut sink, &tanks, opts, &mut summary)?;
+        import_readings(
+            &tx,
+            &mut chain,
+            &mut t,
+            &mut sink,
+            &tanks,
+            opts,
+            &mut summary,
+        )?;
     }
     if let Some(src) = deliveries
         && let Some(mut t) = Table::open(src, &DELIVERY_HEADER[..DELIVERY_REQUIRED], &mut sink)
     {
-        import_deliveries(&tx, &mut t, &mut sink, &tanks, &mut summary)?;
+        import_deliveries(&tx, &mut chain, &mut t, &mut sink, &tanks, &mut summary)?;
+    }
+    if let Some(fatal) = sink.fatal.take() {
+        // SQLite may have rolled the transaction back by itself (a full disk, an I/O error)
+        if !tx.is_autocommit() {
+            tx.rollback()?;
+        }
+        return Err(fatal);
     }
     match sink.into_errors() {
         None => {
@@ -55,8 +72,18 @@ pub(crate) fn import(
     }
 }
 
+/// A failure of the storage, not of a row: the import stops.
+fn storage_failure(e: &rusqlite::Error) -> bool {
+    use rusqlite::ErrorCode::*;
+    matches!(
+        e.sqlite_error_code(),
+        Some(DiskFull | SystemIoFailure | ReadOnly | DatabaseCorrupt | NotADatabase | OutOfMemory)
+    )
+}
+
 fn import_tanks(
     conn: &Connection,
+    chain: &mut ChainWriter,
     t: &mut Table<'_>,
     sink: &mut Sink,
     tanks: &mut HashMap<String, TankRecord>,
@@ -144,12 +171,22 @@ fn import_tanks(
             );
             return;
         }
-        let site_id = match site_id_for(conn, &spec.site, elevation, barometer) {
+        let site_id = match site_with(conn, chain, &spec.site, elevation, barometer) {
             Ok(id) => id,
-            Err(e) => return sink.push(&file, line, e),
+            Err(SiteError::Field(e)) => return sink.push(&file, line, e),
+            Err(SiteError::Store(e)) => {
+                sink.fatal = Some(e);
+                return;
+            }
         };
         match insert_tank(conn, site_id, &spec) {
             Ok(id) => {
+                if let Err(e) = chain.append(conn, Kind::Tank, id.0, Action::Insert, |out| {
+                    chain::canonical_tank(out, site_id, &spec)
+                }) {
+                    sink.fatal = Some(e);
+                    return;
+                }
                 summary.tanks += 1;
                 let barometer_pa =
                     crate::records::barometer_pa(barometer.map(|k| k * 1e3), elevation);
@@ -163,6 +200,7 @@ fn import_tanks(
                     },
                 );
             }
+            Err(e) if storage_failure(&e) => sink.fatal = Some(e.into()),
             Err(e) => sink.push(
                 &file,
                 line,
@@ -187,6 +225,7 @@ fn unknown_tank(name: &str) -> FieldError {
 
 fn import_readings(
     conn: &Connection,
+    chain: &mut ChainWriter,
     t: &mut Table<'_>,
     sink: &mut Sink,
     tanks: &HashMap<String, TankRecord>,
@@ -239,7 +278,16 @@ fn import_readings(
             return sink.push(&file, line, e);
         }
         match execute_reading(&mut insert, tank.id, &r, None) {
-            Ok(()) => summary.readings += 1,
+            Ok(()) => {
+                let id = conn.last_insert_rowid();
+                match chain.append(conn, Kind::Reading, id, Action::Insert, |out| {
+                    chain::canonical_reading(out, tank.id, &r)
+                }) {
+                    Ok(()) => summary.readings += 1,
+                    Err(e) => sink.fatal = Some(e),
+                }
+            }
+            Err(e) if storage_failure(&e) => sink.fatal = Some(e.into()),
             Err(e) => sink.push(
                 &file,
                 line,
@@ -258,6 +306,7 @@ fn import_readings(
 
 fn import_deliveries(
     conn: &Connection,
+    chain: &mut ChainWriter,
     t: &mut Table<'_>,
     sink: &mut Sink,
     tanks: &HashMap<String, TankRecord>,
@@ -298,7 +347,12 @@ fn import_deliveries(
             Err(errs) => return sink.push_all(&file, line, errs),
         };
         match write_delivery(conn, tank.id, &d, None) {
-            Ok(_) => summary.deliveries += 1,
+            Ok(id) => match chain.append(conn, Kind::Delivery, id.0, Action::Insert, |out| {
+                chain::canonical_delivery(out, tank.id, &d)
+            }) {
+                Ok(()) => summary.deliveries += 1,
+                Err(e) => sink.fatal = Some(e),
+            },
             Err(StoreError::Invalid(errors)) => sink.push_all(
                 &file,
                 line,
@@ -312,7 +366,7 @@ fn import_deliveries(
                     })
                     .collect(),
             ),
-            Err(e) => sink.push(&file, line, FieldError::new("row", e.to_string())),
+            Err(e) => sink.fatal = Some(e),
         }
     })
 }

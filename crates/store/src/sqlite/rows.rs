@@ -245,12 +245,13 @@ fn write_strapping(conn: &Connection, tank: TankId, points: &[(f64, f64)]) -> ru
 
 // ---- sites ----
 
+/// The live site of this name (and false), or a new one (and true).
 pub(crate) fn site_id_for(
     conn: &Connection,
     name: &str,
     elevation_m: Option<f64>,
     barometer_kpa: Option<f64>,
-) -> Result<SiteId, FieldError> {
+) -> Result<(SiteId, bool), FieldError> {
     let existing = conn
         .query_row(
             "SELECT id, elevation_m, barometer_kpa FROM sites WHERE name = ?1 AND deleted_at IS NULL",
@@ -275,7 +276,7 @@ pub(crate) fn site_id_for(
                     ),
                 ));
             }
-            Ok(SiteId(id))
+            Ok((SiteId(id), false))
         }
         None => {
             conn.execute(
@@ -283,7 +284,7 @@ pub(crate) fn site_id_for(
                 params![name, elevation_m, barometer_kpa, barometer_kpa.map(|k| k * 1e3)],
             )
             .map_err(|e| FieldError::new("site", e.to_string()))?;
-            Ok(SiteId(conn.last_insert_rowid()))
+            Ok((SiteId(conn.last_insert_rowid()), true))
         }
     }
 }
