@@ -12,4 +12,3 @@ CREATE TABLE chain (
     digest     BLOB NOT NULL,
     link       BLOB NOT NULL
 );
-CREATE INDEX chain_record ON chain(kind, record_id, seq);

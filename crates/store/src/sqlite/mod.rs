@@ -91,6 +91,13 @@ impl Store {
         Ok(Self { conn })
     }
 
+    /// Switch this connection to synchronous=NORMAL, to measure what durable commits cost beside it
+    /// (the `commit_cost` example); the ledger itself always runs with FULL.
+    #[doc(hidden)]
+    pub fn set_synchronous_normal_for_benchmark(&self) -> Result<(), StoreError> {
+        Ok(self.conn.pragma_update(None, "synchronous", "NORMAL")?)
+    }
+
     fn not_found(what: &'static str, key: impl ToString) -> StoreError {
         StoreError::NotFound {
             what,
