@@ -1,10 +1,12 @@
 //! The cryoledger desktop app (eframe/egui), as a library so tests can drive it.
 //!
-//! Data flows one way: the store and the engines feed [`view::ViewState`] (built in [`build`]); panels
-//! draw from it and emit [`action::Action`]s; [`CryoApp`] drains the actions in `logic`, where
-//! [`action::Core::handle`] is the only code that writes to the store and rebuilds what changed.
-//! The fleet summary (every tank's latest contents and open findings) runs on a named background
-//! thread. Contents follow the liquid's thermal history from the audit engine ([`thermal`]).
+//! Data flows one way: the store and the bridge to the engines (`evaluate`) feed [`view::ViewState`]
+//! (built in [`build`]); panels draw from it and emit [`action::Action`]s; [`CryoApp`] drains the
+//! actions in `logic`, where [`action::Core::handle`] is the only code that can write to the store (it
+//! keeps it private) and rebuilds what changed, one [`flow::Flow`] per record kind. The fleet summary —
+//! the fleet audit the command line gives, every tank's latest contents and open findings, and the
+//! check of the ledger's history — runs on a named background thread. Contents follow the liquid's
+//! thermal history from the audit engine.
 //!
 //! Start-up options for screenshots and demos: `CRYOLEDGER_OPEN` opens a page
 //! (`tank:NAME[:now|readings|deliveries|trend]`, `tank:NAME:readings:latest` to open the latest

@@ -205,7 +205,7 @@ pub struct TankAudit {
     pub findings: Vec<Finding>,
     /// Use rate and the next fill.
     pub forecast: Option<Forecast>,
-    /// Every reading's state when [`AuditOptions::keep_readings`].
+    /// Every reading's state when [`crate::AuditOptions::keep_readings`].
     pub readings: Vec<ReadingState>,
     /// The state behind the latest reading the engine accepted.
     pub latest: Option<ReadingState>,

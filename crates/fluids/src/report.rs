@@ -8,7 +8,7 @@ use crate::PhaseKind;
 /// One single-phase state at (T, p).
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
 pub struct StateReport {
-    /// Fluid name ([`FluidId::name`]).
+    /// Fluid name ([`crate::FluidId::name`]).
     pub fluid: &'static str,
     /// K.
     pub temperature_k: f64,

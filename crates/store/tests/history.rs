@@ -120,8 +120,9 @@ fn changes_outside_cryoledger_are_named() {
     );
 }
 
-/// With `CRYOLEDGER_CHILD_DB` set, this test is the writer the power-cut test kills: it adds readings
-/// one at a time and prints each one's time after its commit.
+/// With `CRYOLEDGER_CHILD_DB` set, this test is the writer the power-cut and backup tests run: it adds
+/// readings one at a time, edits every tenth one with a reason, and prints each one's time after its
+/// commit.
 #[test]
 fn child_writer() {
     let Some(path) = std::env::var_os("CRYOLEDGER_CHILD_DB") else {
@@ -136,7 +137,11 @@ fn child_writer() {
     for i in 0.. {
         let ms = start + i * 60_000;
         let r = reading(&s, ms, 40.0 + (i % 50) as f64);
-        s.add_reading(t.id, &r).unwrap();
+        let id = s.add_reading(t.id, &r).unwrap();
+        if i % 10 == 9 {
+            s.edit_reading(id, &reading(&s, ms, 39.5), "read again")
+                .unwrap();
+        }
         println!("saved {ms}");
     }
 }
@@ -212,8 +217,9 @@ fn a_killed_writer_loses_nothing_it_reported() {
     );
 }
 
-/// A backup taken while another process writes readings opens, verifies, and holds a prefix of what
-/// the writer saved (one consistent state: SQLite's online backup restarts when the source changes).
+/// A backup taken while another process adds and edits readings opens, verifies, and holds a prefix of
+/// what the writer saved (one consistent state: SQLite's online backup restarts when the source
+/// changes).
 #[test]
 fn a_backup_while_another_process_writes() {
     let dir = tempfile::tempdir().unwrap();
