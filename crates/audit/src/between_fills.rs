@@ -102,7 +102,8 @@ pub(crate) fn findings(
                     None => p.2,
                 })
                 .sum();
-            let days = (to - from) as f64 / (DAY_S * 1000.0);
+            // the rate over the intervals judged (a fill's own interval in the run is not one)
+            let days = part.iter().map(|p| (p.1 - p.0) as f64).sum::<f64>() / (DAY_S * 1000.0);
             let usage = part.iter().map(|p| p.4).sum::<f64>() / part.len() as f64;
             let rate = excess / days.max(1e-9);
             if excess >= opts.leak_min_fraction * ctx.full_mass_kg
