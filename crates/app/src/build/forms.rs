@@ -29,7 +29,7 @@ pub fn split_value_unit(text: &str) -> (&str, &str) {
 }
 
 /// The liquid temperature field in K text (`83 K`, `-190 C`, `-310 F`; a bare number is K).
-fn liquid_k_text(text: &str) -> Result<String, String> {
+fn liquid_k_text(text: &str) -> Result<String, units::UnitError> {
     let t = text.trim();
     if t.is_empty() {
         return Ok(String::new());
@@ -38,9 +38,7 @@ fn liquid_k_text(text: &str) -> Result<String, String> {
     if u.is_empty() {
         return Ok(n.to_owned());
     }
-    units::parse_temperature(t)
-        .map(|e| e.si_value().to_string())
-        .map_err(|e| e.to_string())
+    units::parse_temperature(t).map(|e| e.si_value().to_string())
 }
 
 /// Check the reading form against its tank; on success the checked reading and the preview of what
@@ -66,10 +64,7 @@ pub fn check_reading(
     let liquid = match liquid_k_text(&form.liquid_temperature) {
         Ok(k) => k,
         Err(e) => {
-            extra.push(FieldMessage {
-                field: "liquid_temperature_k".into(),
-                reason: e,
-            });
+            extra.push(FieldMessage::new("liquid_temperature_k", e.to_string()));
             String::new()
         }
     };
@@ -334,10 +329,7 @@ pub fn check_setup(
                 preview.full_dp = lines;
                 preview.span_warning = warn;
             }
-            Err(e) => extra.push(FieldMessage {
-                field: "diameter_m".into(),
-                reason: e,
-            }),
+            Err(e) => extra.push(FieldMessage::new("diameter_m", crate::describe(&e))),
         }
     }
     let check = FormCheck {
@@ -351,8 +343,11 @@ pub fn check_setup(
 
 /// Full-tank DP of a spec at 1 atm saturation (coldest usual liquid) and at the relief pressure,
 /// in the gauge's unit, and a warning when the span is too small.
-fn full_dp_lines(s: &TankSpec, units: UnitSystem) -> Result<(Vec<String>, Option<String>), String> {
-    let e = evaluate::engine_tank(s).map_err(|e| e.to_string())?;
+fn full_dp_lines(
+    s: &TankSpec,
+    units: UnitSystem,
+) -> Result<(Vec<String>, Option<String>), evaluate::EvalError> {
+    let e = evaluate::engine_tank(s)?;
     let opts = ContentsOptions::default();
     let u = s.dp_unit;
     let mut lines = Vec::new();
