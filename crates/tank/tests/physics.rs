@@ -203,3 +203,83 @@ fn chart_comparison() {
         cmp.mass_error_fraction
     );
 }
+
+/// The DP formula g[(ρL − ρV) h + (ρV − ρline) H] against a first-principles hydrostatic integral: the
+/// pressure at the bottom tap found by integrating dp/dz = ρ(T, p) g down the vapour and the liquid,
+/// each at its local pressure, and at the cell's low side down a sensing line whose gas runs from 120 K
+/// at the top tap to 288 K at the cell (a linear temperature profile), each column in 2,000 steps
+/// (midpoint rule; the densities from the equation of state at every step). The formula, given the
+/// line temperature whose gas density is the column's mean, agrees within 2e-4 of the DP (measured 1.3e-4: the part the
+/// formula leaves out: the liquid's and the gases' compression over the column itself). Nitrogen
+/// saturated at 10 bar abs, 3 m of liquid in a 5 m vertical vessel. Physics identity, no source.
+#[test]
+fn dp_formula_against_a_hydrostatic_integral() {
+    let f = fluid(FluidId::Nitrogen);
+    let (p_top, h, big_h) = (10e5_f64, 3.0_f64, 5.0_f64);
+    let g = tank::STANDARD_GRAVITY;
+    let sat = f.saturation_from_pressure(p_top).unwrap();
+    let t_liquid = sat.temperature_k;
+    let steps = 2000;
+    // the high side: vapour from the top down to the surface, then liquid to the bottom
+    let mut p = p_top;
+    let dz = (big_h - h) / f64::from(steps);
+    for _ in 0..steps {
+        let rho = f
+            .density_from_temperature_pressure(t_liquid, p, fluids::Phase::Gas)
+            .unwrap_or(sat.vapor_density_kg_m3);
+        p += rho * g * dz;
+    }
+    let dz = h / f64::from(steps);
+    for _ in 0..steps {
+        let rho = f
+            .density_from_temperature_pressure(t_liquid, p, fluids::Phase::Liquid)
+            .unwrap();
+        p += rho * g * dz;
+    }
+    let high = p;
+    // the low side: the sensing line from the top tap down to the cell, warming as it goes
+    let t_line = |z_from_top: f64| 120.0 + (288.0 - 120.0) * z_from_top / big_h;
+    let mut p = p_top;
+    let mut mean_rho = 0.0;
+    let dz = big_h / f64::from(steps);
+    for i in 0..steps {
+        let z = (f64::from(i) + 0.5) * dz;
+        let rho = f
+            .density_from_temperature_pressure(t_line(z), p, fluids::Phase::Gas)
+            .unwrap();
+        mean_rho += rho / f64::from(steps);
+        p += rho * g * dz;
+    }
+    let integral_dp = high - p;
+    // the line temperature whose gas density at the top pressure is the column's mean (bisection)
+    let (mut lo, mut hi) = (100.0_f64, 400.0_f64);
+    for _ in 0..100 {
+        let mid = 0.5 * (lo + hi);
+        let rho = f
+            .density_from_temperature_pressure(mid, p_top, fluids::Phase::Gas)
+            .unwrap();
+        if rho > mean_rho { lo = mid } else { hi = mid }
+    }
+    let t_eff = 0.5 * (lo + hi);
+    let engine = Tank::new(
+        Cylinder::new(Orientation::Vertical, 2.0, big_h, Head::Flat).unwrap(),
+        f,
+    );
+    let c = Conditions::saturated(p_top).with_line_temperature_k(t_eff);
+    let formula_dp = engine.dp_from_level(h, &c).unwrap();
+    assert!(
+        (formula_dp / integral_dp - 1.0).abs() < 2e-4,
+        "formula {formula_dp} Pa, integral {integral_dp} Pa (line at {t_eff:.1} K)"
+    );
+    // and the line's temperature matters: taken at 288 K throughout, the formula is off by more
+    let warm = engine
+        .dp_from_level(
+            h,
+            &Conditions::saturated(p_top).with_line_temperature_k(288.0),
+        )
+        .unwrap();
+    assert!(
+        (warm / integral_dp - 1.0).abs() > 1e-3,
+        "{warm} {integral_dp}"
+    );
+}
