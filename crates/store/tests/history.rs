@@ -25,7 +25,7 @@ fn seeded(path: &Path) -> Store {
 }
 
 fn reading(s: &Store, ms: i64, dp: f64) -> ReadingEntry {
-    let t = s.tank_by_name("T-1").unwrap();
+    let t = s.tanks().unwrap().into_iter().next().unwrap();
     let time = units::rfc3339_from_ms(ms);
     let dp = format!("{dp}");
     ReadingFields {
@@ -262,4 +262,38 @@ fn a_backup_while_another_process_writes() {
         Store::open(&db).unwrap().backup(&copy).is_err(),
         "a backup never overwrites"
     );
+}
+
+/// A database of the older schema (version 1, before the hash chain) opens, is brought up to date with
+/// its data kept, and its records are adopted into the chain: it verifies, and a change made after the
+/// upgrade through cryoledger still verifies (the migration path, common practice, no source).
+#[test]
+fn an_older_schema_is_upgraded_with_its_data() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("v1.db");
+    let c = rusqlite::Connection::open(&path).unwrap();
+    c.execute_batch(MIGRATION_FILES[0].1).unwrap();
+    c.pragma_update(None, "user_version", 1).unwrap();
+    c.execute_batch(
+        "INSERT INTO sites (name) VALUES ('Old Yard');
+         INSERT INTO tanks (site_id, name, fluid, orientation, diameter_m, length_m, heads,
+             line_temperature_c, line_temperature_k) VALUES (1, 'OLD-1', 'nitrogen', 'vertical', 2, 5,
+             'flat', 15, 288.15);
+         INSERT INTO readings (tank_id, time_text, time_ms, dp_value, dp_unit, dp_pa, pressure_value,
+             pressure_unit, pressure_pa) VALUES (1, '2026-01-05T08:00:00Z', 1767600000000, 80, 'inH2O',
+             19927.1, 8, 'barg', 8e5);",
+    )
+    .unwrap();
+    drop(c);
+    let mut s = Store::open(&path).unwrap();
+    assert_eq!(s.schema_version().unwrap(), MIGRATION_FILES.len() as i64);
+    let t = s.tank_by_name("OLD-1").unwrap();
+    assert_eq!(s.readings(t.id, None).unwrap().len(), 1);
+    let v = s.verify().unwrap();
+    assert!(v.problems.is_empty(), "{:?}", v.problems);
+    assert_eq!((v.records, v.links), (3, 3));
+    s.add_reading(t.id, &reading(&s, 1_767_686_400_000, 75.0))
+        .unwrap();
+    let v = s.verify().unwrap();
+    assert!(v.problems.is_empty() && v.links == 4, "{v:?}");
 }
