@@ -136,6 +136,18 @@ def score(truth: dict, audit: dict, profile: str) -> dict:
             "missing": sum(1 for f in sel if verdict(f) == "missing"),
         }
 
+    # the k = 2 interval's coverage of honest fills (tanks with a planted gauge fault left out): a
+    # residual within twice its stated standard uncertainty
+    covered = total_cov = 0
+    for f in fills_t:
+        a = by_ticket.get(f["ticket"])
+        if not (a and f["honest"] and f["tank"] not in gauge_tanks):
+            continue
+        sigma, resid = a.get("sigma_kg") or 0.0, a.get("residual_kg")
+        if sigma > 0 and resid is not None and a.get("before") and a.get("after"):
+            total_cov += 1
+            covered += abs(resid) <= 2.0 * sigma
+
     fig = {"all": block(fills_t),
            "routine_only": block([f for f in fills_t if not f["has_driver_readings"]]),
            "driver": block([f for f in fills_t if f["has_driver_readings"]])}
@@ -154,6 +166,7 @@ def score(truth: dict, audit: dict, profile: str) -> dict:
             "routine_total": sum(1 for f in mine if not f["has_driver_readings"]),
         }
     fig["short_vehicles"] = per_vehicle
+    fig["coverage"] = {"covered": covered, "total": total_cov}
 
     # gauges
     gauges = {g.get("tank"): g for g in audit.get("gauges", [])}
@@ -243,6 +256,10 @@ def score(truth: dict, audit: dict, profile: str) -> dict:
             fmt_pct(r["short_found"], r["short_total"]))
         add("routine-only: honest fills flagged <= 3 %", le(r["honest_flagged"], r["honest_total"], 3), fmt_pct(r["honest_flagged"], r["honest_total"]))
         add("routine-only: fills inconclusive <= 5 %", le(r["inconclusive"], r["fills"], 5), fmt_pct(r["inconclusive"], r["fills"]))
+        cov = fig["coverage"]
+        cov_pct = pct(cov["covered"], cov["total"])
+        add("k = 2 covers about 95 % of honest fills (90-99.5 %)",
+            cov_pct is not None and 90.0 <= cov_pct <= 99.5, fmt_pct(cov["covered"], cov["total"]))
         g = fig["gauges"]
         add("drifting gauge found", g["drift_reported"] is not None, f"{g['drift_tank']}: {g['drift_status']}")
         add("stepped gauge found", g["step_reported"] is not None, f"{g['step_tank']}: {g['step_status']}")
