@@ -2,7 +2,7 @@
 """Generate an independent test fleet, import it into cryoledger, run its audit and score the result.
 
 Usage:
-  python tools/indep/check.py --bin target/debug/cryoledger [--seed N] [--profile strict|current]
+  python tools/indep/check.py --bin target/debug/cryoledger [--seed N] [--profile strict|floor|current]
                               [--workdir DIR] [--json-out FILE] [fleet options, see fleet.py]
 
 Profiles:
@@ -10,6 +10,10 @@ Profiles:
            (each also among fills bracketed only by routine readings), both gauge faults found and the
            step dated within 7 days, both short vehicles biased and no honest one, the unlogged fill and
            the leak found with at most two other findings, no healthy gauge flagged.
+  floor    what the audit has met on every fleet measured so far: <= 5 % of honest fills flagged,
+           <= 8 % inconclusive, k = 2 covering 90-99.5 % of honest fills, the drifting gauge, the
+           always-short vehicle and the unlogged fill found, no healthy gauge flagged, at most two other
+           findings (same fleet settings as strict).
   current  >= 90 % of the fills of a vehicle 2.5 % short on every fill found, <= 3 % of honest fills
            flagged, every planted fault reported, no healthy gauge or honest vehicle flagged.
 
@@ -247,6 +251,14 @@ def score(truth: dict, audit: dict, profile: str) -> dict:
     def ge(x, b, lim):
         return b > 0 and 100.0 * x / b >= lim
 
+    def add_coverage_and_drift():
+        cov = fig["coverage"]
+        cov_pct = pct(cov["covered"], cov["total"])
+        add("k = 2 covers about 95 % of honest fills (90-99.5 %)",
+            cov_pct is not None and 90.0 <= cov_pct <= 99.5, fmt_pct(cov["covered"], cov["total"]))
+        g = fig["gauges"]
+        add("drifting gauge found", g["drift_reported"] is not None, f"{g['drift_tank']}: {g['drift_status']}")
+
     vp = fig["vehicles"]["planted"]
     if profile == "strict":
         add("short fills found >= 90 %", ge(a["short_found"], a["short_total"], 90), fmt_pct(a["short_found"], a["short_total"]))
@@ -256,12 +268,8 @@ def score(truth: dict, audit: dict, profile: str) -> dict:
             fmt_pct(r["short_found"], r["short_total"]))
         add("routine-only: honest fills flagged <= 3 %", le(r["honest_flagged"], r["honest_total"], 3), fmt_pct(r["honest_flagged"], r["honest_total"]))
         add("routine-only: fills inconclusive <= 5 %", le(r["inconclusive"], r["fills"], 5), fmt_pct(r["inconclusive"], r["fills"]))
-        cov = fig["coverage"]
-        cov_pct = pct(cov["covered"], cov["total"])
-        add("k = 2 covers about 95 % of honest fills (90-99.5 %)",
-            cov_pct is not None and 90.0 <= cov_pct <= 99.5, fmt_pct(cov["covered"], cov["total"]))
+        add_coverage_and_drift()
         g = fig["gauges"]
-        add("drifting gauge found", g["drift_reported"] is not None, f"{g['drift_tank']}: {g['drift_status']}")
         add("stepped gauge found", g["step_reported"] is not None, f"{g['step_tank']}: {g['step_status']}")
         add("step dated within 7 days", g["step_date_error_days"] is not None and g["step_date_error_days"] <= 7.0,
             f"true {g['step_date']}, found {g['step_date_found']}"
@@ -273,6 +281,20 @@ def score(truth: dict, audit: dict, profile: str) -> dict:
         fd = fig["findings"]
         add("unlogged fill found", fd["unlogged_matched"] > 0, f"{fd['unlogged_matched']} finding(s) at {fd['unlogged_tank']}")
         add("leak found", fd["leak_matched"] > 0, f"{fd['leak_matched']} finding(s) at {fd['leak_tank']}")
+        add("at most 2 other findings", fd["other"] <= 2, str(fd["other"]))
+    elif profile == "floor":
+        # What the audit has met on every independent fleet measured so far (six seeds); CI gates on it
+        # at a fixed seed so a regression cannot land while the strict figures are still out of reach.
+        sa_keys = [k for k in vp if per_vehicle[k]["role"] == "short_all"]
+        add("honest fills flagged <= 5 %", le(a["honest_flagged"], a["honest_total"], 5), fmt_pct(a["honest_flagged"], a["honest_total"]))
+        add("fills inconclusive <= 8 %", le(a["inconclusive"], a["fills"], 8), fmt_pct(a["inconclusive"], a["fills"]))
+        add_coverage_and_drift()
+        g = fig["gauges"]
+        add("no healthy gauge flagged", not g["false"], ", ".join(g["false"]) or "none")
+        add("always-short vehicle biased", bool(sa_keys) and all(vp[k]["biased"] for k in sa_keys),
+            ", ".join(f"{k}: {vp[k]['status']}" for k in sa_keys) or "none planted")
+        fd = fig["findings"]
+        add("unlogged fill found", fd["unlogged_matched"] > 0, f"{fd['unlogged_matched']} finding(s) at {fd['unlogged_tank']}")
         add("at most 2 other findings", fd["other"] <= 2, str(fd["other"]))
     else:
         sa = [x for x in per_vehicle.values() if x["role"] == "short_all"]
@@ -350,7 +372,7 @@ def print_report(fig: dict, truth: dict, profile: str) -> None:
 def main(argv=None) -> int:
     ap = argparse.ArgumentParser(description="Score cryoledger's audit on an independent fleet.")
     ap.add_argument("--bin", required=True, help="the cryoledger binary")
-    ap.add_argument("--profile", choices=("strict", "current"), default="strict")
+    ap.add_argument("--profile", choices=("strict", "floor", "current"), default="strict")
     ap.add_argument("--workdir", default=None,
                     help="folder for the fleet, database and audit (kept); default a temporary folder, "
                          "removed at the end unless --keep")
