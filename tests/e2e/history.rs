@@ -36,22 +36,18 @@ fn backup_copies_and_verifies() {
     let dir = tempfile::tempdir().unwrap();
     let db = demo_db(dir.path());
     let copy = dir.path().join("copy.db");
-    let out = bin()
-        .args(["backup", "--db"])
-        .arg(&db)
-        .arg("--out")
-        .arg(&copy)
-        .output()
-        .unwrap();
-    expect_success(&out);
+    let backup = || {
+        bin()
+            .args(["backup", "--db"])
+            .arg(&db)
+            .arg("--out")
+            .arg(&copy)
+            .output()
+            .unwrap()
+    };
+    expect_success(&backup());
     assert_eq!(dump(&db), dump(&copy));
-    let again = bin()
-        .args(["backup", "--db"])
-        .arg(&db)
-        .arg("--out")
-        .arg(&copy)
-        .output()
-        .unwrap();
+    let again = backup();
     assert!(!again.status.success());
     assert!(String::from_utf8_lossy(&again.stderr).contains("never overwrites"));
 }
