@@ -80,6 +80,12 @@ fn opt(out: &mut String, v: Option<f64>) {
     }
 }
 
+/// An optional entered pressure: its value, then its unit's symbol (empty when absent).
+fn opt_entered(out: &mut String, v: Option<units::Entered<units::TankPressureUnit>>) {
+    opt(out, v.map(|p| p.value));
+    text(out, v.map(|p| units::Unit::symbol(p.unit)).unwrap_or(""));
+}
+
 fn text(out: &mut String, s: &str) {
     out.push_str(s);
     out.push(SEP);
@@ -108,13 +114,7 @@ pub(crate) fn canonical_tank(out: &mut String, site: SiteId, t: &TankSpec) {
     text(out, units::Unit::symbol(t.dp_unit));
     opt(out, t.gauge_span);
     opt(out, t.gauge_accuracy_percent);
-    opt(out, t.relief_pressure.map(|p| p.value));
-    text(
-        out,
-        t.relief_pressure
-            .map(|p| units::Unit::symbol(p.unit))
-            .unwrap_or(""),
-    );
+    opt_entered(out, t.relief_pressure);
     opt(out, t.reorder_percent);
     opt(out, t.ner_percent_per_day);
     for (l, v) in &t.strapping {
@@ -144,13 +144,7 @@ pub(crate) fn canonical_delivery(out: &mut String, tank: TankId, d: &DeliveryEnt
     text(out, units::Unit::symbol(d.quantity.unit));
     text(out, &d.carrier);
     text(out, &d.vehicle);
-    opt(out, d.supply_pressure.map(|p| p.value));
-    text(
-        out,
-        d.supply_pressure
-            .map(|p| units::Unit::symbol(p.unit))
-            .unwrap_or(""),
-    );
+    opt_entered(out, d.supply_pressure);
 }
 
 fn sha(bytes: &[u8]) -> [u8; 32] {
