@@ -63,6 +63,10 @@ pub struct AuditArgs {
     /// Keep each tank's NER setting (no fit)
     #[arg(long)]
     pub no_ner_fit: bool,
+    /// Judge each fill with the gauge as it reads, not against its scale fitted from the tank's
+    /// other fills
+    #[arg(long)]
+    pub no_gauge_scale: bool,
     /// Worker threads (default: the machine's cores)
     #[arg(long, value_name = "N")]
     pub threads: Option<usize>,
@@ -85,6 +89,7 @@ fn options(a: &AuditArgs) -> AuditOptions {
     AuditOptions {
         thermal_history: !a.no_thermal_history,
         fit_ner: !a.no_ner_fit,
+        calibrate_gauges: !a.no_gauge_scale,
         coverage_factor: a.coverage_factor,
         materiality_fraction: a.materiality_percent / 100.0,
         meter_repeatability_percent: a.meter_repeatability_percent,

@@ -46,16 +46,20 @@ fn json_contract() {
     }
 }
 
-/// The numbers in a fill's number-bearing fields, as they could be printed (rounded to 0 or 1 decimals,
-/// with or without sign).
+/// The numbers in a fill's number-bearing fields and in its nested records (the gauge's scale), as
+/// they could be printed (rounded to 0, 1 or 4 decimals, with or without sign).
 fn printed_forms(f: &serde_json::Value) -> Vec<String> {
     let mut out = Vec::new();
     if let Some(o) = f.as_object() {
         for v in o.values() {
+            if v.is_object() {
+                out.extend(printed_forms(v));
+            }
             let Some(x) = v.as_f64() else { continue };
             for x in [x, -x] {
                 out.push(format!("{x:.0}"));
                 out.push(format!("{x:.1}"));
+                out.push(format!("{x:.4}"));
                 out.push(format!("{x}"));
             }
         }

@@ -285,14 +285,13 @@ def score(truth: dict, audit: dict, profile: str) -> dict:
     elif profile == "floor":
         # What the audit has met on every independent fleet measured so far (six seeds); CI gates on it
         # at a fixed seed so a regression cannot land while the strict figures are still out of reach.
-        sa_keys = [k for k in vp if per_vehicle[k]["role"] == "short_all"]
-        add("honest fills flagged <= 5 %", le(a["honest_flagged"], a["honest_total"], 5), fmt_pct(a["honest_flagged"], a["honest_total"]))
-        add("fills inconclusive <= 8 %", le(a["inconclusive"], a["fills"], 8), fmt_pct(a["inconclusive"], a["fills"]))
+        add("honest fills flagged <= 3 %", le(a["honest_flagged"], a["honest_total"], 3), fmt_pct(a["honest_flagged"], a["honest_total"]))
+        add("fills inconclusive <= 6 %", le(a["inconclusive"], a["fills"], 6), fmt_pct(a["inconclusive"], a["fills"]))
         add_coverage_and_drift()
         g = fig["gauges"]
         add("no healthy gauge flagged", not g["false"], ", ".join(g["false"]) or "none")
-        add("always-short vehicle biased", bool(sa_keys) and all(vp[k]["biased"] for k in sa_keys),
-            ", ".join(f"{k}: {vp[k]['status']}" for k in sa_keys) or "none planted")
+        add("both short vehicles biased", bool(vp) and all(x["biased"] for x in vp.values()),
+            ", ".join(f"{k}: {x['status']}" for k, x in vp.items()) or "none planted")
         fd = fig["findings"]
         add("unlogged fill found", fd["unlogged_matched"] > 0, f"{fd['unlogged_matched']} finding(s) at {fd['unlogged_tank']}")
         add("at most 2 other findings", fd["other"] <= 2, str(fd["other"]))

@@ -127,6 +127,8 @@ pub(crate) fn balance(
         usage_share_percent: None,
         gauge_drift_percent_per_year: None,
         gauge_step: None,
+        gauge_scale: None,
+        sigma_gauge_scale_kg: 0.0,
         explanation: String::new(),
     };
     let eb = b.and_then(|i| evals.get(i).copied().flatten().map(|e| (i, e)));
@@ -189,14 +191,7 @@ pub(crate) fn balance(
     out.residual_kg = d.billed_kg - (out.gained_kg + out.drawn_kg);
     out.sigma_other_tickets_kg = others_var.sqrt();
     out.sigma_meter_kg = (out.sigma_meter_kg.powi(2) + others_var).sqrt();
-    out.sigma_kg = (out.sigma_readings_shared_kg.powi(2)
-        + out.sigma_readings_independent_kg.powi(2)
-        + out.sigma_usage_kg.powi(2)
-        + out.sigma_meter_kg.powi(2))
-    .sqrt();
-    if out.sigma_kg > 0.0 {
-        out.usage_share_percent = Some(100.0 * (out.sigma_usage_kg / out.sigma_kg).powi(2));
-    }
+    total_sigma(&mut out);
     out.ratio = if d.billed_kg > 0.0 {
         (out.gained_kg + out.drawn_kg) / d.billed_kg
     } else {
@@ -210,6 +205,27 @@ pub(crate) fn balance(
     out.limit_kg = (k * out.sigma_kg).max(opts.materiality_fraction * d.billed_kg.abs());
     set_verdict(&mut out, opts);
     out
+}
+
+/// The balance's standard uncertainty from its parts (in quadrature) and the use model's share.
+pub(crate) fn total_sigma(b: &mut Balance) {
+    b.sigma_kg = (b.sigma_readings_shared_kg.powi(2)
+        + b.sigma_readings_independent_kg.powi(2)
+        + b.sigma_usage_kg.powi(2)
+        + b.sigma_meter_kg.powi(2)
+        + b.sigma_gauge_scale_kg.powi(2))
+    .sqrt();
+    if b.sigma_kg > 0.0 {
+        b.usage_share_percent = Some(100.0 * (b.sigma_usage_kg / b.sigma_kg).powi(2));
+    }
+}
+
+/// After a part of the budget changed: the total, the limit and the verdict again.
+pub(crate) fn rejudge(b: &mut Balance, opts: &AuditOptions) {
+    total_sigma(b);
+    b.limit_kg =
+        (b.coverage_factor * b.sigma_kg).max(opts.materiality_fraction * b.billed_kg.abs());
+    set_verdict(b, opts);
 }
 
 /// Decide the verdict and write the explanation (also used when a drift note is added).
@@ -239,8 +255,17 @@ pub(crate) fn set_verdict(b: &mut Balance, opts: &AuditOptions) {
             )
         })
         .unwrap_or_default();
+    let scale = b
+        .gauge_scale
+        .map(|g| {
+            format!(
+                ", read with the gauge's scale {:.4} ± {:.4} from {} other fills at the tank",
+                g.scale, g.u, g.fills
+            )
+        })
+        .unwrap_or_default();
     let numbers = format!(
-        "billed {} kg; between {bracket} the tank gained {} kg{others} and the customer drew about {} kg{share}",
+        "billed {} kg; between {bracket} the tank gained {} kg{others} and the customer drew about {} kg{share}{scale}",
         fmt_kg(b.billed_kg),
         fmt_kg(b.gained_kg),
         fmt_kg(b.drawn_kg)
@@ -295,14 +320,19 @@ pub(crate) fn set_verdict(b: &mut Balance, opts: &AuditOptions) {
     };
     b.verdict = verdict;
     b.explanation = text;
+    let followed = if b.gauge_scale.is_some() {
+        "its scale at this fill is fitted from the fills around it"
+    } else {
+        "so the gain is doubtful"
+    };
     if let Some(drift) = b.gauge_drift_percent_per_year {
         b.explanation.push_str(&format!(
-            " The tank's gauge is drifting ({drift:.1} % of span per year), so the gain is doubtful."
+            " The tank's gauge is drifting ({drift:.1} % of span per year); {followed}."
         ));
     }
     if let Some(step) = b.gauge_step {
         b.explanation.push_str(&format!(
-            " The tank's gauge stepped ({:.1} % of span) before this fill, so the gain is doubtful.",
+            " The tank's gauge stepped ({:.1} % of span) before this fill; {followed}.",
             step.size_percent
         ));
     }

@@ -1,6 +1,9 @@
 //! Tank levels and vehicle effects of the fills' ratios (gained + drawn) / billed, fitted jointly and
 //! robustly, so that one vehicle's shortfall does not leak into another's estimate.
 //!
+//! Vehicle effects are centred on the median vehicle of each connected group of tanks and vehicles
+//! (vehicles that never share a tank, directly or through others, cannot be compared).
+//!
 //! ratio = tank level + vehicle effect + residual, fitted by iteratively reweighted least squares with
 //! Huber's weights on the residuals scaled by their median absolute deviation (Huber, "Robust
 //! Statistics", 1981; Holland and Welsch, "Robust regression using iteratively reweighted
@@ -21,6 +24,10 @@ pub(crate) struct Effects {
     pub(crate) tank: Vec<f64>,
     /// Each vehicle's effect (centred on the median vehicle).
     pub(crate) vehicle: Vec<f64>,
+    /// Each row's final Huber weight.
+    pub(crate) weight: Vec<f64>,
+    /// The residuals' robust scale (MAD).
+    pub(crate) scale: f64,
 }
 
 /// Row indexes grouped by a key in 0..n.
@@ -34,19 +41,55 @@ pub(crate) fn groups(keys: impl Iterator<Item = usize>, n: usize) -> Vec<Vec<usi
     out
 }
 
-fn centre(vehicle: &mut [f64], tank: &mut [f64], counts: &[usize]) {
-    let active: Vec<f64> = vehicle
-        .iter()
-        .zip(counts)
-        .filter(|(_, n)| **n > 0)
-        .map(|(v, _)| *v)
-        .collect();
-    let c = median(&active).unwrap_or(0.0);
-    for x in vehicle.iter_mut() {
-        *x -= c;
+/// Connected components of the tank–vehicle graph (a vehicle and a tank are joined when the vehicle
+/// filled the tank): (component of each tank, component of each vehicle). Effects are identified only
+/// within a component (a fleet's nitrogen trailers never meet its argon tanks), so each is centred
+/// on its own.
+fn components(rows: &[Row], tanks: usize, vehicles: usize) -> (Vec<usize>, Vec<usize>) {
+    // union-find over tanks 0..tanks and vehicles tanks..tanks+vehicles
+    let mut parent: Vec<usize> = (0..tanks + vehicles).collect();
+    fn find(p: &mut [usize], mut x: usize) -> usize {
+        while p[x] != x {
+            p[x] = p[p[x]];
+            x = p[x];
+        }
+        x
     }
-    for x in tank.iter_mut() {
-        *x += c;
+    for r in rows {
+        if r.0 < tanks && r.1 < vehicles {
+            let (a, b) = (find(&mut parent, r.0), find(&mut parent, tanks + r.1));
+            if a != b {
+                parent[a] = b;
+            }
+        }
+    }
+    let roots: Vec<usize> = (0..tanks + vehicles)
+        .map(|x| find(&mut parent, x))
+        .collect();
+    (roots[..tanks].to_vec(), roots[tanks..].to_vec())
+}
+
+fn centre(
+    vehicle: &mut [f64],
+    tank: &mut [f64],
+    counts: &[usize],
+    comp: &(Vec<usize>, Vec<usize>),
+) {
+    let mut by_comp: std::collections::BTreeMap<usize, Vec<f64>> = Default::default();
+    for ((v, n), c) in vehicle.iter().zip(counts).zip(&comp.1) {
+        if *n > 0 {
+            by_comp.entry(*c).or_default().push(*v);
+        }
+    }
+    let shift: std::collections::BTreeMap<usize, f64> = by_comp
+        .into_iter()
+        .map(|(c, v)| (c, median(&v).unwrap_or(0.0)))
+        .collect();
+    for (x, c) in vehicle.iter_mut().zip(&comp.1) {
+        *x -= shift.get(c).copied().unwrap_or(0.0);
+    }
+    for (x, c) in tank.iter_mut().zip(&comp.0) {
+        *x += shift.get(c).copied().unwrap_or(0.0);
     }
 }
 
@@ -56,6 +99,7 @@ pub(crate) fn two_way(rows: &[Row], tanks: usize, vehicles: usize) -> Effects {
     let by_tank = groups(rows.iter().map(|r| r.0), tanks);
     let by_vehicle = groups(rows.iter().map(|r| r.1), vehicles);
     let counts: Vec<usize> = by_vehicle.iter().map(Vec::len).collect();
+    let comp = components(rows, tanks, vehicles);
     let mut a = vec![1.0; tanks];
     let mut b = vec![0.0; vehicles];
     let mut buf: Vec<f64> = Vec::new();
@@ -71,7 +115,7 @@ pub(crate) fn two_way(rows: &[Row], tanks: usize, vehicles: usize) -> Effects {
             buf.extend(idx.iter().map(|&k| rows[k].2 - a[rows[k].0]));
             *bv = median(&buf).unwrap_or(0.0);
         }
-        centre(&mut b, &mut a, &counts);
+        centre(&mut b, &mut a, &counts, &comp);
     }
     // Huber IRLS
     let mut w = vec![1.0; rows.len()];
@@ -98,11 +142,14 @@ pub(crate) fn two_way(rows: &[Row], tanks: usize, vehicles: usize) -> Effects {
                 *bv = s / sw;
             }
         }
-        centre(&mut b, &mut a, &counts);
+        centre(&mut b, &mut a, &counts, &comp);
     }
+    let resid: Vec<f64> = rows.iter().map(|r| r.2 - a[r.0] - b[r.1]).collect();
     Effects {
         tank: a,
         vehicle: b,
+        weight: w,
+        scale: mad_sigma(&resid).unwrap_or(0.0),
     }
 }
 
@@ -136,5 +183,59 @@ mod tests {
         let e = two_way(&rows, 3, 4);
         assert!(e.vehicle[0].abs() < 0.002, "{:?} over {n}", e.vehicle);
         assert!((e.tank[0] - 1.0).abs() < 0.002, "{:?}", e.tank);
+    }
+
+    /// Two fleets that never meet (say nitrogen and argon trailers): in the first, three vehicles
+    /// share two tanks and one is 3 % short; in the second, two vehicles share two tanks whose gauges
+    /// read 2 % high. The second group's vehicles cannot be told from its tanks, so their effects are
+    /// 0 (centred on their own group's median), not +2 % against the first group's median
+    /// (constructed example, exact ratios).
+    #[test]
+    fn effects_are_centred_within_each_group_of_shared_tanks() {
+        let mut rows = Vec::new();
+        for t in 0..2 {
+            for _ in 0..5 {
+                rows.push((t, 0, 1.0));
+                rows.push((t, 1, 1.0));
+                rows.push((t, 2, 0.97));
+            }
+        }
+        for t in 2..4 {
+            for _ in 0..5 {
+                rows.push((t, 3, 1.02));
+                rows.push((t, 4, 1.02));
+            }
+        }
+        let e = two_way(&rows, 4, 5);
+        assert!((e.vehicle[2] + 0.03).abs() < 1e-9, "{:?}", e.vehicle);
+        for v in [0, 1, 3, 4] {
+            assert!(e.vehicle[v].abs() < 1e-9, "{:?}", e.vehicle);
+        }
+        assert!((e.tank[2] - 1.02).abs() < 1e-9, "{:?}", e.tank);
+        let (tc, vc) = components(&rows, 4, 5);
+        assert_eq!(tc[0], tc[1]);
+        assert_ne!(tc[0], tc[2]);
+        assert_eq!(vc[3], vc[4]);
+        assert_eq!(vc[0], tc[0]);
+    }
+
+    /// Centring moves each group's vehicle effects to a median of 0 and its tanks' levels by the same
+    /// amount (so every fitted ratio is unchanged); a single fleet-wide median would leave the second
+    /// group at +3 % (constructed example).
+    #[test]
+    fn centring_is_per_group_and_keeps_the_fit() {
+        let comp = (vec![0, 0, 1], vec![0, 0, 0, 1, 1]);
+        let mut v = vec![0.01, 0.01, -0.02, 0.03, 0.03];
+        let mut t = vec![1.0, 1.0, 1.0];
+        let before: Vec<f64> = [(0, 2), (2, 3)].iter().map(|&(a, b)| t[a] + v[b]).collect();
+        centre(&mut v, &mut t, &[3, 3, 3, 3, 3], &comp);
+        let expect = [0.0, 0.0, -0.03, 0.0, 0.0];
+        for (x, e) in v.iter().zip(expect) {
+            assert!((x - e).abs() < 1e-12, "{v:?}");
+        }
+        let after: Vec<f64> = [(0, 2), (2, 3)].iter().map(|&(a, b)| t[a] + v[b]).collect();
+        for (a, b) in before.iter().zip(&after) {
+            assert!((a - b).abs() < 1e-12);
+        }
     }
 }

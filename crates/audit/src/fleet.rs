@@ -4,12 +4,14 @@ use std::collections::BTreeMap;
 
 use serde::Serialize;
 
+use crate::AuditOptions;
 use crate::balance::set_verdict;
+use crate::calibration::{self, Obs, ScaleModel};
 use crate::effects::{Row, groups, two_way};
 use crate::gauge_faults::{self, FaultTest, Point};
 use crate::records::{Balance, Finding, Forecast, GaugeStep, TankAudit};
-use crate::stats::{holm_adjust, t_critical, t_two_sided_p};
-use crate::{AuditOptions, Verdict};
+use crate::stats::holm_adjust;
+pub use crate::vehicles::{VehicleFinding, VehicleStatus};
 
 const YEAR_MS: f64 = 365.0 * 86_400_000.0;
 
@@ -24,18 +26,6 @@ pub enum GaugeStatus {
     /// A significant step (a bad recalibration) beyond the smallest reported step.
     Step,
     /// Too few fills, or too short a period, to test.
-    NotEnoughData,
-}
-
-/// Vehicle status.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize)]
-#[serde(rename_all = "kebab-case")]
-pub enum VehicleStatus {
-    /// No significant bias.
-    Ok,
-    /// A significant bias beyond the smallest reported bias.
-    Biased,
-    /// Too few fills to test.
     NotEnoughData,
 }
 
@@ -67,39 +57,6 @@ pub struct GaugeFinding {
     pub ner_setting_percent_per_day: f64,
     /// Fitted NER, % per day.
     pub ner_fitted_percent_per_day: Option<f64>,
-}
-
-/// The bias test of one vehicle.
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct VehicleFinding {
-    /// Vehicle name.
-    pub vehicle: String,
-    /// Carrier name.
-    pub carrier: String,
-    /// Status.
-    pub status: VehicleStatus,
-    /// Fills tested (on tanks without drift, with other vehicles' fills to compare).
-    pub fills: usize,
-    /// Mean of (gained + drawn)/billed minus the tank's level from other vehicles, % (negative: short).
-    pub bias_percent: Option<f64>,
-    /// 95 % confidence interval of the bias, % (Student t).
-    pub ci95_low_percent: Option<f64>,
-    /// Upper end.
-    pub ci95_high_percent: Option<f64>,
-    /// Two-sided p-value of the one-sample t-test.
-    pub p_value: Option<f64>,
-    /// After Holm's correction across the vehicles tested.
-    pub p_adjusted: Option<f64>,
-    /// The legal tolerance compared with, %.
-    pub legal_tolerance_percent: f64,
-    /// Whether the estimated bias is beyond the legal tolerance.
-    pub exceeds_legal_tolerance: bool,
-    /// Whether the whole confidence interval is beyond the legal tolerance.
-    pub ci_beyond_legal_tolerance: bool,
-    /// Fills by verdict.
-    pub verdicts: BTreeMap<Verdict, usize>,
-    /// The test used.
-    pub test: &'static str,
 }
 
 /// One tank's summary in the fleet audit.
@@ -138,7 +95,6 @@ pub struct FleetAudit {
 }
 
 const GAUGE_TEST: &str = "(gained+drawn)/billed over time, vehicle effects removed: weighted least-squares slope t-test (drift) and best split of two means with a Bonferroni-adjusted t-test (step), the better-fitting model named; Holm across tanks";
-const VEHICLE_TEST: &str = "one-sample t-test of the ratios less their tank's level (tank levels and vehicle effects fitted jointly by Huber-weighted least squares); Holm across vehicles";
 
 fn usable(b: &Balance) -> bool {
     b.ratio.is_finite() && b.before.is_some() && b.after.is_some() && b.billed_kg > 0.0
@@ -167,18 +123,19 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
         .enumerate()
         .map(|(i, v)| (v.0.as_str(), i))
         .collect();
-    // (tank, vehicle, ratio, u_ratio, time)
-    let rows: Vec<(usize, usize, f64, f64, i64)> = tanks
+    // (tank, vehicle, ratio, u_ratio, time, balance index)
+    let rows: Vec<(usize, usize, f64, f64, i64, usize)> = tanks
         .iter()
         .enumerate()
         .flat_map(|(ti, t)| {
             let vi = &vehicle_index;
             t.balances
                 .iter()
-                .filter(|b| usable(b))
-                .filter_map(move |b| {
+                .enumerate()
+                .filter(|(_, b)| usable(b))
+                .filter_map(move |(bi, b)| {
                     vi.get(b.vehicle.as_str())
-                        .map(|&v| (ti, v, b.ratio, b.sigma_kg / b.billed_kg, b.start_ms))
+                        .map(|&v| (ti, v, b.ratio, b.sigma_kg / b.billed_kg, b.start_ms, bi))
                 })
         })
         .collect();
@@ -257,90 +214,53 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
         .map(|g| matches!(g.status, GaugeStatus::Drift | GaugeStatus::Step))
         .collect();
 
-    // vehicle bias, tanks with a gauge fault left out
+    // the fleet's levels and vehicle effects, tanks with a gauge fault left out
     let kept: Vec<Row> = plain.iter().copied().filter(|r| !faulty[r.0]).collect();
-    let levels = two_way(&kept, tanks.len(), vehicle_names.len()).tank;
-    let mut vehicles: Vec<VehicleFinding> = Vec::new();
-    let mut vp: Vec<(usize, f64)> = Vec::new();
+    let kept_u: Vec<f64> = rows.iter().filter(|r| !faulty[r.0]).map(|r| r.3).collect();
+    let kept_fit = two_way(&kept, tanks.len(), vehicle_names.len());
     let kept_of_vehicle = groups(kept.iter().map(|r| r.1), vehicle_names.len());
-    let mut verdict_counts: Vec<BTreeMap<Verdict, usize>> =
-        vec![BTreeMap::new(); vehicle_names.len()];
-    for b in tanks.iter().flat_map(|t| &t.balances) {
-        if let Some(&v) = vehicle_index.get(b.vehicle.as_str()) {
-            *verdict_counts[v].entry(b.verdict).or_default() += 1;
-        }
-    }
-    for (vi, (name, carrier)) in vehicle_names.iter().enumerate() {
-        // each fill against its tank's level (levels and effects fitted jointly and robustly)
-        let d: Vec<f64> = kept_of_vehicle[vi]
-            .iter()
-            .map(|&k| kept[k].2 - levels[kept[k].0])
-            .collect();
-        let verdicts = std::mem::take(&mut verdict_counts[vi]);
-        let mut f = VehicleFinding {
-            vehicle: name.clone(),
-            carrier: carrier.clone(),
-            status: VehicleStatus::NotEnoughData,
-            fills: d.len(),
-            bias_percent: None,
-            ci95_low_percent: None,
-            ci95_high_percent: None,
-            p_value: None,
-            p_adjusted: None,
-            legal_tolerance_percent: 100.0 * opts.legal_tolerance,
-            exceeds_legal_tolerance: false,
-            ci_beyond_legal_tolerance: false,
-            verdicts,
-            test: VEHICLE_TEST,
-        };
-        let n = d.len();
-        if n >= opts.vehicle_min_fills.max(2) {
-            let mean = d.iter().sum::<f64>() / n as f64;
-            let sd = (d.iter().map(|x| (x - mean).powi(2)).sum::<f64>() / (n as f64 - 1.0)).sqrt();
-            let se = sd / (n as f64).sqrt();
-            let dof = n as f64 - 1.0;
-            let tstat = if se > 0.0 { mean / se } else { 0.0 };
-            let p = t_two_sided_p(tstat, dof);
-            let half = t_critical(0.05, dof) * se;
-            f.bias_percent = Some(100.0 * mean);
-            f.ci95_low_percent = Some(100.0 * (mean - half));
-            f.ci95_high_percent = Some(100.0 * (mean + half));
-            f.p_value = Some(p);
-            f.exceeds_legal_tolerance = mean.abs() > opts.legal_tolerance;
-            f.ci_beyond_legal_tolerance =
-                (mean - half) > opts.legal_tolerance || (mean + half) < -opts.legal_tolerance;
-            f.status = VehicleStatus::Ok;
-            vp.push((vehicles.len(), p));
-        }
-        vehicles.push(f);
-    }
-    let adjusted = holm_adjust(&vp.iter().map(|x| x.1).collect::<Vec<_>>());
-    for ((i, _), pa) in vp.iter().zip(adjusted) {
-        let f = &mut vehicles[*i];
-        f.p_adjusted = Some(pa);
-        if pa < opts.vehicle_alpha
-            && f.bias_percent
-                .is_some_and(|b| b.abs() >= 100.0 * opts.vehicle_min_bias)
-        {
-            f.status = VehicleStatus::Biased;
-        }
-    }
 
-    let mut fills = Vec::new();
-    let mut findings = Vec::new();
-    let mut summaries = Vec::new();
-    for (ti, t) in tanks.into_iter().enumerate() {
-        let g = gauges.get(ti);
-        let drift = g
+    // each gauge's scale from the tank's other fills, vehicle effects removed; the rows of faulty
+    // tanks weigh alike
+    if opts.calibrate_gauges {
+        let mut obs: Vec<Vec<Obs>> = vec![Vec::new(); tanks.len()];
+        let n_of_vehicle: Vec<usize> = kept_of_vehicle.iter().map(Vec::len).collect();
+        let mut kept_k = 0;
+        for r in &rows {
+            let weight = if faulty[r.0] {
+                1.0
+            } else {
+                let w = kept_fit.weight.get(kept_k).copied().unwrap_or(1.0);
+                kept_k += 1;
+                w
+            };
+            let veh = kept_fit.vehicle.get(r.1).copied().unwrap_or(0.0);
+            let n_v = n_of_vehicle.get(r.1).copied().unwrap_or(0).max(1) as f64;
+            let ratio_var = r.3.max(1e-4).powi(2);
+            obs[r.0].push((
+                r.5,
+                r.4,
+                r.2 - veh,
+                weight / ratio_var,
+                kept_fit.scale.powi(2) / n_v,
+            ));
+        }
+        for ((t, g), o) in tanks.iter_mut().zip(&gauges).zip(&obs) {
+            calibration::apply(t, o, ScaleModel::from_status(g.status, g.step_ms), opts);
+        }
+    }
+    // fills after a gauge fault are marked
+    for (t, g) in tanks.iter_mut().zip(&gauges) {
+        let drift = Some(g)
             .filter(|g| g.status == GaugeStatus::Drift)
             .and_then(|g| g.drift_percent_per_year);
-        let step = g
+        let step = Some(g)
             .filter(|g| g.status == GaugeStatus::Step)
             .and_then(|g| Some((g.step_ms?, g.step_percent?)));
-        for mut b in t.balances {
+        for b in &mut t.balances {
             if drift.is_some() {
                 b.gauge_drift_percent_per_year = drift;
-                set_verdict(&mut b, opts);
+                set_verdict(b, opts);
             }
             if let Some((at_ms, size_percent)) = step
                 && b.end_ms > at_ms
@@ -349,10 +269,27 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
                     at_ms,
                     size_percent,
                 });
-                set_verdict(&mut b, opts);
+                set_verdict(b, opts);
             }
-            fills.push(b);
         }
+    }
+
+    // vehicle bias, on the final verdicts
+    let vehicles = crate::vehicles::test(
+        &vehicle_names,
+        &vehicle_index,
+        &tanks,
+        &kept,
+        &kept_u,
+        &kept_fit,
+        opts,
+    );
+
+    let mut fills = Vec::new();
+    let mut findings = Vec::new();
+    let mut summaries = Vec::new();
+    for t in tanks {
+        fills.extend(t.balances);
         findings.extend(t.findings);
         summaries.push(TankSummary {
             tank: t.tank,

@@ -11,12 +11,16 @@
 //!   fault named is the model Schwarz's criterion prefers (Schwarz, "Estimating the dimension of a
 //!   model", Ann. Statist. 6, 1978; the step's position counts as a parameter).
 //!
+//! Both fits are robust: Huber's weights (c = 1.5) on the residuals scaled by their median absolute
+//! deviation, a few reweighting passes (Holland and Welsch 1977), so a vehicle short on some fills
+//! at the tank does not hide or fake a step.
+//!
 //! A step is dated from the readings: the fills only say between which two fills it happened, the
 //! interval whose loss departs most from the use model in that stretch (with the step's sign) says
 //! when.
 
 use crate::records::Jump;
-use crate::stats::{t_two_sided_p, weighted_line};
+use crate::stats::{mad_sigma, t_two_sided_p, weighted_line};
 
 const YEAR_MS: f64 = 365.0 * 86_400_000.0;
 /// Fewest fills on each side of a step.
@@ -42,6 +46,41 @@ pub(crate) struct FaultTest {
     pub(crate) step_fits_better: bool,
 }
 
+/// Huber's constant.
+const HUBER_C: f64 = 1.5;
+/// Reweighting passes.
+const PASSES: usize = 4;
+
+/// Refit with Huber's weights: `fit` returns each point's fitted value for the given points (their
+/// weights already multiplied by the robust ones). Returns the points with the robust weights
+/// folded in.
+fn robust(pts: &[Point], fit: impl Fn(&[Point]) -> Option<Vec<f64>>) -> Vec<Point> {
+    let mut cur: Vec<Point> = pts.to_vec();
+    for _ in 0..PASSES {
+        let Some(fitted) = fit(&cur) else {
+            break;
+        };
+        let z: Vec<f64> = pts
+            .iter()
+            .zip(&fitted)
+            .map(|(p, f)| (p.1 - f) * p.2.sqrt())
+            .collect();
+        let scale = mad_sigma(&z).unwrap_or(0.0);
+        if scale <= 0.0 {
+            break;
+        }
+        cur = pts
+            .iter()
+            .zip(&z)
+            .map(|(p, zi)| {
+                let a = (zi / scale).abs();
+                (p.0, p.1, p.2 * if a <= HUBER_C { 1.0 } else { HUBER_C / a })
+            })
+            .collect();
+    }
+    cur
+}
+
 fn weighted_mean(pts: &[Point]) -> (f64, f64) {
     let (s, w) = pts
         .iter()
@@ -63,10 +102,18 @@ pub(crate) fn test(pts: &[Point], jumps: &[Jump]) -> FaultTest {
         step_fits_better: false,
     };
     let n = pts.len();
-    let line_pts: Vec<(f64, f64, f64)> = pts
-        .iter()
-        .map(|p| (p.0 as f64 / YEAR_MS, p.1, p.2))
-        .collect();
+    let as_line = |q: &[Point]| -> Vec<(f64, f64, f64)> {
+        q.iter().map(|p| (p.0 as f64 / YEAR_MS, p.1, p.2)).collect()
+    };
+    let robust_line = robust(pts, |q| {
+        let fit = weighted_line(&as_line(q))?;
+        Some(
+            q.iter()
+                .map(|p| fit.intercept + fit.slope * p.0 as f64 / YEAR_MS)
+                .collect(),
+        )
+    });
+    let line_pts = as_line(&robust_line);
     let mut rss_line = f64::INFINITY;
     if let Some(fit) = weighted_line(&line_pts) {
         let t = if fit.slope_se > 0.0 {
@@ -98,21 +145,31 @@ pub(crate) fn test(pts: &[Point], jumps: &[Jump]) -> FaultTest {
             candidates = (STEP_SIDE..=n - STEP_SIDE).collect();
         }
         let mut best: Option<(usize, f64, f64)> = None; // split, rss, p
+        let split_fit = |k: usize| {
+            robust(pts, |q| {
+                let (m1, _) = weighted_mean(&q[..k]);
+                let (m2, _) = weighted_mean(&q[k..]);
+                Some((0..q.len()).map(|i| if i < k { m1 } else { m2 }).collect())
+            })
+        };
+        let mut best_pts: Vec<Point> = Vec::new();
         for &k in &candidates {
-            let (m1, w1) = weighted_mean(&pts[..k]);
-            let (m2, w2) = weighted_mean(&pts[k..]);
-            let r = rss(&pts[..k], m1) + rss(&pts[k..], m2);
+            let q = split_fit(k);
+            let (m1, w1) = weighted_mean(&q[..k]);
+            let (m2, w2) = weighted_mean(&q[k..]);
+            let r = rss(&q[..k], m1) + rss(&q[k..], m2);
             let s2 = r / (n as f64 - 2.0);
             let se = (s2 * (1.0 / w1 + 1.0 / w2)).sqrt();
             let t = if se > 0.0 { (m2 - m1) / se } else { 0.0 };
             let p = (candidates.len() as f64 * t_two_sided_p(t, n as f64 - 2.0)).min(1.0);
             if best.is_none_or(|(_, _, bp)| p < bp) {
                 best = Some((k, r, p));
+                best_pts = q;
             }
         }
         if let Some((k, r, p)) = best {
-            let (m1, _) = weighted_mean(&pts[..k]);
-            let (m2, _) = weighted_mean(&pts[k..]);
+            let (m1, _) = weighted_mean(&best_pts[..k]);
+            let (m2, _) = weighted_mean(&best_pts[k..]);
             let size = m2 - m1;
             out.step = Some((size, date(pts[k - 1].0, pts[k].0, size, jumps), p));
             // Schwarz's criterion: the step has one parameter more than the line (where it falls),

@@ -70,6 +70,7 @@
 
 mod balance;
 mod between_fills;
+mod calibration;
 mod effects;
 mod fleet;
 mod gauge_faults;
@@ -80,6 +81,7 @@ pub mod stats;
 mod tank_audit;
 mod thermal;
 mod use_model;
+mod vehicles;
 
 use serde::Serialize;
 
@@ -87,8 +89,8 @@ pub use fleet::{
     FleetAudit, GaugeFinding, GaugeStatus, TankSummary, VehicleFinding, VehicleStatus, audit_fleet,
 };
 pub use records::{
-    Balance, BracketReading, Finding, FindingKind, Forecast, GaugeStep, Jump, ReadingState,
-    TankAudit,
+    Balance, BracketReading, Finding, FindingKind, Forecast, GaugeScale, GaugeStep, Jump,
+    ReadingState, TankAudit,
 };
 pub use tank_audit::audit_tank;
 pub use thermal::{default_ner_percent_per_day, default_supply_pressure_pa, mix_liquids};
@@ -234,6 +236,11 @@ pub struct AuditOptions {
     /// fills leave about half a percent of confounding between vehicles that share tanks, and honest
     /// meters scatter about ±0.3 %; common practice, no source).
     pub vehicle_min_bias: f64,
+    /// Judge each fill against its gauge's scale fitted from the tank's other fills (true; see
+    /// the calibration module).
+    pub calibrate_gauges: bool,
+    /// Fewest fills at a tank (the judged one included) to fit its gauge's scale from (6).
+    pub calibration_min_fills: usize,
     /// Fewest fills for a vehicle test (5).
     pub vehicle_min_fills: usize,
     /// Legal tolerance of the vehicle meters, fraction (0.015; legal-metrology codes for cryogenic
@@ -290,6 +297,8 @@ impl Default for AuditOptions {
             step_min_fraction: 0.01,
             vehicle_alpha: 0.05,
             vehicle_min_bias: 0.0075,
+            calibrate_gauges: true,
+            calibration_min_fills: 6,
             vehicle_min_fills: 5,
             legal_tolerance: 0.015,
             gain_sigmas: 6.0,

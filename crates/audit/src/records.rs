@@ -107,8 +107,26 @@ pub struct Balance {
     pub gauge_drift_percent_per_year: Option<f64>,
     /// The step of the tank's gauge before this fill, when one was found.
     pub gauge_step: Option<GaugeStep>,
+    /// The gauge's scale the fill was judged against (fitted from the tank's other fills), when
+    /// there were enough of them; the residual is then billed − (gained + drawn) / scale.
+    pub gauge_scale: Option<GaugeScale>,
+    /// Part of sigma from that scale's uncertainty, kg.
+    pub sigma_gauge_scale_kg: f64,
     /// One sentence with the numbers, to hand to a carrier.
     pub explanation: String,
+}
+
+/// A gauge's scale: (gained + drawn) / delivered as the fleet's other fills at the tank show it.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct GaugeScale {
+    /// The scale (1: the gauge reads true).
+    pub scale: f64,
+    /// Its standard uncertainty.
+    pub u: f64,
+    /// Fills it was fitted from.
+    pub fills: usize,
+    /// The gauge model: constant, step or drift.
+    pub model: &'static str,
 }
 
 /// A step change of a gauge's span or zero (a bad recalibration), dated.

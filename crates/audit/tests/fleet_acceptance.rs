@@ -120,8 +120,12 @@ fn print(label: &str, f: &Figures) {
 
 fn scenario(short: f64) {
     let with = AuditOptions::default();
+    // the physics alone: the fleet's fit of each gauge's scale absorbs most of a fixed saturation
+    // assumption's error on these tanks (measured: 0-3 % of honest fills flagged with it), so the
+    // comparison is made without it
     let without = AuditOptions {
         thermal_history: false,
+        calibrate_gauges: false,
         ..AuditOptions::default()
     };
     let mut failures = Vec::new();

@@ -1,0 +1,174 @@
+//! Each gauge's scale, fitted from the fleet's fills, and every fill judged against it.
+//!
+//! A DP gauge within its accuracy class can read a few tenths of a percent to a percent high or low
+//! over its whole span (a span calibration error), and then every fill at that tank seems that much
+//! short or excess. The fleet's own fills measure it: each fill's ratio (gained + drawn) / billed,
+//! less its vehicle's effect, is an observation of the tank's gauge scale, and a tank filled by
+//! several vehicles (or by a vehicle also seen elsewhere) has its scale fixed by the others (the
+//! additive two-way model of [`crate::effects`]; a meter comparison of this kind is the usual
+//! practice of checking one instrument against a reference many times, JCGM 100:2008 §4.2).
+//!
+//! Each fill is judged against the scale fitted from the tank's *other* fills (leave-one-out), so a
+//! short fill does not hide in its own tank's scale; the scale follows the gauge model the fleet
+//! test chose (constant, a step at the dated instant, or a linear drift). The scale's standard
+//! uncertainty (the fit's, plus the vehicle effects' it leans on) enters the balance's budget.
+
+use crate::AuditOptions;
+use crate::balance::rejudge;
+use crate::fleet::GaugeStatus;
+use crate::records::{GaugeScale, TankAudit};
+
+/// The model of a tank's scale over time.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub(crate) enum ScaleModel {
+    /// One scale.
+    Constant,
+    /// One scale before the instant, another after.
+    Step(i64),
+    /// A straight line in time.
+    Drift,
+}
+
+impl ScaleModel {
+    pub(crate) fn from_status(status: GaugeStatus, step_ms: Option<i64>) -> Self {
+        match (status, step_ms) {
+            (GaugeStatus::Step, Some(at)) => ScaleModel::Step(at),
+            (GaugeStatus::Drift, _) => ScaleModel::Drift,
+            _ => ScaleModel::Constant,
+        }
+    }
+
+    fn name(self) -> &'static str {
+        match self {
+            ScaleModel::Constant => "constant",
+            ScaleModel::Step(_) => "step",
+            ScaleModel::Drift => "drift",
+        }
+    }
+}
+
+/// One usable fill of a tank: (balance index, time ms, ratio less its vehicle's effect, weight (the
+/// robust weight over the ratio's variance), the vehicle effect's variance).
+pub(crate) type Obs = (usize, i64, f64, f64, f64);
+
+/// A weighted least-squares fit of the scale at `at_ms` from `obs` (the fill itself left out):
+/// (scale, its standard error from the fit, observations used).
+fn fit_at(obs: &[&Obs], model: ScaleModel, at_ms: i64) -> Option<(f64, f64, usize)> {
+    let same_side: Vec<&&Obs> = match model {
+        ScaleModel::Step(s) => obs.iter().filter(|o| (o.1 > s) == (at_ms > s)).collect(),
+        _ => obs.iter().collect(),
+    };
+    let n = same_side.len();
+    let sw: f64 = same_side.iter().map(|o| o.3).sum();
+    if !(sw > 0.0 && sw.is_finite()) {
+        return None;
+    }
+    let mean_t = same_side.iter().map(|o| o.3 * o.1 as f64).sum::<f64>() / sw;
+    let mean_x = same_side.iter().map(|o| o.3 * o.2).sum::<f64>() / sw;
+    match model {
+        ScaleModel::Drift => {
+            if n < 5 {
+                return None;
+            }
+            let sxx: f64 = same_side
+                .iter()
+                .map(|o| o.3 * (o.1 as f64 - mean_t).powi(2))
+                .sum();
+            if sxx <= 0.0 {
+                return None;
+            }
+            let sxy: f64 = same_side
+                .iter()
+                .map(|o| o.3 * (o.1 as f64 - mean_t) * (o.2 - mean_x))
+                .sum();
+            let dt = at_ms as f64 - mean_t;
+            Some((
+                mean_x + sxy / sxx * dt,
+                (1.0 / sw + dt * dt / sxx).sqrt(),
+                n,
+            ))
+        }
+        _ => {
+            if n < 3 {
+                return None;
+            }
+            Some((mean_x, (1.0 / sw).sqrt(), n))
+        }
+    }
+}
+
+/// Judge every fill of one tank against its gauge's fitted scale. `obs` are the tank's usable fills;
+/// fills without enough others to fit from keep their plain verdict.
+pub(crate) fn apply(t: &mut TankAudit, obs: &[Obs], model: ScaleModel, opts: &AuditOptions) {
+    if obs.len() < opts.calibration_min_fills.max(4) {
+        return;
+    }
+    for o in obs {
+        let others: Vec<&Obs> = obs.iter().filter(|x| x.0 != o.0).collect();
+        let Some((scale, se_fit, n)) = fit_at(&others, model, o.1) else {
+            continue;
+        };
+        if n + 1 < opts.calibration_min_fills || !(scale > 0.5 && scale < 1.5) {
+            continue;
+        }
+        // the vehicle effects the others' ratios were corrected by, weighted alike
+        let sw: f64 = others.iter().map(|x| x.3).sum();
+        let veh_var = others.iter().map(|x| (x.3 / sw).powi(2) * x.4).sum::<f64>();
+        let u = (se_fit * se_fit + veh_var).sqrt();
+        let Some(b) = t.balances.get_mut(o.0) else {
+            continue;
+        };
+        let measured = b.gained_kg + b.drawn_kg;
+        b.gauge_scale = Some(GaugeScale {
+            scale,
+            u,
+            fills: n,
+            model: model.name(),
+        });
+        b.residual_kg = b.billed_kg - measured / scale;
+        b.residual_percent = 100.0 * b.residual_kg / b.billed_kg;
+        b.sigma_gauge_scale_kg = measured / scale * u / scale;
+        rejudge(b, opts);
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// A constant scale from observations of weight 1/σ² (σ = 1 %) is their mean, with the standard
+    /// error σ / √n (the weighted mean's variance 1 / Σw; any statistics text).
+    #[test]
+    fn constant_scale_is_the_mean_of_the_others() {
+        let obs: Vec<Obs> = (0..5)
+            .map(|i| (i, i as i64 * 1000, 1.0 + 0.001 * i as f64, 1e4, 0.0))
+            .collect();
+        let refs: Vec<&Obs> = obs.iter().collect();
+        let (s, se, n) = fit_at(&refs, ScaleModel::Constant, 0).expect("fit");
+        assert!((s - 1.002).abs() < 1e-12, "{s}");
+        assert!((se - 0.01 / 5f64.sqrt()).abs() < 1e-12, "{se}");
+        assert_eq!(n, 5);
+    }
+
+    /// A step model uses only the fills on the same side of the step; a drift model extrapolates
+    /// the line (exact data on a line of slope 1e-3 per 1000 ms).
+    #[test]
+    fn step_and_drift_follow_the_gauge() {
+        let obs: Vec<Obs> = (0..8)
+            .map(|i| {
+                let x = if i < 4 { 1.0 } else { 0.97 };
+                (i, i as i64 * 1000, x, 1.0, 0.0)
+            })
+            .collect();
+        let refs: Vec<&Obs> = obs.iter().collect();
+        let (before, ..) = fit_at(&refs, ScaleModel::Step(3500), 1000).expect("fit");
+        let (after, ..) = fit_at(&refs, ScaleModel::Step(3500), 6000).expect("fit");
+        assert!((before - 1.0).abs() < 1e-12 && (after - 0.97).abs() < 1e-12);
+        let line: Vec<Obs> = (0..8)
+            .map(|i| (i, i as i64 * 1000, 1.0 + 1e-3 * i as f64, 1.0, 0.0))
+            .collect();
+        let refs: Vec<&Obs> = line.iter().collect();
+        let (at10, ..) = fit_at(&refs, ScaleModel::Drift, 10_000).expect("fit");
+        assert!((at10 - 1.010).abs() < 1e-12, "{at10}");
+    }
+}

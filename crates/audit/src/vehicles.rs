@@ -1,0 +1,250 @@
+//! Vehicle bias: each vehicle's fills against the level the other vehicles show at the same tanks,
+//! and the count of its fills judged short.
+//!
+//! Two tests per vehicle, the smaller p-value doubled (Bonferroni), then Holm's correction across
+//! the vehicles (Holm, "A simple sequentially rejective multiple test procedure", Scand. J.
+//! Statist. 6, 1979):
+//! - the bias: the weighted mean of (gained + drawn) / billed less its tank's level fitted from the
+//!   other vehicles' fills there (weights 1/u² of each ratio; its standard error from the weighted
+//!   scatter, the weights known up to a common factor — the external consistency of a weighted
+//!   mean, Birge, Phys. Rev. 40, 1932), by Student's t;
+//! - the short count: a vehicle short by a few percent on only some of its fills has a small mean
+//!   bias but many short verdicts; the count is tested against the share an honest vehicle draws
+//!   (the fleet's median vehicle, at least the tail 1 − Φ(k) of the verdicts' coverage interval)
+//!   by the binomial distribution's upper tail.
+
+use std::collections::BTreeMap;
+
+use serde::Serialize;
+use statrs::distribution::{Binomial, DiscreteCDF};
+
+use crate::AuditOptions;
+use crate::Verdict;
+use crate::effects::{Effects, Row, groups};
+use crate::records::TankAudit;
+use crate::stats::{holm_adjust, median, t_critical, t_two_sided_p};
+
+/// Vehicle status.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum VehicleStatus {
+    /// No significant bias.
+    Ok,
+    /// A significant bias beyond the smallest reported bias.
+    Biased,
+    /// Too few fills to test.
+    NotEnoughData,
+}
+
+/// The bias test of one vehicle.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct VehicleFinding {
+    /// Vehicle name.
+    pub vehicle: String,
+    /// Carrier name.
+    pub carrier: String,
+    /// Status.
+    pub status: VehicleStatus,
+    /// Fills tested (on tanks without drift, with other vehicles' fills to compare).
+    pub fills: usize,
+    /// Mean of (gained + drawn)/billed minus the tank's level from other vehicles, % (negative: short).
+    pub bias_percent: Option<f64>,
+    /// 95 % confidence interval of the bias, % (Student t).
+    pub ci95_low_percent: Option<f64>,
+    /// Upper end.
+    pub ci95_high_percent: Option<f64>,
+    /// The vehicle's p-value: twice the smaller of the bias test's (two-sided t) and the short-count
+    /// test's (Bonferroni over the two).
+    pub p_value: Option<f64>,
+    /// After Holm's correction across the vehicles tested.
+    pub p_adjusted: Option<f64>,
+    /// The legal tolerance compared with, %.
+    pub legal_tolerance_percent: f64,
+    /// Whether the estimated bias is beyond the legal tolerance.
+    pub exceeds_legal_tolerance: bool,
+    /// Whether the whole confidence interval is beyond the legal tolerance.
+    pub ci_beyond_legal_tolerance: bool,
+    /// Fills by verdict.
+    pub verdicts: BTreeMap<Verdict, usize>,
+    /// Fills judged short, of those with a verdict other than inconclusive.
+    pub short_fills: usize,
+    /// The share of short verdicts an honest vehicle would draw (the fleet's median vehicle, at
+    /// least the one-sided tail of the coverage interval).
+    pub short_rate_expected: f64,
+    /// One-sided binomial p-value of that many short verdicts (a vehicle short on some fills).
+    pub short_count_p_value: Option<f64>,
+    /// The test used.
+    pub test: &'static str,
+}
+
+const VEHICLE_TEST: &str = "weighted mean of the ratios less their tank's level from the other vehicles' fills (levels and vehicle effects fitted jointly by Huber-weighted least squares), Student's t; and a binomial test of the count of short verdicts; Bonferroni over the two, Holm across vehicles";
+
+/// P(X ≥ x) for X ~ Binomial(n, p).
+fn binomial_upper(x: usize, n: usize, p: f64) -> f64 {
+    if x == 0 {
+        return 1.0;
+    }
+    Binomial::new(p.clamp(0.0, 1.0), n as u64)
+        .map(|b| b.sf(x as u64 - 1))
+        .unwrap_or(f64::NAN)
+}
+
+/// One-sided upper tail of the standard normal at `k` (Abramowitz and Stegun 7.1.26 through
+/// statrs' erfc).
+fn normal_tail(k: f64) -> f64 {
+    0.5 * statrs::function::erf::erfc(k / std::f64::consts::SQRT_2)
+}
+
+/// Test every vehicle. `kept` are the fills at tanks without a gauge fault, `kept_u` their ratios'
+/// standard uncertainties, `fit` the levels and effects fitted from them.
+pub(crate) fn test(
+    names: &[(String, String)],
+    index: &BTreeMap<&str, usize>,
+    tanks: &[TankAudit],
+    kept: &[Row],
+    kept_u: &[f64],
+    fit: &Effects,
+    opts: &AuditOptions,
+) -> Vec<VehicleFinding> {
+    // each tank's level from its fills, vehicle effects removed, robust weights: (Σw x, Σw, n) per
+    // tank and per (tank, vehicle), so a vehicle is compared with the level the others show
+    let mut tank_sums = vec![(0.0, 0.0, 0usize); tanks.len()];
+    let mut pair_sums: BTreeMap<(usize, usize), (f64, f64, usize)> = BTreeMap::new();
+    for (k, r) in kept.iter().enumerate() {
+        let w = fit.weight.get(k).copied().unwrap_or(1.0);
+        let x = r.2 - fit.vehicle.get(r.1).copied().unwrap_or(0.0);
+        if let Some(t) = tank_sums.get_mut(r.0) {
+            *t = (t.0 + w * x, t.1 + w, t.2 + 1);
+        }
+        let p = pair_sums.entry((r.0, r.1)).or_default();
+        *p = (p.0 + w * x, p.1 + w, p.2 + 1);
+    }
+    let level_without = |ti: usize, vi: usize| -> Option<f64> {
+        let t = tank_sums.get(ti)?;
+        let p = pair_sums.get(&(ti, vi)).copied().unwrap_or_default();
+        let (sx, sw, n) = (t.0 - p.0, t.1 - p.1, t.2 - p.2);
+        (n >= 2 && sw > 1e-9).then(|| sx / sw)
+    };
+    let kept_of_vehicle = groups(kept.iter().map(|r| r.1), names.len());
+    // verdicts per vehicle
+    let mut verdict_counts: Vec<BTreeMap<Verdict, usize>> = vec![BTreeMap::new(); names.len()];
+    for b in tanks.iter().flat_map(|t| &t.balances) {
+        if let Some(c) = index
+            .get(b.vehicle.as_str())
+            .and_then(|&v| verdict_counts.get_mut(v))
+        {
+            *c.entry(b.verdict).or_default() += 1;
+        }
+    }
+    let judged = |c: &BTreeMap<Verdict, usize>| -> (usize, usize) {
+        let short = c.get(&Verdict::Short).copied().unwrap_or(0);
+        let n = short
+            + c.get(&Verdict::Consistent).copied().unwrap_or(0)
+            + c.get(&Verdict::Excess).copied().unwrap_or(0);
+        (short, n)
+    };
+    let rates: Vec<f64> = verdict_counts
+        .iter()
+        .map(judged)
+        .filter(|(_, n)| *n >= opts.vehicle_min_fills.max(1))
+        .map(|(s, n)| s as f64 / n as f64)
+        .collect();
+    let expected = median(&rates)
+        .unwrap_or(0.0)
+        .max(normal_tail(opts.coverage_factor));
+
+    let mut vehicles: Vec<VehicleFinding> = Vec::new();
+    let mut vp: Vec<(usize, f64)> = Vec::new();
+    for (vi, (name, carrier)) in names.iter().enumerate() {
+        // (ratio less its tank's level from the other vehicles' fills, weight 1/u² of the ratio);
+        // fills at tanks no other vehicle filled often enough have nothing to compare with
+        let d: Vec<(f64, f64)> = kept_of_vehicle[vi]
+            .iter()
+            .filter_map(|&k| {
+                let level = level_without(kept[k].0, vi)?;
+                Some((kept[k].2 - level, 1.0 / kept_u.get(k)?.max(1e-4).powi(2)))
+            })
+            .collect();
+        let verdicts = std::mem::take(&mut verdict_counts[vi]);
+        let (short, judged_n) = judged(&verdicts);
+        let mut f = VehicleFinding {
+            vehicle: name.clone(),
+            carrier: carrier.clone(),
+            status: VehicleStatus::NotEnoughData,
+            fills: d.len(),
+            bias_percent: None,
+            ci95_low_percent: None,
+            ci95_high_percent: None,
+            p_value: None,
+            p_adjusted: None,
+            legal_tolerance_percent: 100.0 * opts.legal_tolerance,
+            exceeds_legal_tolerance: false,
+            ci_beyond_legal_tolerance: false,
+            verdicts,
+            short_fills: short,
+            short_rate_expected: expected,
+            short_count_p_value: None,
+            test: VEHICLE_TEST,
+        };
+        let n = d.len();
+        if n >= opts.vehicle_min_fills.max(2) {
+            let sw: f64 = d.iter().map(|x| x.1).sum();
+            let mean = d.iter().map(|x| x.0 * x.1).sum::<f64>() / sw;
+            let chi2: f64 = d.iter().map(|x| x.1 * (x.0 - mean).powi(2)).sum();
+            let se = (chi2 / (n as f64 - 1.0) / sw).sqrt();
+            let dof = n as f64 - 1.0;
+            let tstat = if se > 0.0 { mean / se } else { 0.0 };
+            let p_bias = t_two_sided_p(tstat, dof);
+            let p_count = binomial_upper(short, judged_n, expected);
+            let half = t_critical(0.05, dof) * se;
+            f.bias_percent = Some(100.0 * mean);
+            f.ci95_low_percent = Some(100.0 * (mean - half));
+            f.ci95_high_percent = Some(100.0 * (mean + half));
+            f.short_count_p_value = Some(p_count);
+            // a bias too small to report is no finding, however significant; a count of short
+            // verdicts is one by itself
+            let p_bias_reportable = if mean.abs() >= opts.vehicle_min_bias {
+                p_bias
+            } else {
+                1.0
+            };
+            let p = (2.0 * p_bias_reportable.min(p_count)).min(1.0);
+            f.p_value = Some(p);
+            f.exceeds_legal_tolerance = mean.abs() > opts.legal_tolerance;
+            f.ci_beyond_legal_tolerance =
+                (mean - half) > opts.legal_tolerance || (mean + half) < -opts.legal_tolerance;
+            f.status = VehicleStatus::Ok;
+            vp.push((vehicles.len(), p));
+        }
+        vehicles.push(f);
+    }
+    let adjusted = holm_adjust(&vp.iter().map(|x| x.1).collect::<Vec<_>>());
+    for ((i, _), pa) in vp.iter().zip(adjusted) {
+        let f = &mut vehicles[*i];
+        f.p_adjusted = Some(pa);
+        if pa < opts.vehicle_alpha {
+            f.status = VehicleStatus::Biased;
+        }
+    }
+    vehicles
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Binomial upper tail: P(X ≥ 2) for n = 3, p = 0.5 is 4/8 = 0.5; P(X ≥ 3) = 1/8 (exact by
+    /// enumeration).
+    #[test]
+    fn binomial_tail_is_exact_on_a_small_case() {
+        assert!((binomial_upper(2, 3, 0.5) - 0.5).abs() < 1e-12);
+        assert!((binomial_upper(3, 3, 0.5) - 0.125).abs() < 1e-12);
+        assert_eq!(binomial_upper(0, 3, 0.5), 1.0);
+    }
+
+    /// 1 − Φ(2) = 0.0227501 (Abramowitz and Stegun, table 26.1).
+    #[test]
+    fn normal_tail_at_two() {
+        assert!((normal_tail(2.0) - 0.0227501).abs() < 1e-6);
+    }
+}
