@@ -167,7 +167,7 @@ fn duplicate_ticket() {
     refused(
         "deliveries",
         &format!(
-            "{D}HW-N2-1,T-9001,2026-04-01T10:00:00Z,2026-04-01T10:30:00Z,3000,kg,Northwind Haulage,NWH-07\nHW-AR-1,T-9001,2026-04-02T10:00:00Z,2026-04-02T10:30:00Z,3000,kg,Northwind Haulage,NWH-07\n"
+            "{D}HW-N2-1,T-9001,2026-04-01T10:00:00Z,2026-04-01T10:30:00Z,3000,kg,Nimbleforth Haulage,NWH-07\nHW-AR-1,T-9001,2026-04-02T10:00:00Z,2026-04-02T10:30:00Z,3000,kg,Nimbleforth Haulage,NWH-07\n"
         ),
         3,
         "ticket",
@@ -175,7 +175,7 @@ fn duplicate_ticket() {
     refused(
         "deliveries",
         &format!(
-            "{D}HW-N2-1,T-100231,2026-04-01T10:00:00Z,2026-04-01T10:30:00Z,3000,kg,Northwind Haulage,NWH-07\n"
+            "{D}HW-N2-1,T-100231,2026-04-01T10:00:00Z,2026-04-01T10:30:00Z,3000,kg,Nimbleforth Haulage,NWH-07\n"
         ),
         2,
         "ticket",
@@ -187,7 +187,7 @@ fn end_before_start() {
     refused(
         "deliveries",
         &format!(
-            "{D}HW-N2-1,T-9002,2026-04-01T10:00:00Z,2026-04-01T09:30:00Z,3000,kg,Northwind Haulage,NWH-07\n"
+            "{D}HW-N2-1,T-9002,2026-04-01T10:00:00Z,2026-04-01T09:30:00Z,3000,kg,Nimbleforth Haulage,NWH-07\n"
         ),
         2,
         "end",
@@ -199,7 +199,7 @@ fn zero_quantity() {
     refused(
         "deliveries",
         &format!(
-            "{D}HW-N2-1,T-9003,2026-04-01T10:00:00Z,2026-04-01T10:30:00Z,0,kg,Northwind Haulage,NWH-07\n"
+            "{D}HW-N2-1,T-9003,2026-04-01T10:00:00Z,2026-04-01T10:30:00Z,0,kg,Nimbleforth Haulage,NWH-07\n"
         ),
         2,
         "quantity",
@@ -211,7 +211,7 @@ fn bad_quantity_unit() {
     refused(
         "deliveries",
         &format!(
-            "{D}HW-N2-1,T-9004,2026-04-01T10:00:00Z,2026-04-01T10:30:00Z,900,gal,Northwind Haulage,NWH-07\n"
+            "{D}HW-N2-1,T-9004,2026-04-01T10:00:00Z,2026-04-01T10:30:00Z,900,gal,Nimbleforth Haulage,NWH-07\n"
         ),
         2,
         "quantity_unit",

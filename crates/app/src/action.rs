@@ -60,6 +60,27 @@ pub enum Action {
     Reload,
     /// Check the ledger's history (its hash chain) again, in the background with the fleet summary.
     VerifyHistory,
+    /// Open the audit page.
+    ShowAudit,
+    /// Show a section of the audit page.
+    ShowAuditSection(AuditSection),
+    /// Keep the audit page's fills the filter names.
+    SetAuditFilter(AuditFilter),
+    /// Order the fills by a column (again: the other way).
+    SortAudit(AuditColumn),
+    /// Open a balance's detail (an index into the audit page's rows; None: close it).
+    SelectBalance(Option<usize>),
+    /// Stop the audit running in the background.
+    StopAudit,
+    /// Run the fleet audit again.
+    RunAudit,
+    /// Open a tank's deliveries from the audit page, with this ticket's delivery in the form.
+    OpenFill {
+        /// The tank.
+        tank: i64,
+        /// The ticket.
+        ticket: String,
+    },
 }
 
 /// The fleet summary running on its background thread.
@@ -215,6 +236,13 @@ impl Core {
             Ok(summary) => {
                 self.view.history_check = Some(summary.history);
                 self.view.fleet.sites = summary.sites;
+                self.view.audit = build::audit_view(
+                    &summary.audit,
+                    &self.view.fleet.sites,
+                    audit::AuditOptions::default().materiality_fraction,
+                    self.view.units,
+                    &self.view.audit,
+                );
                 self.fleet_audit = Some(summary.audit);
                 build::fleet_rows(&mut self.view.fleet);
                 // the selected tank's open findings come from the fleet audit
@@ -419,6 +447,45 @@ impl Core {
             }
             Action::ShowTankPage => self.view.page = Page::Tank,
             Action::ShowHelp => self.view.page = Page::Help,
+            Action::ShowAudit => self.view.page = Page::Audit,
+            Action::ShowAuditSection(s) => {
+                self.view.page = Page::Audit;
+                self.view.audit.section = s;
+            }
+            Action::SetAuditFilter(f) => {
+                self.view.audit.filter = f;
+                build::apply_filter(&mut self.view.audit, self.view.units);
+            }
+            Action::SortAudit(c) => {
+                let (old, descending) = self.view.audit.sort;
+                self.view.audit.sort = (c, old == c && !descending);
+                build::apply_filter(&mut self.view.audit, self.view.units);
+            }
+            Action::SelectBalance(i) => {
+                self.view.audit.selected = i.filter(|&i| i < self.view.audit.rows.len());
+            }
+            Action::StopAudit => {
+                if let Some(job) = self.job.take() {
+                    job.cancel.store(true, Ordering::Relaxed);
+                    self.view.fleet.progress = None;
+                    self.view.audit.stopped = true;
+                }
+            }
+            Action::RunAudit => {
+                self.view.audit.stopped = false;
+                self.start_fleet_summary();
+            }
+            Action::OpenFill { tank, ticket } => {
+                self.handle(Action::SelectTank(tank));
+                self.view.tab = TankTab::Deliveries;
+                let id = self
+                    .store
+                    .deliveries(Some(TankId(tank)))
+                    .ok()
+                    .and_then(|d| d.into_iter().find(|d| d.entry.ticket == ticket))
+                    .map(|d| d.id.0);
+                self.select::<DeliveryFlow>(id);
+            }
             Action::OpenSetup(id) => {
                 self.view.page = Page::Setup;
                 self.view.setup_form = match id {
@@ -445,6 +512,7 @@ impl Core {
                 }
                 self.recheck::<ReadingFlow>();
                 self.recheck_setup();
+                build::apply_filter(&mut self.view.audit, units);
             }
             Action::EditReadingForm(form) => {
                 self.view.reading_editor.form = form;

@@ -9,7 +9,8 @@
 //! thermal history from the audit engine.
 //!
 //! Start-up options for screenshots and demos: `CRYOLEDGER_OPEN` opens a page
-//! (`tank:NAME[:now|readings|deliveries|trend]`, `tank:NAME:readings:latest` to open the latest
+//! (`tank:NAME[:now|readings|deliveries|trend]`, `audit[:fills|vehicles|gauges|findings]`,
+//! `audit:ticket:T` (that fill's balance open), `tank:NAME:readings:latest` to open the latest
 //! reading for editing, `setup:NAME`, `setup:new`, `help`), and
 //! `CRYOLEDGER_UNITS` (`si` or `us`) sets the display units for this session.
 #![deny(missing_docs)]
@@ -28,7 +29,7 @@ use serde::{Deserialize, Serialize};
 use std::path::PathBuf;
 use std::time::Instant;
 use store::Store;
-use view::{Page, TankTab, ViewState};
+use view::{AuditSection, Page, TankTab, ViewState};
 
 /// Why something the window asked for failed.
 #[derive(Debug, thiserror::Error)]
@@ -169,6 +170,19 @@ impl CryoApp {
             |core: &Core, name: &str| core.repository().tank_by_name(name).ok().map(|t| t.id.0);
         match kind {
             "help" => self.push(Action::ShowHelp),
+            "audit" => {
+                let section = AuditSection::ALL
+                    .into_iter()
+                    .find(|s| s.title().eq_ignore_ascii_case(name));
+                match (section, name) {
+                    (Some(s), _) => self.push(Action::ShowAuditSection(s)),
+                    (None, "ticket") => {
+                        self.push(Action::ShowAudit);
+                        self.core.view.audit.open_ticket = Some(tab.to_owned());
+                    }
+                    _ => self.push(Action::ShowAudit),
+                }
+            }
             "setup" if name == "new" || name.is_empty() => self.push(Action::OpenSetup(None)),
             "setup" | "tank" => match lookup(&self.core, name) {
                 Some(id) => {
@@ -231,6 +245,7 @@ impl CryoApp {
             Page::Tank => panels::tank_page::tank_page_ui(ui, view, &mut out),
             Page::Setup => panels::setup::setup_ui(ui, view, &mut out),
             Page::Help => panels::help::help_ui(ui, view, &mut out),
+            Page::Audit => panels::audit::audit_ui(ui, view, &mut out),
         });
         self.actions.extend(out);
     }

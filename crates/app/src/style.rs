@@ -36,6 +36,18 @@ pub const PANEL: Color32 = Color32::from_rgb(0xf3, 0xf5, 0xf7);
 /// Card background.
 pub const CARD: Color32 = Color32::from_rgb(0xff, 0xff, 0xff);
 
+/// The colour beside a verdict's word (never alone): short in red, excess in amber, inconclusive
+/// muted, consistent in the usual ink.
+pub fn verdict_colour(w: crate::view::VerdictWord) -> Option<Color32> {
+    use crate::view::VerdictWord;
+    match w {
+        VerdictWord::Short => Some(ERROR),
+        VerdictWord::Excess => Some(CAUTION),
+        VerdictWord::Inconclusive => Some(MUTED),
+        VerdictWord::Consistent => None,
+    }
+}
+
 /// Apply the palette and text sizes to a context.
 pub fn apply(ctx: &Context) {
     let mut v = Visuals::light();

@@ -163,7 +163,7 @@ fn a_delivery_is_added_and_listed() {
     tab(&mut h, "Deliveries");
     type_into(&mut h, "Ticket", "T-77001");
     type_into(&mut h, "Quantity", "3.2 t");
-    type_into(&mut h, "Carrier", "Fernhill Haulage");
+    type_into(&mut h, "Carrier", "Fennelwhirl Haulage");
     type_into(&mut h, "Vehicle", "FH-9");
     assert!(
         h.state().view().delivery_editor.check.ok,

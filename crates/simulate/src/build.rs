@@ -12,22 +12,22 @@ use crate::rng::Rng;
 
 pub(crate) const DEMO_SITES: [&str; 12] = [
     "Alder Street Bakery Works",
-    "Brackenfield Hospital",
-    "Cobble Hill Brewery",
-    "Dunmere Steel Fabrication",
-    "Elmstead Food Freezing",
+    "Bramwhistle Hospital",
+    "Corvane Hops Brewery",
+    "Drossgate Steel Fabrication",
+    "Embervik Food Freezing",
     "Foxglove Research Campus",
-    "Gannet Bay Fish Processing",
-    "Hollowell Lane Laser Cutting",
-    "Inchmoor Glassworks",
+    "Gullspray Bay Fish Processing",
+    "Hazelspin Lane Laser Cutting",
+    "Ironquill Glassworks",
     "Juniper Court Clinic",
-    "Kestrel Park Semiconductor",
-    "Larkspur Dairy",
+    "Kettlebrim Park Semiconductor",
+    "Lumberwisp Dairy",
 ];
 pub(crate) const DEMO_CARRIERS: [&str; 3] = [
     "Bluefrost Haulage",
     "Marrowgate Cryo Transport",
-    "Pinecrest Liquid Lines",
+    "Pinewhisk Liquid Lines",
 ];
 
 pub(crate) fn short_name(f: FluidId) -> &'static str {

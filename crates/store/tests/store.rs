@@ -147,7 +147,7 @@ fn tank_and_delivery_edits_keep_history() {
         end: "2026-01-02T10:30:00Z",
         quantity: "2500",
         quantity_unit: "kg",
-        carrier: "Northwind Haulage",
+        carrier: "Nimbleforth Haulage",
         vehicle: "NWH-07",
         ..Default::default()
     }

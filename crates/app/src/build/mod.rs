@@ -3,6 +3,7 @@
 //! One file per part of the window: the fleet list, the tank page, the trend, the forms and their
 //! checks, the histories.
 
+mod audit_page;
 mod fleet;
 mod form_fill;
 mod forms;
@@ -11,6 +12,7 @@ mod reading;
 mod tank_page;
 mod trend;
 
+pub use audit_page::{apply_filter, audit_view, verdict_word};
 pub use fleet::{FleetSummary, fleet_rows, fleet_sites, fleet_summary, history_check};
 pub use form_fill::{
     delivery_form_for, new_delivery_form, new_reading_form, new_setup_form, reading_form_for,

@@ -88,10 +88,22 @@ pub fn tank_view(
         (None, Ok(h)) => evaluate::open_findings(&h.balances, &h.findings, &s.name, latest_ms),
         (None, Err(_)) => Vec::new(),
     };
+    let balances: &[audit::Balance] = match (fleet_audit, &history) {
+        (Some(f), _) => &f.fills,
+        (None, Ok(h)) => &h.balances,
+        (None, Err(_)) => &[],
+    };
+    let verdict_of = |ticket: &str| {
+        balances
+            .iter()
+            .find(|b| b.ticket == ticket)
+            .map(|b| (super::verdict_word(b.verdict), b.residual_percent))
+    };
     let delivery_rows: Vec<DeliveryRow> = deliveries
         .iter()
         .rev()
         .map(|d| DeliveryRow {
+            verdict: verdict_of(&d.entry.ticket),
             id: d.id.0,
             ticket: d.entry.ticket.clone(),
             start_ms: d.entry.start.ms,

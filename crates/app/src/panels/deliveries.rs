@@ -25,6 +25,8 @@ pub fn deliveries_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
         Column::num("Billed", 90.0),
         Column::num("Supply", 80.0),
         Column::text("Vehicle", 64.0),
+        Column::text("Verdict", 90.0),
+        Column::num("Residual (%)", 84.0),
     ];
     let used: f32 = cols.iter().map(|c| c.width).sum();
     cols.push(Column::text(
@@ -55,9 +57,12 @@ pub fn deliveries_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
                     d.quantity_text.clone(),
                     d.supply_text.clone(),
                     d.vehicle.clone(),
+                    d.verdict
+                        .map_or("not audited yet".into(), |v| v.0.word().to_owned()),
+                    d.verdict.map_or(String::new(), |v| fmt::num(v.1, 2)),
                     d.carrier.clone(),
                 ],
-                colour: None,
+                colour: d.verdict.and_then(|v| style::verdict_colour(v.0)),
             })
         },
     );

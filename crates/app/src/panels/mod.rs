@@ -1,6 +1,7 @@
 //! Panels: each is `xxx_ui(ui, &ViewState, &mut Vec<Action>)`; it draws from the view state and emits
 //! actions, and never reaches the database or an engine.
 
+pub mod audit;
 pub mod deliveries;
 pub mod fleet;
 pub mod help;

@@ -27,6 +27,13 @@ pub fn top_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
             out.push(Action::OpenSetup(view.tank.as_ref().map(|t| t.id)));
         }
         if ui
+            .selectable_label(view.page == Page::Audit, "Audit")
+            .on_hover_text("Every fill's balance, vehicles, gauges and findings")
+            .clicked()
+        {
+            out.push(Action::ShowAudit);
+        }
+        if ui
             .selectable_label(view.page == Page::Help, "Help and cautions")
             .clicked()
         {

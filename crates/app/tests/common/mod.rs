@@ -172,7 +172,7 @@ pub fn add_history_at(
                 end: &end,
                 quantity: &billed,
                 quantity_unit: "kg",
-                carrier: "Fernhill Haulage",
+                carrier: "Fennelwhirl Haulage",
                 vehicle: "FH-3",
                 supply_pressure: &supply,
                 supply_pressure_unit: "barg",

@@ -1,0 +1,357 @@
+//! The audit page from the fleet audit (the same `cryoledger audit` gives): every balance with its
+//! budget and bracketing readings, vehicles, gauges and findings; the filter and the order of the fill
+//! list are applied here, when they change, never per frame.
+
+use std::collections::{BTreeSet, HashMap};
+
+use audit::{Balance, FindingKind, FleetAudit, GaugeStatus, VehicleStatus, Verdict};
+
+use crate::fmt::{self, UnitSystem};
+use crate::view::*;
+
+/// The window's word for a verdict.
+pub fn verdict_word(v: Verdict) -> VerdictWord {
+    match v {
+        Verdict::Short => VerdictWord::Short,
+        Verdict::Excess => VerdictWord::Excess,
+        Verdict::Inconclusive => VerdictWord::Inconclusive,
+        Verdict::Consistent => VerdictWord::Consistent,
+    }
+}
+
+fn bracket(r: &Option<audit::BracketReading>) -> Option<BracketView> {
+    r.as_ref().map(|r| BracketView {
+        time_ms: r.time_ms,
+        mass_kg: r.total_mass_kg,
+        fill: r.fill_fraction,
+        liquid_temperature_k: r.liquid_temperature_k,
+        saturation_temperature_k: r.saturation_temperature_k,
+    })
+}
+
+fn balance_row(b: &Balance, site: &str, tank_id: Option<i64>, materiality: f64) -> BalanceRow {
+    BalanceRow {
+        ticket: b.ticket.clone(),
+        site: site.to_owned(),
+        tank: b.tank.clone(),
+        tank_id,
+        carrier: b.carrier.clone(),
+        vehicle: b.vehicle.clone(),
+        start_ms: b.start_ms,
+        verdict: verdict_word(b.verdict),
+        billed_kg: b.billed_kg,
+        gained_kg: b.gained_kg,
+        drawn_kg: b.drawn_kg,
+        residual_kg: b.residual_kg,
+        residual_percent: b.residual_percent,
+        sigma_kg: b.sigma_kg,
+        limit_kg: b.limit_kg,
+        materiality_kg: materiality * b.billed_kg.abs(),
+        budget: vec![
+            BudgetPart {
+                label: "readings, shared",
+                kg: b.sigma_readings_shared_kg,
+            },
+            BudgetPart {
+                label: "readings, independent",
+                kg: b.sigma_readings_independent_kg,
+            },
+            BudgetPart {
+                label: "use between the readings",
+                kg: b.sigma_usage_kg,
+            },
+            BudgetPart {
+                label: "meters",
+                kg: b.sigma_meter_kg,
+            },
+            BudgetPart {
+                label: "gauge scale",
+                kg: b.sigma_gauge_scale_kg,
+            },
+        ],
+        before: bracket(&b.before),
+        after: bracket(&b.after),
+        scale: b
+            .gauge_scale
+            .map(|g| {
+                format!(
+                    "{:.4} ± {:.4} ({}, from {} other fills)",
+                    g.scale, g.u, g.model, g.fills
+                )
+            })
+            .unwrap_or_else(|| "as the gauge reads (too few other fills to fit its scale)".into()),
+        explanation: b.explanation.clone(),
+    }
+}
+
+/// The audit page from a fleet audit; the filter, order, section and selection of `old` are kept.
+pub fn audit_view(
+    fa: &FleetAudit,
+    sites: &[FleetSite],
+    materiality: f64,
+    units: UnitSystem,
+    old: &AuditView,
+) -> AuditView {
+    let mut site_of: HashMap<&str, (&str, i64)> = HashMap::new();
+    for s in sites {
+        for t in &s.tanks {
+            site_of.insert(t.name.as_str(), (s.name.as_str(), t.id));
+        }
+    }
+    let rows: Vec<BalanceRow> = fa
+        .fills
+        .iter()
+        .map(|b| {
+            let (site, id) = site_of
+                .get(b.tank.as_str())
+                .map_or(("", None), |(s, id)| (*s, Some(*id)));
+            balance_row(b, site, id, materiality)
+        })
+        .collect();
+    let names = |f: &dyn Fn(&BalanceRow) -> &str| -> Vec<String> {
+        rows.iter()
+            .map(|r| f(r).to_owned())
+            .filter(|s| !s.is_empty())
+            .collect::<BTreeSet<_>>()
+            .into_iter()
+            .collect()
+    };
+    let choices = [
+        names(&|r| &r.site),
+        names(&|r| &r.tank),
+        names(&|r| &r.carrier),
+        names(&|r| &r.vehicle),
+    ];
+    let vehicles = fa
+        .vehicles
+        .iter()
+        .map(|v| VehicleLine {
+            vehicle: v.vehicle.clone(),
+            carrier: v.carrier.clone(),
+            status: match v.status {
+                VehicleStatus::Ok => "ok",
+                VehicleStatus::Biased => "biased",
+                VehicleStatus::NotEnoughData => "too few fills",
+            }
+            .into(),
+            flagged: v.status == VehicleStatus::Biased,
+            fills: v.fills,
+            bias: match (v.bias_percent, v.ci95_low_percent, v.ci95_high_percent) {
+                (Some(b), Some(l), Some(h)) => Some((b, l, h)),
+                _ => None,
+            },
+            short_fills: v.short_fills,
+            p_adjusted: v.p_adjusted,
+            tolerance_percent: v.legal_tolerance_percent,
+        })
+        .collect();
+    let gauges = fa
+        .gauges
+        .iter()
+        .map(|g| GaugeLine {
+            tank: g.tank.clone(),
+            status: match g.status {
+                GaugeStatus::Ok => "ok",
+                GaugeStatus::Drift => "drift",
+                GaugeStatus::Step => "step",
+                GaugeStatus::NotEnoughData => "too few fills",
+            }
+            .into(),
+            flagged: matches!(g.status, GaugeStatus::Drift | GaugeStatus::Step),
+            fills: g.fills,
+            drift: g.drift_percent_per_year,
+            step: g.step_percent.zip(g.step_ms),
+            p_adjusted: g.p_adjusted,
+        })
+        .collect();
+    let findings = fa
+        .findings
+        .iter()
+        .map(|f| FindingLine {
+            tank: f.tank.clone(),
+            tank_id: site_of.get(f.tank.as_str()).map(|x| x.1),
+            kind: match f.kind {
+                FindingKind::UnexplainedGain => "gain no ticket explains",
+                FindingKind::LossBeyondUse => "loss beyond use",
+            }
+            .into(),
+            from_ms: f.from_ms,
+            to_ms: f.to_ms,
+            text: f.explanation.clone(),
+        })
+        .collect();
+    let mut v = AuditView {
+        ready: true,
+        rows,
+        visible: Vec::new(),
+        filter: old.filter.clone(),
+        sort: old.sort,
+        filter_error: None,
+        choices,
+        summary: String::new(),
+        selected: None,
+        open_ticket: None,
+        section: old.section,
+        vehicles,
+        gauges,
+        findings,
+        stopped: false,
+    };
+    // the open balance stays open when its ticket is still there
+    let open = old
+        .selected
+        .and_then(|i| old.rows.get(i))
+        .map(|r| r.ticket.clone())
+        .or_else(|| old.open_ticket.clone());
+    v.selected = open.and_then(|t| v.rows.iter().position(|r| r.ticket == t));
+    apply_filter(&mut v, units);
+    v
+}
+
+/// ms since the epoch of the start of a day, YYYY-MM-DD (UTC).
+fn day_ms(text: &str) -> Result<Option<i64>, String> {
+    let t = text.trim();
+    if t.is_empty() {
+        return Ok(None);
+    }
+    store::Stamp::parse(&format!("{t}T00:00:00Z"))
+        .map(|s| Some(s.ms))
+        .map_err(|_| format!("'{t}' is not a date: write YYYY-MM-DD"))
+}
+
+/// Keep the rows the filter asks for, in the chosen order, and write the summary line.
+pub fn apply_filter(v: &mut AuditView, units: UnitSystem) {
+    let f = &v.filter;
+    let from = day_ms(&f.from);
+    let to = day_ms(&f.to);
+    v.filter_error = from.as_ref().err().or(to.as_ref().err()).cloned();
+    let from = from.ok().flatten().unwrap_or(i64::MIN);
+    let to = to
+        .ok()
+        .flatten()
+        .map_or(i64::MAX, |ms| ms.saturating_add(86_400_000));
+    let same = |want: &str, have: &str| want.is_empty() || want == have;
+    let mut kept: Vec<usize> = v
+        .rows
+        .iter()
+        .enumerate()
+        .filter(|(_, r)| {
+            same(&f.site, &r.site)
+                && same(&f.tank, &r.tank)
+                && same(&f.carrier, &r.carrier)
+                && same(&f.vehicle, &r.vehicle)
+                && f.verdict.is_none_or(|w| w == r.verdict)
+                && r.start_ms >= from
+                && r.start_ms < to
+        })
+        .map(|(i, _)| i)
+        .collect();
+    let rows = &v.rows;
+    let (col, descending) = v.sort;
+    kept.sort_by(|&a, &b| {
+        let (x, y) = (&rows[a], &rows[b]);
+        let o = match col {
+            AuditColumn::Start => x.start_ms.cmp(&y.start_ms),
+            AuditColumn::Ticket => x.ticket.cmp(&y.ticket),
+            AuditColumn::Tank => x.tank.cmp(&y.tank).then(x.start_ms.cmp(&y.start_ms)),
+            AuditColumn::Vehicle => x.vehicle.cmp(&y.vehicle).then(x.start_ms.cmp(&y.start_ms)),
+            AuditColumn::Verdict => x.verdict.cmp(&y.verdict).then(x.start_ms.cmp(&y.start_ms)),
+            AuditColumn::Billed => x.billed_kg.total_cmp(&y.billed_kg),
+            AuditColumn::Residual => x.residual_percent.total_cmp(&y.residual_percent),
+        };
+        if descending { o.reverse() } else { o }
+    });
+    let count = |w: VerdictWord| kept.iter().filter(|&&i| rows[i].verdict == w).count();
+    let judged: Vec<&BalanceRow> = kept
+        .iter()
+        .map(|&i| &rows[i])
+        .filter(|r| r.verdict != VerdictWord::Inconclusive)
+        .collect();
+    let billed: f64 = judged.iter().map(|r| r.billed_kg).sum();
+    let arrived: f64 = judged.iter().map(|r| r.billed_kg - r.residual_kg).sum();
+    let unit = units.mass_unit();
+    v.summary = format!(
+        "{} fills: {} short, {} excess, {} inconclusive. Judged fills billed {} {unit}; the tanks show {} {unit} arrived ({}{} %).",
+        kept.len(),
+        count(VerdictWord::Short),
+        count(VerdictWord::Excess),
+        count(VerdictWord::Inconclusive),
+        fmt::num(units.mass(billed), 0),
+        fmt::num(units.mass(arrived), 0),
+        if arrived >= billed { "+" } else { "" },
+        fmt::num(
+            if billed > 0.0 {
+                100.0 * (arrived - billed) / billed
+            } else {
+                0.0
+            },
+            2
+        ),
+    );
+    v.visible = kept;
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn row(ticket: &str, tank: &str, vehicle: &str, start_ms: i64, w: VerdictWord) -> BalanceRow {
+        BalanceRow {
+            ticket: ticket.into(),
+            site: "Yard".into(),
+            tank: tank.into(),
+            tank_id: Some(1),
+            carrier: "Carrier".into(),
+            vehicle: vehicle.into(),
+            start_ms,
+            verdict: w,
+            billed_kg: 1000.0,
+            gained_kg: 980.0,
+            drawn_kg: 0.0,
+            residual_kg: 20.0,
+            residual_percent: 2.0,
+            sigma_kg: 5.0,
+            limit_kg: 10.0,
+            materiality_kg: 10.0,
+            budget: Vec::new(),
+            before: None,
+            after: None,
+            scale: String::new(),
+            explanation: String::new(),
+        }
+    }
+
+    /// The filter keeps what it names and a period counts whole days; the order follows the column;
+    /// the summary counts the kept fills (constructed rows).
+    #[test]
+    fn filter_sort_and_summary() {
+        let day = 86_400_000;
+        let base = day_ms("2026-03-01").unwrap().unwrap();
+        let mut v = AuditView {
+            rows: vec![
+                row("T1", "A", "V1", base, VerdictWord::Consistent),
+                row("T2", "A", "V2", base + day, VerdictWord::Short),
+                row("T3", "B", "V2", base + 2 * day + 1, VerdictWord::Short),
+            ],
+            ..Default::default()
+        };
+        v.filter.vehicle = "V2".into();
+        apply_filter(&mut v, UnitSystem::Si);
+        assert_eq!(v.visible, vec![1, 2]);
+        assert!(v.summary.starts_with("2 fills: 2 short"), "{}", v.summary);
+        v.filter.to = "2026-03-02".into();
+        apply_filter(&mut v, UnitSystem::Si);
+        assert_eq!(v.visible, vec![1]);
+        v.filter = AuditFilter::default();
+        v.sort = (AuditColumn::Start, true);
+        apply_filter(&mut v, UnitSystem::Si);
+        assert_eq!(v.visible, vec![2, 1, 0]);
+        v.filter.from = "March".into();
+        apply_filter(&mut v, UnitSystem::Si);
+        assert!(
+            v.filter_error
+                .as_deref()
+                .is_some_and(|e| e.contains("YYYY-MM-DD"))
+        );
+    }
+}

@@ -1,0 +1,178 @@
+//! The audit page driven through the real app (egui_kittest) on the demo fleet: the planted short
+//! vehicle, drifting gauge and findings are found in their sections, the filter keeps one vehicle's
+//! fills, a balance's detail shows the numbers of the bridge's fleet audit (the one
+//! `cryoledger audit --format json` prints; tests/e2e/one_path.rs shows the two agree), and the
+//! deliveries tab shows each fill's verdict.
+
+#![allow(clippy::expect_used)] // helpers of tests: a failure to set up is a test failure
+
+use app::CryoApp;
+use app::action::Action;
+use app::egui;
+use app::view::{AuditSection, Page, VerdictWord};
+use egui_kittest::{Harness, kittest::Queryable};
+use std::path::PathBuf;
+use store::{ImportOptions, ImportSource, ImportSources, Repository, Store};
+
+/// The demo fleet of `cryoledger demo` (demo-data/, its planted faults in demo-data/README.md).
+fn demo_store() -> Store {
+    let mut s = Store::open_in_memory().expect("store");
+    s.import(
+        ImportSources {
+            tanks: Some(ImportSource::text(
+                "tanks.csv",
+                include_str!("../../../demo-data/tanks.csv"),
+            )),
+            readings: Some(ImportSource::text(
+                "readings.csv",
+                include_str!("../../../demo-data/readings.csv"),
+            )),
+            deliveries: Some(ImportSource::text(
+                "deliveries.csv",
+                include_str!("../../../demo-data/deliveries.csv"),
+            )),
+        },
+        &ImportOptions::default(),
+    )
+    .expect("demo import");
+    s
+}
+
+fn harness() -> Harness<'static, CryoApp> {
+    let mut app = CryoApp::new(demo_store(), PathBuf::from(":memory:"));
+    app.wait_for_background();
+    let mut h = Harness::builder()
+        .with_size(egui::vec2(1360.0, 860.0))
+        .build_eframe(move |_cc| app);
+    h.run();
+    h
+}
+
+#[test]
+fn the_audit_page_shows_what_was_planted_in_the_demo() {
+    let mut h = harness();
+    h.get_by_label("Audit").click();
+    h.run();
+    assert_eq!(h.state().view().page, Page::Audit);
+    let a = &h.state().view().audit;
+    assert!(a.ready);
+    assert_eq!(a.visible.len(), a.rows.len());
+    // the summary counts what the fleet audit judged (demo-data/README.md: MC-T25 3 % short on its
+    // fills)
+    let shorts = a
+        .rows
+        .iter()
+        .filter(|r| r.verdict == VerdictWord::Short)
+        .count();
+    assert!(shorts >= 20, "{shorts} short fills");
+    assert!(
+        a.summary.contains(&format!("{shorts} short")),
+        "{}",
+        a.summary
+    );
+
+    // vehicles: MC-T25 biased, and no other
+    h.get_by_label("Vehicles").click();
+    h.run();
+    assert_eq!(h.state().view().audit.section, AuditSection::Vehicles);
+    let biased: Vec<String> = h
+        .state()
+        .view()
+        .audit
+        .vehicles
+        .iter()
+        .filter(|v| v.flagged)
+        .map(|v| v.vehicle.clone())
+        .collect();
+    assert_eq!(biased, vec!["MC-T25".to_owned()]);
+    h.get_by_label("biased");
+    // gauges: DSF-AR-7 drifting
+    h.get_by_label("Gauges").click();
+    h.run();
+    let flagged: Vec<(String, String)> = h
+        .state()
+        .view()
+        .audit
+        .gauges
+        .iter()
+        .filter(|g| g.flagged)
+        .map(|g| (g.tank.clone(), g.status.clone()))
+        .collect();
+    assert_eq!(flagged, vec![("DSF-AR-7".to_owned(), "drift".to_owned())]);
+    h.get_by_label("drift");
+    // findings: the unlogged fill at BH-AR-3 and the leak at EFF-O2-10
+    h.get_by_label("Findings").click();
+    h.run();
+    h.get_by_label("gain no ticket explains");
+    h.get_by_label("loss beyond use");
+    let tanks: Vec<String> = h
+        .state()
+        .view()
+        .audit
+        .findings
+        .iter()
+        .map(|f| f.tank.clone())
+        .collect();
+    assert_eq!(tanks, vec!["BH-AR-3".to_owned(), "EFF-O2-10".to_owned()]);
+}
+
+#[test]
+fn a_balance_opens_with_the_fleet_audits_numbers_and_the_filter_keeps_one_vehicle() {
+    let mut h = harness();
+    h.get_by_label("Audit").click();
+    h.run();
+    // keep MC-T25's fills
+    let mut f = h.state().view().audit.filter.clone();
+    f.vehicle = "MC-T25".into();
+    h.state_mut().push(Action::SetAuditFilter(f));
+    h.run();
+    let a = &h.state().view().audit;
+    assert!(!a.visible.is_empty());
+    assert!(a.visible.iter().all(|&i| a.rows[i].vehicle == "MC-T25"));
+    // open the first kept balance by clicking its ticket
+    let i = a.visible[0];
+    let ticket = a.rows[i].ticket.clone();
+    h.get_by_label(ticket.as_str()).click();
+    h.run();
+    assert_eq!(h.state().view().audit.selected, Some(i));
+    // the bridge's fleet audit for the same ticket (what `audit --format json` prints)
+    let fleet = evaluate::audit_fleet(
+        h.state().repository(),
+        &evaluate::AuditRequest::default(),
+        &mut |_, _| {},
+        &std::sync::atomic::AtomicBool::new(false),
+    )
+    .expect("audit");
+    let b = fleet
+        .fills
+        .iter()
+        .find(|b| b.ticket == ticket)
+        .expect("ticket audited");
+    let r = &h.state().view().audit.rows[i];
+    assert_eq!(r.residual_kg, b.residual_kg);
+    assert_eq!(r.sigma_kg, b.sigma_kg);
+    assert_eq!(r.explanation, b.explanation);
+    // shown: the heading, the verdict word, the residual in kg as formatted, the sentence
+    h.get_by_label(format!("Ticket {ticket}").as_str());
+    h.get_by_label(format!("{} kg", app::fmt::num(b.residual_kg, 0)).as_str());
+    h.get_by_label(b.explanation.as_str());
+    // to the delivery on its tank page: its verdict is in the deliveries tab
+    h.get_by_label("Open the delivery on its tank page").click();
+    h.run();
+    let v = h.state().view();
+    assert_eq!(v.page, Page::Tank);
+    let t = v.tank.as_ref().expect("tank page");
+    assert_eq!(t.name, b.tank);
+    let row = t
+        .deliveries
+        .iter()
+        .find(|d| d.ticket == ticket)
+        .expect("delivery row");
+    assert_eq!(row.verdict.map(|x| x.0), Some(VerdictWord::Short));
+    assert_eq!(
+        v.delivery_editor.form.editing,
+        Some(row.id),
+        "the delivery is open in the form"
+    );
+    let _ = h.state().repository().reading_count(None);
+}
