@@ -15,13 +15,16 @@ profile=${PROFILE:-release}
 if [[ $profile == release ]]; then cargo build -q --release -p cryoledger; else cargo build -q -p cryoledger; fi
 cargo run -q -p app --example demo_db -- "$db"
 bin=$CARGO_TARGET_DIR/$profile/cryoledger
+# The audit pages show the demo fleet of `cryoledger demo` (its planted faults).
+audit_db=$work/audit.db
+"$bin" demo --db "$audit_db" > /dev/null
 # Keep eframe's remembered settings out of the user's data directory.
 export XDG_DATA_HOME=$work/data XDG_CONFIG_HOME=$work/config
 out=assets/screenshots
 mkdir -p "$out"
-shot() { # NAME PAGE UNITS (retried: a private X server occasionally fails to start)
+shot() { # NAME PAGE UNITS [DB] (retried: a private X server occasionally fails to start)
   for _ in 1 2 3; do
-    CRYOLEDGER_OPEN=$2 CRYOLEDGER_UNITS=$3 "$shoot" "$out/$1.png" --wait 4 --size 1360x860 -- "$bin" --db "$db" && return 0
+    CRYOLEDGER_OPEN=$2 CRYOLEDGER_UNITS=$3 "$shoot" "$out/$1.png" --wait "${WAIT:-4}" --size 1360x860 -- "$bin" --db "${4:-$db}" && return 0
     sleep 1
   done
   return 1
@@ -35,3 +38,8 @@ shot trend tank:LF-N2-1:trend si
 shot trend-oxygen-us tank:CR-O2-1:trend us
 shot setup setup:LF-AR-1 si
 shot help help si
+# the audit runs in the background first: give it time
+WAIT=10 shot audit-fills audit si "$audit_db"
+WAIT=10 shot audit-balance audit:ticket:TK100056 si "$audit_db"
+WAIT=10 shot audit-vehicles audit:vehicles si "$audit_db"
+WAIT=10 shot audit-gauges audit:gauges si "$audit_db"

@@ -28,7 +28,7 @@ fn main() {
     let end = app::fmt::now_ms() / DAY_MS * DAY_MS - DAY_MS + 7 * 3_600_000;
     let fleet = [
         (
-            "Larchfield Foundry",
+            "Lanternfell Foundry",
             "LF-N2-1",
             "nitrogen",
             "vertical",
@@ -36,29 +36,36 @@ fn main() {
             0,
         ),
         (
-            "Larchfield Foundry",
+            "Lanternfell Foundry",
             "LF-N2-2",
             "nitrogen",
             "vertical",
             11,
             0,
         ),
-        ("Larchfield Foundry", "LF-AR-1", "argon", "horizontal", 5, 0),
+        (
+            "Lanternfell Foundry",
+            "LF-AR-1",
+            "argon",
+            "horizontal",
+            5,
+            0,
+        ),
         ("Copse Road Lab", "CR-O2-1", "oxygen", "vertical", 17, 0),
         ("Copse Road Lab", "CR-N2-1", "nitrogen", "horizontal", 24, 6),
         (
-            "Millbrook Dairy",
+            "Mossquill Dairy",
             "MD-CO2-1",
             "carbon-dioxide",
             "horizontal",
             8,
             0,
         ),
-        ("Millbrook Dairy", "MD-N2-1", "nitrogen", "vertical", 29, 0),
-        ("Saltmarsh Works", "SW-N2-1", "nitrogen", "vertical", 3, 0),
-        ("Saltmarsh Works", "SW-N2-2", "nitrogen", "vertical", 14, 0),
-        ("Saltmarsh Works", "SW-O2-1", "oxygen", "vertical", 20, 0),
-        ("Saltmarsh Works", "SW-AR-1", "argon", "vertical", 26, 0),
+        ("Mossquill Dairy", "MD-N2-1", "nitrogen", "vertical", 29, 0),
+        ("Sorrelwick Works", "SW-N2-1", "nitrogen", "vertical", 3, 0),
+        ("Sorrelwick Works", "SW-N2-2", "nitrogen", "vertical", 14, 0),
+        ("Sorrelwick Works", "SW-O2-1", "oxygen", "vertical", 20, 0),
+        ("Sorrelwick Works", "SW-AR-1", "argon", "vertical", 26, 0),
     ];
     for (i, (site, name, fluid, o, phase, stale_days)) in fleet.iter().enumerate() {
         let mut spec = tank_fields(site, name, fluid, o);

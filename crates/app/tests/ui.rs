@@ -260,7 +260,7 @@ fn tank_setup_creates_a_tank_with_a_live_full_tank_dp() {
     h.get_by_label("New tank").click();
     h.run();
     assert_eq!(h.state().view().page, Page::Setup);
-    type_into(&mut h, "Site name", "Millbrook Dairy");
+    type_into(&mut h, "Site name", "Mossquill Dairy");
     type_into(&mut h, "Tank name", "MD-N2-1");
     type_into(&mut h, "Relief set pressure", "17");
     type_into(&mut h, "Reorder level (%)", "30");
@@ -275,7 +275,7 @@ fn tank_setup_creates_a_tank_with_a_live_full_tank_dp() {
         .repository()
         .tank_by_name("MD-N2-1")
         .expect("created");
-    assert_eq!(t.spec.site, "Millbrook Dairy");
+    assert_eq!(t.spec.site, "Mossquill Dairy");
     assert_eq!(t.spec.reorder_percent, Some(30.0));
     // It is in the navigator.
     assert!(h.query_by_label("MD-N2-1").is_some());

@@ -192,8 +192,8 @@ pub fn small_fleet(days: i64) -> Store {
     let mut s = Store::open_in_memory().expect("store");
     let end = app::fmt::now_ms() / DAY_MS * DAY_MS - DAY_MS + 8 * 3_600_000;
     let specs = [
-        ("Larchfield Foundry", "LF-N2-1", "nitrogen", "vertical"),
-        ("Larchfield Foundry", "LF-AR-1", "argon", "horizontal"),
+        ("Lanternfell Foundry", "LF-N2-1", "nitrogen", "vertical"),
+        ("Lanternfell Foundry", "LF-AR-1", "argon", "horizontal"),
         ("Copse Road Lab", "CR-O2-1", "oxygen", "vertical"),
     ];
     for (i, (site, name, fluid, o)) in specs.iter().enumerate() {
