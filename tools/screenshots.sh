@@ -42,4 +42,4 @@ shot help help si
 WAIT=10 shot audit-fills audit si "$audit_db"
 WAIT=10 shot audit-balance audit:ticket:TK100056 si "$audit_db"
 WAIT=10 shot audit-vehicles audit:vehicles si "$audit_db"
-WAIT=10 shot audit-gauges audit:gauges si "$audit_db"
+WAIT=10 shot audit-gauges audit:gauges:DSF-AR-7 si "$audit_db"

@@ -2,7 +2,7 @@
 //!
 //! `cargo run -p app --example demo_db -- OUT.db [--fleet N] [--days D]`: with no options, four sites
 //! and eleven tanks with two years of daily readings; `--fleet N` adds N more small tanks (30 days of
-//! readings each) for navigator benchmarks.
+//! readings each) for Fleet list benchmarks.
 #![allow(clippy::expect_used)]
 
 #[path = "../tests/common/mod.rs"]

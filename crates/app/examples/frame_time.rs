@@ -1,10 +1,11 @@
 //! Frame-time and page-open benchmark, a bench command (CI runs it):
 //! `cargo run -p app --release --example frame_time` (`-- --tanks N` for a smaller fleet).
 //!
-//! A fleet of 1,000 tanks in the navigator (30 days of readings each) and one tank with five years of
+//! A fleet of 1,000 tanks in the Fleet list (30 days of readings each) and one tank with five years of
 //! daily readings shown on the Trend tab over its whole history. Reports the time to open that tank's
 //! page (every reading evaluated with its uncertainty) and the CPU time per frame: the app's own timer
-//! (logic + ui) and the whole harness step (egui layout, accessibility tree).
+//! (logic + ui) and the whole harness step (egui layout, accessibility tree); then the audit page
+//! with one balance open, and frames while the fleet audit runs again in the background.
 #![allow(clippy::expect_used)] // benchmark set-up: a failure stops the benchmark
 
 #[path = "../tests/common/mod.rs"]
@@ -123,12 +124,12 @@ fn main() {
     let (o_med, o_p95, o_mean) = stats(own);
     let (s_med, s_p95, s_mean) = stats(step);
     let (t_med, t_p95, t_mean) = stats(total);
-    println!("trend (all 5 years) + {tanks}-tank navigator, 300 frames:");
+    println!("trend (all 5 years) + {tanks}-tank Fleet list, 300 frames:");
     println!("  app logic+ui CPU: median {o_med:.2} ms, p95 {o_p95:.2} ms, mean {o_mean:.2} ms");
     println!("  whole harness step: median {s_med:.2} ms, p95 {s_p95:.2} ms, mean {s_mean:.2} ms");
     println!("  step + tessellation: median {t_med:.2} ms, p95 {t_p95:.2} ms, mean {t_mean:.2} ms");
 
-    // The Readings table (1826 rows, virtualised) beside the navigator.
+    // The Readings table (1826 rows, virtualised) beside the Fleet list.
     h.state_mut().push(Action::ShowTab(TankTab::Readings));
     h.step();
     let (mut own, mut total) = (Vec::new(), Vec::new());
@@ -143,9 +144,61 @@ fn main() {
     }
     let (r_med, r_p95, _) = stats(own);
     let (rt_med, rt_p95, _) = stats(total);
-    println!("readings table ({n} rows, virtualised) + navigator:");
+    println!("readings table ({n} rows, virtualised) + Fleet list:");
     println!("  app logic+ui CPU: median {r_med:.2} ms, p95 {r_p95:.2} ms");
     println!("  step + tessellation: median {rt_med:.2} ms, p95 {rt_p95:.2} ms");
+
+    // The audit page: every fill of the fleet, filtered and ordered, one balance open.
+    h.state_mut().push(Action::ShowAudit);
+    h.step();
+    let fills = h.state().view().audit.rows.len();
+    if fills > 0 {
+        h.state_mut().push(Action::SelectBalance(Some(0)));
+    }
+    h.step();
+    let (mut own, mut total) = (Vec::new(), Vec::new());
+    for i in 0..100 {
+        h.hover_at(app::egui::pos2(600.0, 200.0 + (i % 20) as f32 * 20.0));
+        let t = Instant::now();
+        h.step();
+        let shapes = h.output().shapes.clone();
+        let ppp = h.output().pixels_per_point;
+        let _meshes = h.ctx.tessellate(shapes, ppp);
+        total.push(t.elapsed().as_secs_f64() * 1e3);
+        own.push(h.state().last_frame_ms());
+    }
+    let (a_med, a_p95, _) = stats(own);
+    let (at_med, at_p95, _) = stats(total);
+    println!("audit page ({fills} fills, one balance open) + Fleet list:");
+    println!("  app logic+ui CPU: median {a_med:.2} ms, p95 {a_p95:.2} ms");
+    println!("  step + tessellation: median {at_med:.2} ms, p95 {at_p95:.2} ms");
+
+    // Frames while the fleet audit runs again in the background (its own thread and connection).
+    h.state_mut().push(Action::RunAudit);
+    h.step();
+    let (mut own, mut total) = (Vec::new(), Vec::new());
+    let started = Instant::now();
+    while h.state().view().fleet.progress.is_some() && started.elapsed().as_secs() < 600 {
+        let t = Instant::now();
+        h.step();
+        let shapes = h.output().shapes.clone();
+        let ppp = h.output().pixels_per_point;
+        let _meshes = h.ctx.tessellate(shapes, ppp);
+        total.push(t.elapsed().as_secs_f64() * 1e3);
+        own.push(h.state().last_frame_ms());
+    }
+    let frames = own.len();
+    let (b_med, b_p95, _) = stats(own);
+    let (bt_med, bt_p95, _) = stats(total.clone());
+    let worst = total.iter().copied().fold(0.0_f64, f64::max);
+    println!(
+        "audit page while the {tanks}-tank audit runs in the background ({frames} frames, {:.1} s):",
+        started.elapsed().as_secs_f64()
+    );
+    println!("  app logic+ui CPU: median {b_med:.2} ms, p95 {b_p95:.2} ms");
+    println!(
+        "  step + tessellation: median {bt_med:.2} ms, p95 {bt_p95:.2} ms, worst {worst:.2} ms"
+    );
     drop(h);
     let _ = std::fs::remove_dir_all(&dir);
 }

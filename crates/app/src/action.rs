@@ -14,11 +14,11 @@ use store::{Repository, Store, TankId};
 /// One user intent, emitted by a panel or a test.
 #[derive(Debug, Clone, PartialEq)]
 pub enum Action {
-    /// Show this tank's page (Fleet navigator click).
+    /// Show this tank's page (Fleet list click).
     SelectTank(i64),
-    /// Filter the fleet navigator by this text.
+    /// Filter the Fleet list by this text.
     SetFleetFilter(String),
-    /// Open or close a site in the navigator.
+    /// Open or close a site in the Fleet list.
     ToggleSite(i64),
     /// Show a tab of the tank page.
     ShowTab(TankTab),
@@ -70,6 +70,10 @@ pub enum Action {
     SortAudit(AuditColumn),
     /// Open a balance's detail (an index into the audit page's rows; None: close it).
     SelectBalance(Option<usize>),
+    /// Plot a gauge's fills on the audit page (an index into its gauges; None: close).
+    SelectGauge(Option<usize>),
+    /// Show or hide the frame and page-build timings in the status bar.
+    SetDiagnostics(bool),
     /// Stop the audit running in the background.
     StopAudit,
     /// Run the fleet audit again.
@@ -464,6 +468,10 @@ impl Core {
             Action::SelectBalance(i) => {
                 self.view.audit.selected = i.filter(|&i| i < self.view.audit.rows.len());
             }
+            Action::SelectGauge(i) => {
+                self.view.audit.gauge_open = i.filter(|&i| i < self.view.audit.gauges.len());
+            }
+            Action::SetDiagnostics(on) => self.view.diagnostics = on,
             Action::StopAudit => {
                 if let Some(job) = self.job.take() {
                     job.cancel.store(true, Ordering::Relaxed);
@@ -616,7 +624,7 @@ impl Core {
                     // Same site, same tank: only its line changes.
                     self.refresh_fleet_tank(id);
                 } else {
-                    // A new tank or site: the navigator's grouping changes; small fleets are quick.
+                    // A new tank or site: the Fleet list's grouping changes; small fleets are quick.
                     self.start_fleet_summary();
                     self.wait_for_background();
                 }

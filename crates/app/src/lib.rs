@@ -10,7 +10,7 @@
 //!
 //! Start-up options for screenshots and demos: `CRYOLEDGER_OPEN` opens a page
 //! (`tank:NAME[:now|readings|deliveries|trend]`, `audit[:fills|vehicles|gauges|findings]`,
-//! `audit:ticket:T` (that fill's balance open), `tank:NAME:readings:latest` to open the latest
+//! `audit:ticket:T` (that fill's balance open), `audit:gauges:TANK` (its fills plotted), `tank:NAME:readings:latest` to open the latest
 //! reading for editing, `setup:NAME`, `setup:new`, `help`), and
 //! `CRYOLEDGER_UNITS` (`si` or `us`) sets the display units for this session.
 #![deny(missing_docs)]
@@ -175,6 +175,10 @@ impl CryoApp {
                     .into_iter()
                     .find(|s| s.title().eq_ignore_ascii_case(name));
                 match (section, name) {
+                    (Some(AuditSection::Gauges), _) if !tab.is_empty() && tab != "now" => {
+                        self.push(Action::ShowAuditSection(AuditSection::Gauges));
+                        self.core.view.audit.open_gauge = Some(tab.to_owned());
+                    }
                     (Some(s), _) => self.push(Action::ShowAuditSection(s)),
                     (None, "ticket") => {
                         self.push(Action::ShowAudit);

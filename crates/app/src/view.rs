@@ -252,6 +252,12 @@ pub struct GaugeLine {
     pub step: Option<(f64, i64)>,
     /// p-value after Holm's correction.
     pub p_adjusted: Option<f64>,
+    /// Each fill's (gained + drawn) / billed, %: (days since the epoch, ratio, vehicle).
+    pub points: Vec<(f64, f64, String)>,
+    /// The drift the test found, drawn through the fills' mean: ((x0, y0), (x1, y1)).
+    pub drift_line: Option<[[f64; 2]; 2]>,
+    /// The step the test found: the mean before and after, each over its span of days.
+    pub step_lines: Vec<[[f64; 2]; 2]>,
 }
 
 /// One finding between fills.
@@ -300,6 +306,10 @@ pub struct AuditView {
     pub vehicles: Vec<VehicleLine>,
     /// Gauges.
     pub gauges: Vec<GaugeLine>,
+    /// The gauge whose fills are plotted (index into `gauges`).
+    pub gauge_open: Option<usize>,
+    /// A tank whose gauge to plot once the audit is in (start-up option).
+    pub open_gauge: Option<String>,
     /// Findings between fills.
     pub findings: Vec<FindingLine>,
     /// True when the user stopped the audit before it finished.
@@ -367,7 +377,7 @@ impl TrendQuantity {
     }
 }
 
-/// Why a tank in the navigator wants attention.
+/// Why a tank in the Fleet list wants attention.
 #[derive(Debug, Clone, PartialEq)]
 pub enum Attention {
     /// The latest reading is older than the stale limit (or there is none).
@@ -403,7 +413,7 @@ impl Attention {
     }
 }
 
-/// One tank's line in the fleet navigator.
+/// One tank's line in the Fleet list.
 #[derive(Debug, Clone, PartialEq)]
 pub struct FleetTank {
     /// Tank id.
@@ -422,7 +432,7 @@ pub struct FleetTank {
     pub attention: Vec<Attention>,
 }
 
-/// A site and its tanks, for the navigator.
+/// A site and its tanks, for the Fleet list.
 #[derive(Debug, Clone, PartialEq)]
 pub struct FleetSite {
     /// Site id.
@@ -433,7 +443,7 @@ pub struct FleetSite {
     pub tanks: Vec<FleetTank>,
 }
 
-/// One visible line of the navigator (the list is virtualised, so it is flattened).
+/// One visible line of the Fleet list (the list is virtualised, so it is flattened).
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum FleetRow {
     /// A site header: index into [`FleetView::sites`], and whether it is open.
@@ -442,7 +452,7 @@ pub enum FleetRow {
     Tank(usize, usize),
 }
 
-/// The fleet navigator's content.
+/// The Fleet list's content.
 #[derive(Debug, Clone, Default)]
 pub struct FleetView {
     /// Sites and tanks.
@@ -638,8 +648,10 @@ pub struct TrendView {
     pub pressure: Vec<[f64; 2]>,
     /// Pressure axis label.
     pub pressure_label: String,
-    /// Deliveries: x of the fill start and the ticket.
-    pub deliveries: Vec<(f64, String)>,
+    /// Deliveries: x of the fill start, the ticket and its verdict once audited.
+    pub deliveries: Vec<(f64, String, Option<VerdictWord>)>,
+    /// The audit's findings between fills: x from, x to, what.
+    pub findings: Vec<(f64, f64, String)>,
     /// Reorder level in the plotted quantity.
     pub reorder_y: Option<f64>,
     /// Safe-fill limit in the plotted quantity.
@@ -828,6 +840,8 @@ pub struct TankView {
     pub readings: Vec<ReadingRow>,
     /// Deliveries, newest first.
     pub deliveries: Vec<DeliveryRow>,
+    /// The audit's findings between fills at this tank: from, to (ms) and what.
+    pub finding_spans: Vec<(i64, i64, String)>,
     /// The Now tab.
     pub now: NowView,
     /// The trend.
@@ -854,7 +868,7 @@ pub struct ViewState {
     pub page: Page,
     /// The tank page's tab.
     pub tab: TankTab,
-    /// The navigator.
+    /// The Fleet list.
     pub fleet: FleetView,
     /// The tank page, when a tank is selected.
     pub tank: Option<TankView>,
@@ -880,4 +894,6 @@ pub struct ViewState {
     pub history_check: Option<HistoryCheck>,
     /// The audit page.
     pub audit: AuditView,
+    /// Show frame and page-build timings in the status bar (a diagnostics switch on the help page).
+    pub diagnostics: bool,
 }

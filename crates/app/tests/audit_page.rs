@@ -100,6 +100,26 @@ fn the_audit_page_shows_what_was_planted_in_the_demo() {
         .collect();
     assert_eq!(flagged, vec![("DSF-AR-7".to_owned(), "drift".to_owned())]);
     h.get_by_label("drift");
+    // its fills plotted with the drift the test found: the line falls by the drift's slope
+    // the Fleet list names the tank too: the gauges table is drawn after it
+    h.get_all_by_label("DSF-AR-7")
+        .last()
+        .expect("the gauges table's DSF-AR-7")
+        .click();
+    h.run();
+    let a = &h.state().view().audit;
+    let g = a
+        .gauge_open
+        .and_then(|i| a.gauges.get(i))
+        .expect("gauge open");
+    assert_eq!(g.tank, "DSF-AR-7");
+    let [p0, p1] = g.drift_line.expect("drift line");
+    let per_year = (p1[1] - p0[1]) / (p1[0] - p0[0]) * 365.0;
+    assert!(
+        (per_year - g.drift.expect("drift")).abs() < 1e-9,
+        "{per_year}"
+    );
+    assert!(g.points.len() >= g.fills, "{} points", g.points.len());
     // findings: the unlogged fill at BH-AR-3 and the leak at EFF-O2-10
     h.get_by_label("Findings").click();
     h.run();
@@ -173,6 +193,13 @@ fn a_balance_opens_with_the_fleet_audits_numbers_and_the_filter_keeps_one_vehicl
         v.delivery_editor.form.editing,
         Some(row.id),
         "the delivery is open in the form"
+    );
+    // the trend marks the flagged fill
+    assert!(
+        t.trend
+            .deliveries
+            .iter()
+            .any(|d| d.1 == ticket && d.2 == Some(VerdictWord::Short))
     );
     let _ = h.state().repository().reading_count(None);
 }

@@ -49,7 +49,7 @@ fn type_into(h: &mut Harness<'_, CryoApp>, label: &str, text: &str) {
 }
 
 #[test]
-fn clicking_a_tank_in_the_navigator_opens_its_page() {
+fn clicking_a_tank_in_the_fleet_list_opens_its_page() {
     let mut h = harness(common::small_fleet(10));
     select(&mut h, "LF-AR-1");
     let view = h.state().view();
@@ -277,12 +277,12 @@ fn tank_setup_creates_a_tank_with_a_live_full_tank_dp() {
         .expect("created");
     assert_eq!(t.spec.site, "Mossquill Dairy");
     assert_eq!(t.spec.reorder_percent, Some(30.0));
-    // It is in the navigator.
+    // It is in the Fleet list.
     assert!(h.query_by_label("MD-N2-1").is_some());
 }
 
 #[test]
-fn the_navigator_search_filters_tanks() {
+fn the_fleet_list_search_filters_tanks() {
     let mut h = harness(common::small_fleet(2));
     type_into(&mut h, "Search fleet", "argon");
     assert!(h.query_by_label("LF-AR-1").is_some());

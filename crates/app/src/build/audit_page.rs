@@ -84,6 +84,55 @@ fn balance_row(b: &Balance, site: &str, tank_id: Option<i64>, materiality: f64) 
     }
 }
 
+const DAY_MS: f64 = 86_400_000.0;
+
+type Segment = [[f64; 2]; 2];
+
+/// What the gauge test found, to draw over the fills' ratios (%): a drift as a line of its slope
+/// through the fills' mean, a step as the mean before and the mean after.
+fn fault_lines(
+    g: &audit::GaugeFinding,
+    pts: &[(f64, f64, String)],
+) -> (Option<Segment>, Vec<Segment>) {
+    let (Some(first), Some(last)) = (pts.first(), pts.last()) else {
+        return (None, Vec::new());
+    };
+    let mean = |p: &[&(f64, f64, String)]| {
+        let n = p.len().max(1) as f64;
+        (
+            p.iter().map(|x| x.0).sum::<f64>() / n,
+            p.iter().map(|x| x.1).sum::<f64>() / n,
+        )
+    };
+    match g.status {
+        GaugeStatus::Drift => {
+            let all: Vec<&(f64, f64, String)> = pts.iter().collect();
+            let (mx, my) = mean(&all);
+            let slope = g.drift_percent_per_year.unwrap_or(0.0) / 365.0;
+            let at = |x: f64| [x, my + slope * (x - mx)];
+            (Some([at(first.0), at(last.0)]), Vec::new())
+        }
+        GaugeStatus::Step => {
+            let Some(at) = g.step_ms.map(|ms| ms as f64 / DAY_MS) else {
+                return (None, Vec::new());
+            };
+            let before: Vec<&(f64, f64, String)> = pts.iter().filter(|p| p.0 < at).collect();
+            let after: Vec<&(f64, f64, String)> = pts.iter().filter(|p| p.0 >= at).collect();
+            let mut out = Vec::new();
+            if !before.is_empty() {
+                let (_, y) = mean(&before);
+                out.push([[first.0, y], [at, y]]);
+            }
+            if !after.is_empty() {
+                let (_, y) = mean(&after);
+                out.push([[at, y], [last.0, y]]);
+            }
+            (None, out)
+        }
+        _ => (None, Vec::new()),
+    }
+}
+
 /// The audit page from a fleet audit; the filter, order, section and selection of `old` are kept.
 pub fn audit_view(
     fa: &FleetAudit,
@@ -148,7 +197,23 @@ pub fn audit_view(
     let gauges = fa
         .gauges
         .iter()
-        .map(|g| GaugeLine {
+        .map(|g| {
+            let points: Vec<(f64, f64, String)> = fa
+                .fills
+                .iter()
+                .filter(|b| b.tank == g.tank && b.ratio.is_finite() && b.before.is_some())
+                .map(|b| {
+                    (
+                        b.start_ms as f64 / DAY_MS,
+                        100.0 * b.ratio,
+                        b.vehicle.clone(),
+                    )
+                })
+                .collect();
+            let (drift_line, step_lines) = fault_lines(g, &points);
+            (g, points, drift_line, step_lines)
+        })
+        .map(|(g, points, drift_line, step_lines)| GaugeLine {
             tank: g.tank.clone(),
             status: match g.status {
                 GaugeStatus::Ok => "ok",
@@ -162,6 +227,9 @@ pub fn audit_view(
             drift: g.drift_percent_per_year,
             step: g.step_percent.zip(g.step_ms),
             p_adjusted: g.p_adjusted,
+            points,
+            drift_line,
+            step_lines,
         })
         .collect();
     let findings = fa
@@ -192,6 +260,8 @@ pub fn audit_view(
         selected: None,
         open_ticket: None,
         section: old.section,
+        gauge_open: None,
+        open_gauge: None,
         vehicles,
         gauges,
         findings,
@@ -204,6 +274,12 @@ pub fn audit_view(
         .map(|r| r.ticket.clone())
         .or_else(|| old.open_ticket.clone());
     v.selected = open.and_then(|t| v.rows.iter().position(|r| r.ticket == t));
+    let gauge = old
+        .gauge_open
+        .and_then(|i| old.gauges.get(i))
+        .map(|g| g.tank.clone())
+        .or_else(|| old.open_gauge.clone());
+    v.gauge_open = gauge.and_then(|t| v.gauges.iter().position(|g| g.tank == t));
     apply_filter(&mut v, units);
     v
 }

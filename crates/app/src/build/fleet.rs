@@ -156,7 +156,7 @@ pub fn fleet_sites(
     Ok(sites)
 }
 
-/// Recompute the navigator's visible lines from its sites, filter and closed sites.
+/// Recompute the Fleet list's visible lines from its sites, filter and closed sites.
 pub fn fleet_rows(fleet: &mut FleetView) {
     let needle = fleet.filter.trim().to_lowercase();
     let mut rows = Vec::new();

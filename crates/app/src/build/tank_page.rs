@@ -99,6 +99,22 @@ pub fn tank_view(
             .find(|b| b.ticket == ticket)
             .map(|b| (super::verdict_word(b.verdict), b.residual_percent))
     };
+    let all_findings: &[audit::Finding] = match (fleet_audit, &history) {
+        (Some(f), _) => &f.findings,
+        (None, Ok(h)) => &h.findings,
+        (None, Err(_)) => &[],
+    };
+    let finding_spans = all_findings
+        .iter()
+        .filter(|f| f.tank == s.name)
+        .map(|f| {
+            let what = match f.kind {
+                audit::FindingKind::UnexplainedGain => "gain no ticket explains",
+                audit::FindingKind::LossBeyondUse => "loss beyond use",
+            };
+            (f.from_ms, f.to_ms, what.to_owned())
+        })
+        .collect();
     let delivery_rows: Vec<DeliveryRow> = deliveries
         .iter()
         .rev()
@@ -154,6 +170,7 @@ pub fn tank_view(
         attention,
         readings: rows,
         deliveries: delivery_rows,
+        finding_spans,
         now,
         trend: TrendView::default(),
         build_ms: 0.0,

@@ -68,7 +68,12 @@ pub fn trend(view: &TankView, units: UnitSystem, q: TrendQuantity) -> TrendView 
     tv.deliveries = view
         .deliveries
         .iter()
-        .map(|dl| (day(dl.start_ms), dl.ticket.clone()))
+        .map(|dl| (day(dl.start_ms), dl.ticket.clone(), dl.verdict.map(|v| v.0)))
+        .collect();
+    tv.findings = view
+        .finding_spans
+        .iter()
+        .map(|(a, b, what)| (day(*a), day(*b), what.clone()))
         .collect();
     // Levels as the plotted quantity, with the latest densities.
     let latest = view

@@ -70,7 +70,7 @@ pub fn audit_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
     match a.section {
         AuditSection::Fills => fills_ui(ui, view, out),
         AuditSection::Vehicles => vehicles_ui(ui, a),
-        AuditSection::Gauges => gauges_ui(ui, a),
+        AuditSection::Gauges => gauges_ui(ui, a, out),
         AuditSection::Findings => findings_ui(ui, a, out),
     }
 }
@@ -550,15 +550,77 @@ fn p_text(p: f64) -> String {
     }
 }
 
-fn gauges_ui(ui: &mut Ui, a: &AuditView) {
+/// Colours told apart for the vehicles on one plot (cycled).
+const VEHICLE_COLOURS: [egui::Color32; 6] = [
+    egui::Color32::from_rgb(0x2f, 0x5f, 0x86),
+    egui::Color32::from_rgb(0xb0, 0x37, 0x37),
+    egui::Color32::from_rgb(0x3e, 0x8e, 0x7e),
+    egui::Color32::from_rgb(0xa8, 0x6a, 0x10),
+    egui::Color32::from_rgb(0x8a, 0x4f, 0x9e),
+    egui::Color32::from_rgb(0x4a, 0x55, 0x63),
+];
+
+/// One gauge's fills: (gained + drawn) / billed over time, a colour and a legend entry per vehicle,
+/// with what the test found.
+fn gauge_plot(ui: &mut Ui, g: &crate::view::GaugeLine) {
+    use egui_plot::{HLine, Legend, Line, Plot, Points};
+    ui.label(
+        RichText::new(format!(
+            "{}: each fill's (gained + drawn) / billed, %, by vehicle; {}",
+            g.tank,
+            match (g.drift_line.is_some(), g.step_lines.is_empty()) {
+                (true, _) => "the drift the test found, through the fills' mean",
+                (false, false) => "the step the test found: the mean before and after",
+                _ => "no fault found",
+            }
+        ))
+        .strong(),
+    );
+    let mut vehicles: Vec<&str> = g.points.iter().map(|p| p.2.as_str()).collect();
+    vehicles.sort_unstable();
+    vehicles.dedup();
+    Plot::new(("gauge_plot", g.tank.as_str()))
+        .height(260.0)
+        .legend(Legend::default())
+        .x_axis_formatter(|m, _| fmt::date((m.value * 86_400_000.0) as i64))
+        .y_axis_label("(gained + drawn) / billed (%)")
+        .show(ui, |p| {
+            p.add(HLine::new("100 %", 100.0).color(style::GRID));
+            for (k, v) in vehicles.iter().enumerate() {
+                let pts: Vec<[f64; 2]> = g
+                    .points
+                    .iter()
+                    .filter(|x| x.2 == *v)
+                    .map(|x| [x.0, x.1])
+                    .collect();
+                p.points(
+                    Points::new(*v, pts)
+                        .radius(3.5)
+                        .color(VEHICLE_COLOURS[k % VEHICLE_COLOURS.len()]),
+                );
+            }
+            if let Some(l) = g.drift_line {
+                p.line(Line::new("drift", l.to_vec()).color(style::INK).width(2.0));
+            }
+            for l in &g.step_lines {
+                p.line(Line::new("step", l.to_vec()).color(style::INK).width(2.0));
+            }
+        });
+}
+
+fn gauges_ui(ui: &mut Ui, a: &AuditView, out: &mut Vec<Action>) {
     ui.label(
         RichText::new(
             "(gained + drawn) / billed over time at each tank, vehicle effects removed: a linear drift \
-             or a step of the gauge's span (a bad recalibration).",
+             or a step of the gauge's span (a bad recalibration). Click a tank to plot its fills.",
         )
         .color(style::MUTED),
     );
     egui::ScrollArea::vertical().show(ui, |ui| {
+        if let Some(g) = a.gauge_open.and_then(|i| a.gauges.get(i)) {
+            gauge_plot(ui, g);
+            ui.add_space(8.0);
+        }
         egui::Grid::new("gauges")
             .striped(true)
             .num_columns(6)
@@ -574,8 +636,15 @@ fn gauges_ui(ui: &mut Ui, a: &AuditView) {
                     ui.label(RichText::new(h).color(style::MUTED));
                 }
                 ui.end_row();
-                for g in &a.gauges {
-                    ui.label(&g.tank);
+                for (i, g) in a.gauges.iter().enumerate() {
+                    let open = a.gauge_open == Some(i);
+                    if ui
+                        .selectable_label(open, &g.tank)
+                        .on_hover_text("Plot this gauge's fills")
+                        .clicked()
+                    {
+                        out.push(Action::SelectGauge(if open { None } else { Some(i) }));
+                    }
                     let ink = if g.flagged { style::ERROR } else { style::INK };
                     ui.label(RichText::new(&g.status).color(ink).strong());
                     ui.label(g.fills.to_string());

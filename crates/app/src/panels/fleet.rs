@@ -1,4 +1,4 @@
-//! The fleet navigator: sites and their tanks, searchable, each tank with its fill as a small bar, its
+//! The Fleet list: sites and their tanks, searchable, each tank with its fill as a small bar, its
 //! fluid, the age of its last reading and a marker when it needs attention. The list is virtualised
 //! (only visible lines are laid out), so a fleet of thousands of tanks stays fast.
 
@@ -10,7 +10,7 @@ use egui::{Align2, Color32, FontId, Rect, Role, Sense, Stroke, Ui, WidgetInfo, p
 
 const LINE: f32 = 24.0;
 
-/// Draw the fleet navigator.
+/// Draw the Fleet list.
 pub fn fleet_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
     ui.add_space(4.0);
     ui.horizontal(|ui| {
@@ -232,7 +232,8 @@ fn short_fluid(f: &str) -> &str {
         "oxygen" => "LOX",
         "argon" => "LAR",
         "carbon-dioxide" => "CO2",
-        "methane" => "LNG",
+        // pure methane, not LNG (a mixture)
+        "methane" => "CH4",
         "hydrogen" => "LH2",
         "parahydrogen" => "p-H2",
         other => other,

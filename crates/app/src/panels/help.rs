@@ -29,9 +29,16 @@ pub fn help_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
                 out.push(Action::ShowTankPage);
             }
         });
+        let mut diagnostics = view.diagnostics;
+        if ui
+            .checkbox(&mut diagnostics, "Show frame and page-build timings in the status bar")
+            .changed()
+        {
+            out.push(Action::SetDiagnostics(diagnostics));
+        }
         ui.label(
             "cryoledger turns DP-gauge readings of cryogenic bulk tanks into true contents, keeps the log of \
-             readings and deliveries, and shows each tank's trend. Pick a tank in the Fleet navigator; enter \
+             readings and deliveries, and shows each tank's trend. Pick a tank in the Fleet list; enter \
              readings and deliveries on its page; set up tanks in Tank setup.",
         );
         ui.add_space(8.0);
@@ -53,7 +60,7 @@ pub fn help_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
             });
         }
         ui.add_space(8.0);
-        ui.label(RichText::new("Marks in the Fleet navigator").strong().size(16.0));
+        ui.label(RichText::new("Marks in the Fleet list").strong().size(16.0));
         ui.label(
             "An amber dot marks a tank that needs attention: its latest reading is more than three days old, its \
              contents are below the reorder level, its latest reading could not be evaluated, or the audit of its \

@@ -15,7 +15,7 @@ pub fn tank_page_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
         }
         ui.add_space(40.0);
         ui.vertical_centered(|ui| {
-            ui.label(RichText::new("Select a tank in the fleet navigator.").size(16.0));
+            ui.label(RichText::new("Select a tank in the Fleet list.").size(16.0));
             ui.label(RichText::new("Or create one with New tank.").color(style::MUTED));
         });
         return;

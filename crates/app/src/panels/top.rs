@@ -87,6 +87,9 @@ pub fn status_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
                     .small(),
             );
         }
+        if !view.diagnostics {
+            return;
+        }
         ui.with_layout(egui::Layout::right_to_left(egui::Align::Center), |ui| {
             ui.label(
                 RichText::new(format!("frame {:.2} ms CPU", view.frame_ms))

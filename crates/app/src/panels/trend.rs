@@ -7,9 +7,12 @@ use crate::action::Action;
 use crate::fmt;
 use crate::panels::widgets;
 use crate::style;
-use crate::view::{TrendQuantity, ViewState};
+use crate::view::{TrendQuantity, VerdictWord, ViewState};
 use egui::{RichText, Ui};
-use egui_plot::{FilledArea, GridMark, HLine, HoverPosition, Legend, Line, LineStyle, Plot, VLine};
+use egui_plot::{
+    FilledArea, GridMark, HLine, HoverPosition, Legend, Line, LineStyle, Plot, PlotPoints, Polygon,
+    VLine,
+};
 
 const SERIES: &str = "Contents";
 
@@ -146,13 +149,42 @@ pub fn trend_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
                     .color(style::ACCENT)
                     .width(1.5),
             );
-            for (x, _ticket) in &tv.deliveries {
-                p.add(
-                    VLine::new("Deliveries", *x)
-                        .color(style::DELIVERY)
-                        .style(LineStyle::dotted_loose())
-                        .width(1.0),
-                );
+            // findings between fills: their periods shaded across the plotted range
+            let (lo, hi) = tv
+                .band_lo
+                .iter()
+                .chain(&tv.band_hi)
+                .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), y| {
+                    (a.min(*y), b.max(*y))
+                });
+            if lo.is_finite() && hi.is_finite() {
+                for (a, b, what) in &tv.findings {
+                    let b = b.max(a + 0.05);
+                    p.add(
+                        Polygon::new(
+                            format!("Finding: {what}"),
+                            PlotPoints::from(vec![[*a, lo], [b, lo], [b, hi], [*a, hi]]),
+                        )
+                        .fill_color(style::CAUTION_BG)
+                        .stroke(egui::Stroke::new(1.0, style::CAUTION)),
+                    );
+                }
+            }
+            for (x, _ticket, verdict) in &tv.deliveries {
+                // a flagged fill (short or excess) is drawn solid in its verdict's colour
+                match verdict.filter(|w| matches!(w, VerdictWord::Short | VerdictWord::Excess)) {
+                    Some(w) => p.add(
+                        VLine::new(format!("Fills judged {}", w.word()), *x)
+                            .color(style::verdict_colour(w).unwrap_or(style::ERROR))
+                            .width(2.0),
+                    ),
+                    None => p.add(
+                        VLine::new("Deliveries", *x)
+                            .color(style::DELIVERY)
+                            .style(LineStyle::dotted_loose())
+                            .width(1.0),
+                    ),
+                }
             }
             if let Some(y) = tv.reorder_y {
                 p.add(
