@@ -24,11 +24,87 @@ pub struct DemoArgs {
     /// not hold any of the demo's tanks yet
     #[arg(long, value_name = "PATH")]
     pub db: Option<PathBuf>,
+    /// Keep the scenario's own dates (2026) instead of moving them so that the latest readings are
+    /// from today
+    #[arg(long)]
+    pub keep_dates: bool,
 }
 
 /// Import the embedded demo CSVs into the database at `db` (created if missing), all or nothing; a
 /// database this created is removed again when the import fails.
 pub fn write_demo(db: &Path) -> Result<ImportSummary> {
+    write_demo_dated(db, true)
+}
+
+/// The demo's CSV texts with every time moved by whole days so that the latest reading falls on
+/// `today` (times of day kept; `today` as days since the epoch, UTC).
+pub fn moved_to(today_days: i64) -> Result<(String, String)> {
+    let day_ms = 86_400_000_i64;
+    let latest = read_times(READINGS_CSV, &["time"])?
+        .into_iter()
+        .max()
+        .context("the demo has no readings")?;
+    let shift_days = today_days - latest.div_euclid(day_ms);
+    Ok((
+        shift_times(READINGS_CSV, &["time"], shift_days)?,
+        shift_times(DELIVERIES_CSV, &["start", "end"], shift_days)?,
+    ))
+}
+
+fn parse_time(text: &str) -> Result<chrono::DateTime<chrono::FixedOffset>> {
+    chrono::DateTime::parse_from_rfc3339(text).with_context(|| format!("demo time '{text}'"))
+}
+
+/// Every time (ms) in the named columns of a CSV text.
+fn read_times(text: &str, columns: &[&str]) -> Result<Vec<i64>> {
+    let mut r = csv::Reader::from_reader(text.as_bytes());
+    let header = r.headers()?.clone();
+    let idx: Vec<usize> = columns
+        .iter()
+        .filter_map(|c| header.iter().position(|h| h == *c))
+        .collect();
+    let mut out = Vec::new();
+    for row in r.records() {
+        let row = row?;
+        for &i in &idx {
+            if let Some(t) = row.get(i) {
+                out.push(parse_time(t)?.timestamp_millis());
+            }
+        }
+    }
+    Ok(out)
+}
+
+/// The CSV text with the named columns' times moved by whole days (RFC 3339 in UTC, seconds).
+fn shift_times(text: &str, columns: &[&str], days: i64) -> Result<String> {
+    let mut r = csv::Reader::from_reader(text.as_bytes());
+    let header = r.headers()?.clone();
+    let idx: Vec<usize> = columns
+        .iter()
+        .filter_map(|c| header.iter().position(|h| h == *c))
+        .collect();
+    let mut w = csv::Writer::from_writer(Vec::new());
+    w.write_record(&header)?;
+    for row in r.records() {
+        let row = row?;
+        let mut out: Vec<String> = row.iter().map(str::to_owned).collect();
+        for &i in &idx {
+            if let Some(cell) = out.get_mut(i) {
+                let t = parse_time(cell)? + chrono::Duration::days(days);
+                *cell = t
+                    .with_timezone(&chrono::Utc)
+                    .to_rfc3339_opts(chrono::SecondsFormat::Secs, true);
+            }
+        }
+        w.write_record(&out)?;
+    }
+    String::from_utf8(w.into_inner().context("writing the demo CSV")?)
+        .context("the demo CSV is not UTF-8")
+}
+
+/// [`write_demo`], with the scenario's dates moved so that the latest readings are from today
+/// (`move_dates`) or as written.
+pub fn write_demo_dated(db: &Path, move_dates: bool) -> Result<ImportSummary> {
     if let Some(dir) = db.parent().filter(|d| !d.as_os_str().is_empty()) {
         std::fs::create_dir_all(dir).with_context(|| format!("creating {}", dir.display()))?;
     }
@@ -41,10 +117,16 @@ pub fn write_demo(db: &Path) -> Result<ImportSummary> {
             reading_check: Some(&check),
             ..ImportOptions::default()
         };
+        let (readings, deliveries) = if move_dates {
+            let today = chrono::Utc::now().timestamp_millis().div_euclid(86_400_000);
+            moved_to(today)?
+        } else {
+            (READINGS_CSV.to_owned(), DELIVERIES_CSV.to_owned())
+        };
         let sources = ImportSources {
             tanks: Some(ImportSource::text("demo tanks.csv", TANKS_CSV)),
-            readings: Some(ImportSource::text("demo readings.csv", READINGS_CSV)),
-            deliveries: Some(ImportSource::text("demo deliveries.csv", DELIVERIES_CSV)),
+            readings: Some(ImportSource::text("demo readings.csv", &readings)),
+            deliveries: Some(ImportSource::text("demo deliveries.csv", &deliveries)),
         };
         store
             .import(sources, &opts)
@@ -62,7 +144,7 @@ pub fn run(a: DemoArgs, default_db: impl FnOnce() -> Result<PathBuf>) -> Result<
         Some(p) => p,
         None => default_db()?,
     };
-    let s = write_demo(&db)?;
+    let s = write_demo_dated(&db, !a.keep_dates)?;
     println!(
         "wrote the demo fleet into {}: {} tanks, {} readings, {} deliveries",
         db.display(),

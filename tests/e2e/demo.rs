@@ -16,6 +16,50 @@ fn demo_writes_once() {
     assert_eq!(dump(&db), before);
 }
 
+/// The latest reading of an export: its date (the time column's first 10 characters).
+fn latest_reading_day(db: &std::path::Path) -> String {
+    let out = bin()
+        .args(["export", "--what", "readings", "--db"])
+        .arg(db)
+        .output()
+        .unwrap();
+    expect_success(&out);
+    let text = String::from_utf8(out.stdout).unwrap();
+    let mut r = csv::Reader::from_reader(text.as_bytes());
+    let col = r
+        .headers()
+        .unwrap()
+        .iter()
+        .position(|h| h == "time")
+        .unwrap();
+    r.records()
+        .map(|x| x.unwrap()[col][..10].to_owned())
+        .max()
+        .unwrap()
+}
+
+/// A new user's demo is alive: its dates are moved by whole days so that the latest readings are from
+/// today (UTC); `--keep-dates` keeps the scenario's own (its last reading day is 2026-11-30,
+/// demo-data/readings.csv). The day is read before and after the run, so a run across midnight
+/// cannot fail it.
+#[test]
+fn demo_dates_end_today_unless_kept() {
+    let dir = tempfile::tempdir().unwrap();
+    let before = chrono::Utc::now().format("%Y-%m-%d").to_string();
+    let db = demo_db(dir.path());
+    let after = chrono::Utc::now().format("%Y-%m-%d").to_string();
+    let day = latest_reading_day(&db);
+    assert!(day == before || day == after, "{day} vs {before}/{after}");
+    let kept = dir.path().join("kept.db");
+    let out = bin()
+        .args(["demo", "--keep-dates", "--db"])
+        .arg(&kept)
+        .output()
+        .unwrap();
+    expect_success(&out);
+    assert_eq!(latest_reading_day(&kept), "2026-11-30");
+}
+
 /// The demo's planted faults (demo-data/README.md: vehicle MC-T25 3 % short, gauge of DSF-AR-7
 /// drifting -4 % of span a year, an unlogged delivery at BH-AR-3, a 12-day leak at EFF-O2-10 from day 290)
 /// are what the audit finds, and nothing else is flagged as biased or drifting.
