@@ -96,8 +96,18 @@ pub struct FleetAudit {
 
 const GAUGE_TEST: &str = "(gained+drawn)/billed over time, vehicle effects removed: weighted least-squares slope t-test (drift) and best split of two means with a Bonferroni-adjusted t-test (step), the better-fitting model named; Holm across tanks";
 
-fn usable(b: &Balance) -> bool {
-    b.ratio.is_finite() && b.before.is_some() && b.after.is_some() && b.billed_kg > 0.0
+/// A balance that can speak for its gauge and its vehicle: judged from two readings, and not spanning
+/// a finding between fills of its tank (a leak's or an unlogged fill's mass is in its gain, not the
+/// gauge's or the meter's doing).
+fn usable(b: &Balance, findings: &[Finding]) -> bool {
+    let (Some(before), Some(after)) = (&b.before, &b.after) else {
+        return false;
+    };
+    b.ratio.is_finite()
+        && b.billed_kg > 0.0
+        && !findings
+            .iter()
+            .any(|f| f.from_ms < after.time_ms && f.to_ms > before.time_ms)
 }
 
 /// Fleet statistics over every tank's audit.
@@ -132,7 +142,7 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
             t.balances
                 .iter()
                 .enumerate()
-                .filter(|(_, b)| usable(b))
+                .filter(|(_, b)| usable(b, &t.findings))
                 .filter_map(move |(bi, b)| {
                     vi.get(b.vehicle.as_str())
                         .map(|&v| (ti, v, b.ratio, b.sigma_kg / b.billed_kg, b.start_ms, bi))
