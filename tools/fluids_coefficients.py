@@ -125,7 +125,7 @@ def one_fluid(ours, cp_name, citation):
         "ideal": ideal_terms(eos["alpha0"]),
         "residual": residual_terms(eos["alphar"]),
         "ancillaries": {"p_sat": ancillary(anc["pS"]), "rho_liquid": ancillary(anc["rhoL"]),
-                        "rho_vapor": ancillary(anc["rhoV"])},
+                        "rho_vapour": ancillary(anc["rhoV"])},
     }
 
 
@@ -212,7 +212,7 @@ def rust_source(d):
               f"big_c: {lit(na['big_c'][i])}, big_d: {lit(na['big_d'][i])} }},")
     w("    ],")
     for key, name in (("p_sat", "ancillary_pressure"), ("rho_liquid", "ancillary_liquid_density"),
-                      ("rho_vapor", "ancillary_vapor_density")):
+                      ("rho_vapour", "ancillary_vapour_density")):
         a = d["ancillaries"][key]
         form = "Exp" if a["form"] == "exp" else "Linear"
         w(f"    {name}: Ancillary {{ form: AncillaryForm::{form}, using_tau_r: {str(a['using_tau_r']).lower()}, "

@@ -8,7 +8,7 @@ failure can be replayed), runs
   BIN saturation --fluid F --pressure "P Pa" --format json
   BIN state --fluid F --temperature "T K" --pressure "P Pa" --format json
 
-and compares temperature_k, pressure_pa, liquid_density_kg_m3, vapor_density_kg_m3, latent_heat_j_kg
+and compares temperature_k, pressure_pa, liquid_density_kg_m3, vapour_density_kg_m3, latent_heat_j_kg
 (saturation) and density_kg_m3, phase (state) with CoolProp. Pressures are absolute. Exits 1 when any
 relative deviation exceeds --tol (default 1e-6) or a phase differs, 2 when the binary fails.
 
@@ -49,7 +49,7 @@ def coolprop_saturation(st, t=None, p=None):
     t, p, rho_l, h_l = st.T(), st.p(), st.rhomass(), st.hmass()
     st.update(CP.QT_INPUTS, 1.0, t)
     return {"temperature_k": t, "pressure_pa": p, "liquid_density_kg_m3": rho_l,
-            "vapor_density_kg_m3": st.rhomass(), "latent_heat_j_kg": st.hmass() - h_l}
+            "vapour_density_kg_m3": st.rhomass(), "latent_heat_j_kg": st.hmass() - h_l}
 
 
 def draw_state(rng, st):
@@ -95,7 +95,7 @@ def main():
             if math.isfinite(dev) and dev > worst.get(k, (0.0, ""))[0]:
                 worst[k] = (dev, label)
 
-    sat_keys = ["temperature_k", "pressure_pa", "liquid_density_kg_m3", "vapor_density_kg_m3", "latent_heat_j_kg"]
+    sat_keys = ["temperature_k", "pressure_pa", "liquid_density_kg_m3", "vapour_density_kg_m3", "latent_heat_j_kg"]
     try:
         for _ in range(args.samples):
             ours_name = rng.choice(sorted(FLUIDS))

@@ -22,7 +22,7 @@ FLUIDS = [("nitrogen", "Nitrogen"), ("oxygen", "Oxygen"), ("argon", "Argon"),
           ("carbon-dioxide", "CarbonDioxide"), ("methane", "Methane"), ("hydrogen", "Hydrogen"),
           ("parahydrogen", "ParaHydrogen")]
 
-COLUMNS = ["fluid", "kind", "temperature_k", "pressure_pa", "liquid_density_kg_m3", "vapor_density_kg_m3",
+COLUMNS = ["fluid", "kind", "temperature_k", "pressure_pa", "liquid_density_kg_m3", "vapour_density_kg_m3",
            "latent_heat_j_kg", "density_kg_m3"]
 
 

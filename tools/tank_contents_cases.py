@@ -212,10 +212,10 @@ def make_case(rng, i):
         "line_temperature_k": line_t,
     }
     expected = {
-        "liquid_height_m": h, "liquid_volume_m3": v_l, "vapor_volume_m3": v_v,
+        "liquid_height_m": h, "liquid_volume_m3": v_l, "vapour_volume_m3": v_v,
         "gross_volume_m3": gross, "fill_fraction": v_l / gross,
-        "liquid_density_kg_m3": rho_l, "vapor_density_kg_m3": rho_v,
-        "liquid_temperature_k": t_liq, "liquid_mass_kg": m_l, "vapor_mass_kg": m_v,
+        "liquid_density_kg_m3": rho_l, "vapour_density_kg_m3": rho_v,
+        "liquid_temperature_k": t_liq, "liquid_mass_kg": m_l, "vapour_mass_kg": m_v,
         "total_mass_kg": total, "gas_nm3": total / rho_n, "gas_scf": total / rho_std / FT**3,
     }
     return {"name": f"case-{i:03}-{fluid_id}-{orientation}-{head}-{state}", "args": args, "si": si, "expected": expected}

@@ -198,7 +198,7 @@ pub fn run(a: ContentsArgs) -> Result<ExitCode> {
     };
     let safe_fill = match relief {
         Some(r) => {
-            Some(engine.safe_fill_limit(&conditions, r, tank::DEFAULT_VAPOR_FRACTION, &opts)?)
+            Some(engine.safe_fill_limit(&conditions, r, tank::DEFAULT_VAPOUR_FRACTION, &opts)?)
         }
         None => None,
     };
@@ -247,7 +247,10 @@ fn print_table(r: &Report, dp: units::Entered<units::DpUnit>) {
         "  liquid density     {:>12.3} kg/m3",
         c.liquid_density_kg_m3
     );
-    println!("  vapour density     {:>12.3} kg/m3", c.vapor_density_kg_m3);
+    println!(
+        "  vapour density     {:>12.3} kg/m3",
+        c.vapour_density_kg_m3
+    );
     println!(
         "  liquid mass        {:>12.1} kg{}",
         c.liquid_mass_kg,
@@ -255,8 +258,8 @@ fn print_table(r: &Report, dp: units::Entered<units::DpUnit>) {
     );
     println!(
         "  vapour mass        {:>12.1} kg{}",
-        c.vapor_mass_kg,
-        u(c.vapor_mass_u_kg)
+        c.vapour_mass_kg,
+        u(c.vapour_mass_u_kg)
     );
     println!(
         "  total mass         {:>12.1} kg{}",
@@ -280,7 +283,7 @@ fn print_table(r: &Report, dp: units::Entered<units::DpUnit>) {
             "  safe-fill limit    {:>12.1} % of gross volume (relief {:.2} bara, {:.0} % vapour kept)",
             s.max_fill_fraction * 100.0,
             s.relief_pressure_pa / 1e5,
-            s.vapor_fraction * 100.0
+            s.vapour_fraction * 100.0
         );
         for caution in &r.cautions {
             println!("  caution: {caution}");

@@ -122,7 +122,7 @@ pub fn saturation(a: SaturationArgs) -> Result<ExitCode> {
             );
             println!(
                 "  vapour density     {:>14.4} kg/m3",
-                sat.vapor_density_kg_m3
+                sat.vapour_density_kg_m3
             );
             println!("  latent heat        {:>14.1} J/kg", r.latent_heat_j_kg);
         }

@@ -86,7 +86,7 @@ fn saturation_and_state_commands() {
         "temperature_k",
         "pressure_pa",
         "liquid_density_kg_m3",
-        "vapor_density_kg_m3",
+        "vapour_density_kg_m3",
         "latent_heat_j_kg",
     ] {
         assert!(b[f].as_f64().is_some(), "{f} missing");

@@ -502,7 +502,7 @@ pub struct RowContents {
     /// Liquid density, kg/m³.
     pub liquid_density_kg_m3: f64,
     /// Vapour density, kg/m³.
-    pub vapor_density_kg_m3: f64,
+    pub vapour_density_kg_m3: f64,
     /// The level was clamped at empty or full (within the gauge tolerance).
     pub clamped: bool,
 }
@@ -588,7 +588,7 @@ pub struct SafeFillView {
     /// Largest liquid mass, kg.
     pub max_liquid_mass_kg: f64,
     /// Vapour space kept at relief, fraction of gross.
-    pub vapor_fraction: f64,
+    pub vapour_fraction: f64,
 }
 
 /// The Now tab.

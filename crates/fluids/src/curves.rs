@@ -156,9 +156,9 @@ impl SatCurves {
                 [
                     s.pressure_pa.ln(),
                     s.liquid_density_kg_m3,
-                    s.vapor_density_kg_m3.ln(),
+                    s.vapour_density_kg_m3.ln(),
                     s.liquid_enthalpy_j_kg,
-                    s.vapor_enthalpy_j_kg,
+                    s.vapour_enthalpy_j_kg,
                 ],
                 slopes,
             ))
@@ -257,9 +257,9 @@ impl SatCurves {
             [
                 s.pressure_pa.ln(),
                 s.liquid_density_kg_m3,
-                s.vapor_density_kg_m3.ln(),
+                s.vapour_density_kg_m3.ln(),
                 s.liquid_enthalpy_j_kg,
-                s.vapor_enthalpy_j_kg,
+                s.vapour_enthalpy_j_kg,
             ]
         };
         let (end, end_slopes) = values(tc_minus_square(tc, x_last))?;
@@ -439,9 +439,9 @@ impl SatCurves {
             temperature_k: t,
             pressure_pa: p,
             liquid_density_kg_m3: v[1],
-            vapor_density_kg_m3: v[2].exp(),
+            vapour_density_kg_m3: v[2].exp(),
             liquid_enthalpy_j_kg: v[3],
-            vapor_enthalpy_j_kg: v[4],
+            vapour_enthalpy_j_kg: v[4],
         }
     }
 }

@@ -22,17 +22,17 @@ pub struct Saturation {
     /// Saturated liquid density, kg/m³.
     pub liquid_density_kg_m3: f64,
     /// Saturated vapour density, kg/m³.
-    pub vapor_density_kg_m3: f64,
+    pub vapour_density_kg_m3: f64,
     /// Saturated liquid specific enthalpy, J/kg.
     pub liquid_enthalpy_j_kg: f64,
     /// Saturated vapour specific enthalpy, J/kg.
-    pub vapor_enthalpy_j_kg: f64,
+    pub vapour_enthalpy_j_kg: f64,
 }
 
 impl Saturation {
     /// Latent heat of vaporization h_V - h_L, J/kg.
     pub fn latent_heat_j_kg(&self) -> f64 {
-        self.vapor_enthalpy_j_kg - self.liquid_enthalpy_j_kg
+        self.vapour_enthalpy_j_kg - self.liquid_enthalpy_j_kg
     }
 }
 
@@ -55,9 +55,9 @@ impl SatMolar {
             temperature_k: self.t,
             pressure_pa: self.p,
             liquid_density_kg_m3: self.rho_l * m,
-            vapor_density_kg_m3: self.rho_v * m,
+            vapour_density_kg_m3: self.rho_v * m,
             liquid_enthalpy_j_kg: self.h_l / m,
-            vapor_enthalpy_j_kg: self.h_v / m,
+            vapour_enthalpy_j_kg: self.h_v / m,
         }
     }
 }
@@ -224,7 +224,7 @@ impl Fluid {
         }
         if tc - t >= NEAR_CRITICAL * tc {
             let rl = self.data.ancillary_liquid_density.value(t);
-            let rv = self.data.ancillary_vapor_density.value(t);
+            let rv = self.data.ancillary_vapour_density.value(t);
             let first = self.akasaka(t, rl, rv, opts);
             if first.is_ok() {
                 return first;

@@ -124,7 +124,7 @@ fn clausius_clapeyron() {
             };
             let slope = central(p_at, t, dt);
             let cc = s.latent_heat_j_kg()
-                / (t * (1.0 / s.vapor_density_kg_m3 - 1.0 / s.liquid_density_kg_m3));
+                / (t * (1.0 / s.vapour_density_kg_m3 - 1.0 / s.liquid_density_kg_m3));
             assert_rel(&format!("{id} dp/dT at {t:.2} K"), slope, cc, 1e-6);
         }
     }
@@ -140,7 +140,7 @@ fn maxwell_equal_areas() {
         let (tt, tc) = (f.triple().temperature_k, f.critical().temperature_k);
         for t in [tt + 0.5 * (tc - tt), 0.9 * tc] {
             let s = f.solve_saturation_from_temperature(t, &opts).unwrap();
-            let (a, b) = (s.vapor_density_kg_m3.ln(), s.liquid_density_kg_m3.ln());
+            let (a, b) = (s.vapour_density_kg_m3.ln(), s.liquid_density_kg_m3.ln());
             let n = 4000;
             let hstep = (b - a) / n as f64;
             let g = |x: f64| f.pressure_pa(t, x.exp()) * (-x).exp();
@@ -149,7 +149,8 @@ fn maxwell_equal_areas() {
                 sum += g(a + k as f64 * hstep) * if k % 2 == 1 { 4.0 } else { 2.0 };
             }
             let area = sum * hstep / 3.0;
-            let rect = s.pressure_pa * (1.0 / s.vapor_density_kg_m3 - 1.0 / s.liquid_density_kg_m3);
+            let rect =
+                s.pressure_pa * (1.0 / s.vapour_density_kg_m3 - 1.0 / s.liquid_density_kg_m3);
             assert_rel(&format!("{id} equal areas at {t:.2} K"), area, rect, 1e-8);
         }
     }
@@ -189,9 +190,9 @@ fn fast_curves_agree_with_full_solver() {
             let devs = [
                 rel(fast.pressure_pa, full.pressure_pa),
                 rel(fast.liquid_density_kg_m3, full.liquid_density_kg_m3),
-                rel(fast.vapor_density_kg_m3, full.vapor_density_kg_m3),
+                rel(fast.vapour_density_kg_m3, full.vapour_density_kg_m3),
                 (fast.liquid_enthalpy_j_kg - full.liquid_enthalpy_j_kg).abs() / h_scale,
-                (fast.vapor_enthalpy_j_kg - full.vapor_enthalpy_j_kg).abs() / h_scale,
+                (fast.vapour_enthalpy_j_kg - full.vapour_enthalpy_j_kg).abs() / h_scale,
             ];
             let d = devs.iter().copied().fold(0.0, f64::max);
             let tol = [1e-9, 1e-9, 1e-9, 1e-5][band];
@@ -248,8 +249,8 @@ fn saturation_from_pressure_fast_vs_full_and_round_trips() {
                 );
                 assert_rel(
                     &format!("{id} rho_V({p})"),
-                    fast.vapor_density_kg_m3,
-                    full.vapor_density_kg_m3,
+                    fast.vapour_density_kg_m3,
+                    full.vapour_density_kg_m3,
                     1e-9,
                 );
             }
@@ -304,7 +305,7 @@ fn density_from_t_p_reproduces_p_and_phase() {
                     .density_from_temperature_pressure(t, pg, Phase::Gas)
                     .unwrap();
                 assert_rel(&format!("{id} gas p"), f.pressure_pa(t, rho_g), pg, 1e-10);
-                assert!(rho_g <= s.vapor_density_kg_m3);
+                assert!(rho_g <= s.vapour_density_kg_m3);
             }
         }
         // supercritical: either request returns the one fluid
@@ -378,7 +379,7 @@ fn saturation_from_pressure_fast_vs_full_near_critical() {
             let devs = [
                 rel(fast.temperature_k, full.temperature_k),
                 rel(fast.liquid_density_kg_m3, full.liquid_density_kg_m3),
-                rel(fast.vapor_density_kg_m3, full.vapor_density_kg_m3),
+                rel(fast.vapour_density_kg_m3, full.vapour_density_kg_m3),
             ];
             let d = devs.iter().copied().fold(0.0, f64::max);
             assert!(d <= 1e-9, "{id} at {p} Pa: deviations {devs:?}");
@@ -413,7 +414,7 @@ fn saturation_exists_all_the_way_to_the_critical_point() {
                 let rho_c = f.critical().density_kg_m3;
                 for s in [&fast, &full] {
                     assert!(
-                        s.vapor_density_kg_m3 <= rho_c * (1.0 + 1e-6)
+                        s.vapour_density_kg_m3 <= rho_c * (1.0 + 1e-6)
                             && rho_c * (1.0 - 1e-6) <= s.liquid_density_kg_m3
                             && s.pressure_pa <= pc * (1.0 + 1e-9),
                         "{id} at 1 - T/Tc = {d:e}: {s:?}"

@@ -80,7 +80,7 @@ fn saturation_matches_coolprop() {
         worst[0].1.see(s.pressure_pa, p, &at);
         worst[1].1.see(s.temperature_k, t, &at);
         worst[2].1.see(s.liquid_density_kg_m3, rl, &at);
-        worst[3].1.see(s.vapor_density_kg_m3, rv, &at);
+        worst[3].1.see(s.vapour_density_kg_m3, rv, &at);
         worst[4].1.see(s.latent_heat_j_kg(), lat, &at);
         // the full solver on every 7th row (it is slow in a debug build)
         if r.kind == "sat_t" && i % 7 == 0 {

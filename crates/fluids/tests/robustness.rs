@@ -25,7 +25,7 @@ proptest! {
     fn nothing_panics(id in any_fluid(), a in any_value(), b in any_value()) {
         let f = fluid(id);
         if let Ok(s) = f.saturation_from_temperature(a) {
-            prop_assert!(s.pressure_pa.is_finite() && s.liquid_density_kg_m3 >= s.vapor_density_kg_m3);
+            prop_assert!(s.pressure_pa.is_finite() && s.liquid_density_kg_m3 >= s.vapour_density_kg_m3);
         }
         if let Ok(s) = f.saturation_from_pressure(b) {
             prop_assert!(s.temperature_k.is_finite());

@@ -121,7 +121,7 @@ impl TankSim<'_> {
                 )
                 .map_err(|e| self.fluid_err(e))?
         };
-        let rho_v = sat_tank.vapor_density_kg_m3;
+        let rho_v = sat_tank.vapour_density_kg_m3;
         let gross = self.t.gross_volume_m3;
         let v_l = ((s.mass_kg - rho_v * gross) / (rho_l - rho_v)).clamp(0.0, gross);
         s.liquid_fraction = (rho_l * v_l / s.mass_kg).clamp(0.0, 1.0);

@@ -129,7 +129,7 @@ pub struct Contents {
     /// Liquid volume, m³.
     pub liquid_volume_m3: f64,
     /// Vapour volume, m³.
-    pub vapor_volume_m3: f64,
+    pub vapour_volume_m3: f64,
     /// Gross inner volume, m³.
     pub gross_volume_m3: f64,
     /// Liquid volume over gross volume.
@@ -137,7 +137,7 @@ pub struct Contents {
     /// Liquid density, kg/m³.
     pub liquid_density_kg_m3: f64,
     /// Saturated vapour density at the tank pressure, kg/m³.
-    pub vapor_density_kg_m3: f64,
+    pub vapour_density_kg_m3: f64,
     /// Density of the gas in the sensing lines, kg/m³.
     pub line_gas_density_kg_m3: f64,
     /// Liquid temperature, K.
@@ -147,7 +147,7 @@ pub struct Contents {
     /// Liquid mass, kg.
     pub liquid_mass_kg: f64,
     /// Vapour mass, kg.
-    pub vapor_mass_kg: f64,
+    pub vapour_mass_kg: f64,
     /// Total mass, kg.
     pub total_mass_kg: f64,
     /// Gas equivalent, normal m³ (0 °C, 101.325 kPa).
@@ -161,7 +161,7 @@ pub struct Contents {
     pub liquid_mass_u_kg: Option<f64>,
     /// Standard uncertainty of the vapour mass, kg.
     #[serde(skip_serializing_if = "Option::is_none", default)]
-    pub vapor_mass_u_kg: Option<f64>,
+    pub vapour_mass_u_kg: Option<f64>,
     /// Standard uncertainty of the total mass, kg.
     #[serde(skip_serializing_if = "Option::is_none", default)]
     pub total_mass_u_kg: Option<f64>,
@@ -190,7 +190,7 @@ pub(crate) struct Densities {
     pub liquid_temperature_k: f64,
     pub saturation_temperature_k: f64,
     pub liquid: f64,
-    pub vapor: f64,
+    pub vapour: f64,
     pub line: f64,
 }
 
@@ -245,7 +245,7 @@ pub(crate) fn densities<F: FluidProperties + ?Sized>(
         liquid_temperature_k: t_liquid,
         saturation_temperature_k: sat.temperature_k,
         liquid: rho_liquid,
-        vapor: sat.vapor_density_kg_m3,
+        vapour: sat.vapour_density_kg_m3,
         line,
     })
 }
@@ -341,10 +341,10 @@ impl<F: FluidProperties> Tank<F> {
     ) -> Result<Contents> {
         let g = STANDARD_GRAVITY;
         let height = self.geometry.inner_height_m();
-        let empty_dp = g * (d.vapor - d.line) * height;
+        let empty_dp = g * (d.vapour - d.line) * height;
         let full_dp = g * (d.liquid - d.line) * height;
         let mut level_clamp = LevelClamp::None;
-        let mut h = (dp_pa / g - (d.vapor - d.line) * height) / (d.liquid - d.vapor);
+        let mut h = (dp_pa / g - (d.vapour - d.line) * height) / (d.liquid - d.vapour);
         if h < 0.0 {
             let tolerance_pa = self.tolerance_pa(dp_pa, full_dp, options);
             if empty_dp - dp_pa > tolerance_pa {
@@ -370,31 +370,31 @@ impl<F: FluidProperties> Tank<F> {
         }
         let gross = self.geometry.gross_volume_m3();
         let v_liquid = self.geometry.volume_from_level(h)?;
-        let v_vapor = (gross - v_liquid).max(0.0);
+        let v_vapour = (gross - v_liquid).max(0.0);
         let m_liquid = d.liquid * v_liquid;
-        let m_vapor = d.vapor * v_vapor;
-        let total = m_liquid + m_vapor;
+        let m_vapour = d.vapour * v_vapour;
+        let total = m_liquid + m_vapour;
         Ok(Contents {
             dp_pa,
             pressure_pa,
             liquid_height_m: h,
             liquid_volume_m3: v_liquid,
-            vapor_volume_m3: v_vapor,
+            vapour_volume_m3: v_vapour,
             gross_volume_m3: gross,
             fill_fraction: v_liquid / gross,
             liquid_density_kg_m3: d.liquid,
-            vapor_density_kg_m3: d.vapor,
+            vapour_density_kg_m3: d.vapour,
             line_gas_density_kg_m3: d.line,
             liquid_temperature_k: d.liquid_temperature_k,
             saturation_temperature_k: d.saturation_temperature_k,
             liquid_mass_kg: m_liquid,
-            vapor_mass_kg: m_vapor,
+            vapour_mass_kg: m_vapour,
             total_mass_kg: total,
             gas_nm3: total / self.fluid.gas_density_normal_kg_m3(),
             gas_scf: total / self.fluid.gas_density_standard_kg_m3() / CUBIC_FOOT_M3,
             level_clamp,
             liquid_mass_u_kg: None,
-            vapor_mass_u_kg: None,
+            vapour_mass_u_kg: None,
             total_mass_u_kg: None,
             liquid_volume_u_m3: None,
             gas_nm3_u: None,
@@ -412,7 +412,7 @@ impl<F: FluidProperties> Tank<F> {
         }
         let d = densities(&self.fluid, conditions)?;
         Ok(
-            STANDARD_GRAVITY * ((d.liquid - d.vapor) * level_m + (d.vapor - d.line) * height)
+            STANDARD_GRAVITY * ((d.liquid - d.vapour) * level_m + (d.vapour - d.line) * height)
                 + self.gauge.zero_offset_pa,
         )
     }

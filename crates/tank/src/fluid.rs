@@ -16,7 +16,7 @@ pub struct SaturationPoint {
     /// Saturated liquid density, kg/m³.
     pub liquid_density_kg_m3: f64,
     /// Saturated vapour density, kg/m³.
-    pub vapor_density_kg_m3: f64,
+    pub vapour_density_kg_m3: f64,
 }
 
 /// Fluid properties needed to turn a DP reading into contents. All SI.
@@ -60,7 +60,7 @@ impl FluidProperties for fluids::Fluid {
             temperature_k: s.temperature_k,
             pressure_pa: s.pressure_pa,
             liquid_density_kg_m3: s.liquid_density_kg_m3,
-            vapor_density_kg_m3: s.vapor_density_kg_m3,
+            vapour_density_kg_m3: s.vapour_density_kg_m3,
         })
     }
     fn liquid_density_kg_m3(&self, temperature_k: f64, pressure_pa: f64) -> Result<f64> {
@@ -114,7 +114,7 @@ pub(crate) mod toy {
                 temperature_k: t,
                 pressure_pa: p,
                 liquid_density_kg_m3: self.liquid_density_kg_m3(t, p)?,
-                vapor_density_kg_m3: p / (R_SPECIFIC * t),
+                vapour_density_kg_m3: p / (R_SPECIFIC * t),
             })
         }
         fn liquid_density_kg_m3(&self, t: f64, p: f64) -> Result<f64> {

@@ -38,7 +38,7 @@
 //! let opts = ContentsOptions::default();
 //! let c = tank.contents_from_reading(dp, &conditions, &opts)?;
 //! assert!(c.fill_fraction > 0.3 && c.fill_fraction < 0.6);
-//! assert!((c.liquid_mass_kg + c.vapor_mass_kg - c.total_mass_kg).abs() < 1e-9);
+//! assert!((c.liquid_mass_kg + c.vapour_mass_kg - c.total_mass_kg).abs() < 1e-9);
 //!
 //! // The same reading with its GUM uncertainty; and back from contents to the DP.
 //! let inputs = UncertaintyInputs { pressure_u_pa: 5e3, liquid_state_u: 5e4, ..Default::default() };
@@ -74,7 +74,7 @@ pub use gauge::{
     barometer_pa_from_elevation, dp_pa_from_unit, dp_unit_from_pa,
 };
 pub use geometry::{Cylinder, CylinderSpec, Geometry, Head, SolverOptions};
-pub use safe_fill::{CAUTIONS, DEFAULT_VAPOR_FRACTION, SafeFill};
+pub use safe_fill::{CAUTIONS, DEFAULT_VAPOUR_FRACTION, SafeFill};
 pub use strapping::{StrappingSpec, StrappingTable};
 pub use uncertainty::{
     BudgetEntry, DifferenceUncertainty, InputDeviations, InputQuantity, OutputSet,

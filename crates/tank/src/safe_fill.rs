@@ -23,7 +23,7 @@ use crate::fluid::FluidProperties;
 
 /// Default vapour space left at relief conditions: 2 % of the gross volume (common practice, no
 /// source; local codes and the vessel maker's instructions govern).
-pub const DEFAULT_VAPOR_FRACTION: f64 = 0.02;
+pub const DEFAULT_VAPOUR_FRACTION: f64 = 0.02;
 
 /// Caution texts for display beside any fill limit or contents figure. Each is one paragraph.
 pub const CAUTIONS: [&str; 6] = [
@@ -41,7 +41,7 @@ pub struct SafeFill {
     /// Relief valve set pressure, Pa absolute.
     pub relief_pressure_pa: f64,
     /// Vapour space kept at relief conditions, fraction of gross volume.
-    pub vapor_fraction: f64,
+    pub vapour_fraction: f64,
     /// Liquid density now, kg/m³.
     pub liquid_density_now_kg_m3: f64,
     /// Saturated liquid density at the relief pressure, kg/m³.
@@ -58,20 +58,20 @@ pub struct SafeFill {
 
 impl<F: FluidProperties> Tank<F> {
     /// The safe-fill limit for liquid in the state `conditions` describes, relief valve set at
-    /// `relief_pressure_pa` (absolute), keeping `vapor_fraction` (e.g. [`DEFAULT_VAPOR_FRACTION`])
+    /// `relief_pressure_pa` (absolute), keeping `vapour_fraction` (e.g. [`DEFAULT_VAPOUR_FRACTION`])
     /// of the gross volume as vapour when the liquid reaches saturation at the relief pressure.
     pub fn safe_fill_limit(
         &self,
         conditions: &Conditions,
         relief_pressure_pa: f64,
-        vapor_fraction: f64,
+        vapour_fraction: f64,
         options: &ContentsOptions,
     ) -> Result<SafeFill> {
         positive("relief_pressure_pa", relief_pressure_pa)?;
-        if !(vapor_fraction.is_finite() && (0.0..1.0).contains(&vapor_fraction)) {
+        if !(vapour_fraction.is_finite() && (0.0..1.0).contains(&vapour_fraction)) {
             return Err(TankError::InvalidParameter {
-                name: "vapor_fraction",
-                value: vapor_fraction,
+                name: "vapour_fraction",
+                value: vapour_fraction,
                 reason: "must be in 0 ..< 1",
             });
         }
@@ -89,11 +89,11 @@ impl<F: FluidProperties> Tank<F> {
         let gross = self.geometry.gross_volume_m3();
         // A liquid already lighter than it would be at relief (not physical for a valid state)
         // is capped at 1 − f_v.
-        let fraction = ((1.0 - vapor_fraction) * relief / now).min(1.0 - vapor_fraction);
+        let fraction = ((1.0 - vapour_fraction) * relief / now).min(1.0 - vapour_fraction);
         let volume = fraction * gross;
         Ok(SafeFill {
             relief_pressure_pa,
-            vapor_fraction,
+            vapour_fraction,
             liquid_density_now_kg_m3: now,
             liquid_density_relief_kg_m3: relief,
             max_fill_fraction: fraction,

@@ -142,13 +142,13 @@ pub struct OutputSet {
     /// Liquid mass, kg.
     pub liquid_mass_kg: f64,
     /// Vapour mass, kg.
-    pub vapor_mass_kg: f64,
+    pub vapour_mass_kg: f64,
     /// Total mass, kg.
     pub total_mass_kg: f64,
     /// Liquid volume, m³.
     pub liquid_volume_m3: f64,
     /// Vapour volume, m³.
-    pub vapor_volume_m3: f64,
+    pub vapour_volume_m3: f64,
     /// Gross volume, m³.
     pub gross_volume_m3: f64,
     /// Fill fraction.
@@ -161,10 +161,10 @@ impl OutputSet {
     fn from_contents(c: &Contents) -> Self {
         OutputSet {
             liquid_mass_kg: c.liquid_mass_kg,
-            vapor_mass_kg: c.vapor_mass_kg,
+            vapour_mass_kg: c.vapour_mass_kg,
             total_mass_kg: c.total_mass_kg,
             liquid_volume_m3: c.liquid_volume_m3,
-            vapor_volume_m3: c.vapor_volume_m3,
+            vapour_volume_m3: c.vapour_volume_m3,
             gross_volume_m3: c.gross_volume_m3,
             fill_fraction: c.fill_fraction,
             gas_nm3: c.gas_nm3,
@@ -174,10 +174,10 @@ impl OutputSet {
     fn zip(self, o: OutputSet, f: impl Fn(f64, f64) -> f64) -> OutputSet {
         OutputSet {
             liquid_mass_kg: f(self.liquid_mass_kg, o.liquid_mass_kg),
-            vapor_mass_kg: f(self.vapor_mass_kg, o.vapor_mass_kg),
+            vapour_mass_kg: f(self.vapour_mass_kg, o.vapour_mass_kg),
             total_mass_kg: f(self.total_mass_kg, o.total_mass_kg),
             liquid_volume_m3: f(self.liquid_volume_m3, o.liquid_volume_m3),
-            vapor_volume_m3: f(self.vapor_volume_m3, o.vapor_volume_m3),
+            vapour_volume_m3: f(self.vapour_volume_m3, o.vapour_volume_m3),
             gross_volume_m3: f(self.gross_volume_m3, o.gross_volume_m3),
             fill_fraction: f(self.fill_fraction, o.fill_fraction),
             gas_nm3: f(self.gas_nm3, o.gas_nm3),
@@ -451,7 +451,7 @@ impl<F: FluidProperties> Tank<F> {
         }
         let budget = UncertaintyBudget::from_entries(entries);
         contents.liquid_mass_u_kg = Some(budget.combined.liquid_mass_kg);
-        contents.vapor_mass_u_kg = Some(budget.combined.vapor_mass_kg);
+        contents.vapour_mass_u_kg = Some(budget.combined.vapour_mass_kg);
         contents.total_mass_u_kg = Some(budget.combined.total_mass_kg);
         contents.liquid_volume_u_m3 = Some(budget.combined.liquid_volume_m3);
         contents.gas_nm3_u = Some(budget.combined.gas_nm3);

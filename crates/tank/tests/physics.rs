@@ -128,7 +128,7 @@ fn safe_fill_nitrogen() {
         .safe_fill_limit(
             &Conditions::saturated(10e5),
             15e5,
-            tank::DEFAULT_VAPOR_FRACTION,
+            tank::DEFAULT_VAPOUR_FRACTION,
             &opts,
         )
         .unwrap();
@@ -226,7 +226,7 @@ fn dp_formula_against_a_hydrostatic_integral() {
     for _ in 0..steps {
         let rho = f
             .density_from_temperature_pressure(t_liquid, p, fluids::Phase::Gas)
-            .unwrap_or(sat.vapor_density_kg_m3);
+            .unwrap_or(sat.vapour_density_kg_m3);
         p += rho * g * dz;
     }
     let dz = h / f64::from(steps);

@@ -32,7 +32,7 @@ use store::{
     TankRecord, TankSpec,
 };
 use tank::{
-    CAUTIONS, Contents, ContentsOptions, DEFAULT_VAPOR_FRACTION, LevelClamp, LiquidState,
+    CAUTIONS, Contents, ContentsOptions, DEFAULT_VAPOUR_FRACTION, LevelClamp, LiquidState,
     SolverOptions, UncertaintyInputs,
 };
 use units::{AbsolutePressure, Unit};

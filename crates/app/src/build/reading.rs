@@ -82,7 +82,7 @@ pub(super) fn row_contents(c: &Contents, u: Option<&tank::OutputSet>) -> RowCont
         liquid_temperature_k: c.liquid_temperature_k,
         saturation_temperature_k: c.saturation_temperature_k,
         liquid_density_kg_m3: c.liquid_density_kg_m3,
-        vapor_density_kg_m3: c.vapor_density_kg_m3,
+        vapour_density_kg_m3: c.vapour_density_kg_m3,
         clamped: c.level_clamp != LevelClamp::None,
     }
 }

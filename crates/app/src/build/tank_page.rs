@@ -237,7 +237,7 @@ fn now_view(
                 if let Some(ro) = reorder {
                     let gross = vessel.gross_volume_m3;
                     let reorder_mass = c.liquid_density_kg_m3 * ro * gross
-                        + c.vapor_density_kg_m3 * (1.0 - ro) * gross;
+                        + c.vapour_density_kg_m3 * (1.0 - ro) * gross;
                     if rate > 0.0 {
                         now.days_to_reorder = Some((c.mass_kg.value - reorder_mass) / rate);
                     }
@@ -256,7 +256,7 @@ fn now_view(
             match e.safe_fill_limit(
                 &c,
                 relief_pa,
-                DEFAULT_VAPOR_FRACTION,
+                DEFAULT_VAPOUR_FRACTION,
                 &ContentsOptions::default(),
             ) {
                 Ok(sf) => {
@@ -265,7 +265,7 @@ fn now_view(
                         relief_gauge_pa: relief_pa - t.barometer_pa,
                         max_fill: sf.max_fill_fraction,
                         max_liquid_mass_kg: sf.max_liquid_mass_kg,
-                        vapor_fraction: sf.vapor_fraction,
+                        vapour_fraction: sf.vapour_fraction,
                     })
                 }
                 Err(e) => Err(e.to_string()),

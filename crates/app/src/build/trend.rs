@@ -85,7 +85,7 @@ pub fn trend(view: &TankView, units: UnitSystem, q: TrendQuantity) -> TrendView 
     let as_q = |fraction: f64| -> Option<f64> {
         let c = latest?;
         let vol = fraction * gross;
-        let mass = c.liquid_density_kg_m3 * vol + c.vapor_density_kg_m3 * (gross - vol);
+        let mass = c.liquid_density_kg_m3 * vol + c.vapour_density_kg_m3 * (gross - vol);
         Some(match q {
             TrendQuantity::TotalMass => units.mass(mass),
             TrendQuantity::FillFraction => fraction * 100.0,

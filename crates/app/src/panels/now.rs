@@ -141,7 +141,7 @@ pub fn now_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
                         ui.label(
                             RichText::new(format!(
                                 "Keeps {:.0} % of the gross volume as vapour when the liquid warms to saturation at the relief pressure.",
-                                sf.vapor_fraction * 100.0
+                                sf.vapour_fraction * 100.0
                             ))
                             .small()
                             .color(style::MUTED),

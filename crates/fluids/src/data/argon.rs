@@ -323,7 +323,7 @@ pub(crate) const DATA: FluidData = FluidData {
         ],
         t: &[0.272, 0.417, 2.551, 7.589, 8.392, 10.436],
     },
-    ancillary_vapor_density: Ancillary {
+    ancillary_vapour_density: Ancillary {
         form: AncillaryForm::Exp,
         using_tau_r: true,
         reducing_value: 13407.429658556124,

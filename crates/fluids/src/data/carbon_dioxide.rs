@@ -351,7 +351,7 @@ pub(crate) const DATA: FluidData = FluidData {
         ],
         t: &[0.264, 0.672, 0.986, 1.092, 1.714, 9.902],
     },
-    ancillary_vapor_density: Ancillary {
+    ancillary_vapour_density: Ancillary {
         form: AncillaryForm::Exp,
         using_tau_r: true,
         reducing_value: 10624.906299999999,

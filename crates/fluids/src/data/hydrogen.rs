@@ -169,7 +169,7 @@ pub(crate) const DATA: FluidData = FluidData {
         ],
         t: &[0.407, 3.401, 7.095, 8.095, 10.911, 17.353],
     },
-    ancillary_vapor_density: Ancillary {
+    ancillary_vapour_density: Ancillary {
         form: AncillaryForm::Exp,
         using_tau_r: true,
         reducing_value: 15508.0,

@@ -327,7 +327,7 @@ pub(crate) const DATA: FluidData = FluidData {
         ],
         t: &[0.309, 0.502, 1.402, 3.858, 10.533, 19.547],
     },
-    ancillary_vapor_density: Ancillary {
+    ancillary_vapour_density: Ancillary {
         form: AncillaryForm::Exp,
         using_tau_r: true,
         reducing_value: 10139.127999999999,

@@ -137,7 +137,7 @@ pub(crate) struct FluidData {
     pub non_analytic: &'static [NonAnalyticTerm],
     pub ancillary_pressure: Ancillary,
     pub ancillary_liquid_density: Ancillary,
-    pub ancillary_vapor_density: Ancillary,
+    pub ancillary_vapour_density: Ancillary,
 }
 
 /// The coefficient table of a fluid.

@@ -296,7 +296,7 @@ pub(crate) const DATA: FluidData = FluidData {
         ],
         t: &[0.396, 0.549, 1.037, 1.209, 1.682, 2.819],
     },
-    ancillary_vapor_density: Ancillary {
+    ancillary_vapour_density: Ancillary {
         form: AncillaryForm::Exp,
         using_tau_r: true,
         reducing_value: 11183.901464580624,

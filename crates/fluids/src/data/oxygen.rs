@@ -269,7 +269,7 @@ pub(crate) const DATA: FluidData = FluidData {
         ],
         t: &[0.398, 0.86, 1.704, 2.122, 4.266, 18.786],
     },
-    ancillary_vapor_density: Ancillary {
+    ancillary_vapour_density: Ancillary {
         form: AncillaryForm::Exp,
         using_tau_r: true,
         reducing_value: 13630.0,

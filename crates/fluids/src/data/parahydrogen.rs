@@ -173,7 +173,7 @@ pub(crate) const DATA: FluidData = FluidData {
         ],
         t: &[0.44, 0.833, 4.399, 8.501, 8.893, 17.08],
     },
-    ancillary_vapor_density: Ancillary {
+    ancillary_vapour_density: Ancillary {
         form: AncillaryForm::Exp,
         using_tau_r: true,
         reducing_value: 15538.0,
