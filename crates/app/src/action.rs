@@ -78,6 +78,13 @@ pub enum Action {
     StopAudit,
     /// Run the fleet audit again.
     RunAudit,
+    /// Open a tank's readings from the audit page, with the reading taken at this instant in the form.
+    OpenReading {
+        /// The tank.
+        tank: i64,
+        /// When the reading was taken, ms.
+        time_ms: i64,
+    },
     /// Open a tank's deliveries from the audit page, with this ticket's delivery in the form.
     OpenFill {
         /// The tank.
@@ -337,6 +344,7 @@ impl Core {
         };
         let editor = F::editor(&mut self.view);
         editor.form = form;
+        editor.tried = false;
         editor.check = FormCheck::default();
         if id.is_some() {
             self.recheck::<F>();
@@ -375,6 +383,7 @@ impl Core {
         };
         let units = self.view.units;
         let editor = F::editor(&mut self.view);
+        editor.tried = true;
         let (check, entry) = F::check(&editor.form, &t, units);
         editor.check = check;
         let Some(entry) = entry else {
@@ -410,6 +419,7 @@ impl Core {
             .unwrap_or_else(|| F::blank(t.as_ref(), units));
         let editor = F::editor(&mut self.view);
         editor.form = form;
+        editor.tried = false;
         editor.check = FormCheck::default();
         self.load_history::<F>(keep);
     }
@@ -483,6 +493,17 @@ impl Core {
                 self.view.audit.stopped = false;
                 self.start_fleet_summary();
             }
+            Action::OpenReading { tank, time_ms } => {
+                self.handle(Action::SelectTank(tank));
+                self.view.tab = TankTab::Readings;
+                let id = self
+                    .store
+                    .readings(TankId(tank), Some((time_ms, time_ms.saturating_add(1))))
+                    .ok()
+                    .and_then(|r| r.into_iter().next())
+                    .map(|r| r.id.0);
+                self.select::<ReadingFlow>(id);
+            }
             Action::OpenFill { tank, ticket } => {
                 self.handle(Action::SelectTank(tank));
                 self.view.tab = TankTab::Deliveries;
@@ -496,6 +517,7 @@ impl Core {
             }
             Action::OpenSetup(id) => {
                 self.view.page = Page::Setup;
+                self.view.setup_tried = false;
                 self.view.setup_form = match id {
                     Some(id) => match build::setup_form_for(&self.store, id) {
                         Ok(f) => f,
@@ -572,6 +594,7 @@ impl Core {
     }
 
     fn save_tank(&mut self) {
+        self.view.setup_tried = true;
         let (check, preview, out) = build::check_setup(&self.view.setup_form, self.view.units);
         self.view.setup_check = check;
         self.view.setup_preview = preview;

@@ -694,6 +694,8 @@ pub struct Editor<F> {
     pub check: FormCheck,
     /// Earlier versions of the record being edited, oldest first (empty for a new record).
     pub history: Vec<HistoryRow>,
+    /// The user tried to save this form: a missing reason is said only from then on.
+    pub tried: bool,
 }
 
 /// The text of the reading form, as typed.
@@ -882,6 +884,8 @@ pub struct ViewState {
     pub setup_check: FormCheck,
     /// Its preview.
     pub setup_preview: SetupPreview,
+    /// The user tried to save the setup form (a missing reason is said only from then on).
+    pub setup_tried: bool,
     /// A confirmation to show (saved, deleted).
     pub notice: Option<String>,
     /// The last error to show, if any.

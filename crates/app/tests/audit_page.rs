@@ -176,7 +176,24 @@ fn a_balance_opens_with_the_fleet_audits_numbers_and_the_filter_keeps_one_vehicl
     h.get_by_label(format!("Ticket {ticket}").as_str());
     h.get_by_label(format!("{} kg", app::fmt::num(b.residual_kg, 0)).as_str());
     h.get_by_label(b.explanation.as_str());
-    // to the delivery on its tank page: its verdict is in the deliveries tab
+    // the reading after the fill opens in the readings tab, in its form
+    let after_ms = r.after.as_ref().expect("reading after").time_ms;
+    h.get_by_label("Open the reading after").click();
+    h.run();
+    {
+        let v = h.state().view();
+        assert_eq!(v.tab, app::view::TankTab::Readings);
+        let id = v.reading_editor.form.editing.expect("a reading open");
+        let read = h
+            .state()
+            .repository()
+            .reading(store::ReadingId(id))
+            .expect("reading");
+        assert_eq!(read.entry.time.ms, after_ms);
+    }
+    // back to the balance, then to the delivery on its tank page: its verdict is in the deliveries tab
+    h.get_by_label("Audit").click();
+    h.run();
     h.get_by_label("Open the delivery on its tank page").click();
     h.run();
     let v = h.state().view();

@@ -228,8 +228,27 @@ fn an_edited_reading_keeps_its_old_value_in_the_history() {
         Some(first.id.0)
     );
     type_into(&mut h, "DP", "99.5");
-    // No reason, no save.
+    // No reason, no save; the form says so only once the user tries to save.
     assert!(!h.state().view().reading_editor.check.ok);
+    let why = "say why this reading is changed (kept in its history)";
+    assert!(
+        h.query_by_label(why).is_none(),
+        "said before a save was tried"
+    );
+    h.get_by_label("Save change").click();
+    h.run();
+    h.get_by_label(why);
+    assert_eq!(
+        h.state()
+            .repository()
+            .reading(first.id)
+            .expect("reading")
+            .entry
+            .dp
+            .value,
+        old_dp,
+        "nothing saved without a reason"
+    );
     type_into(
         &mut h,
         "Reason for the change",

@@ -454,6 +454,23 @@ fn detail_ui(ui: &mut Ui, view: &ViewState, r: &BalanceRow, out: &mut Vec<Action
     ui.label(RichText::new("Readings used, with the liquid state assumed").strong());
     bracket_line(ui, "before", &r.before, view);
     bracket_line(ui, "after", &r.after, view);
+    if let Some(tank) = r.tank_id {
+        ui.horizontal(|ui| {
+            for (label, b) in [
+                ("Open the reading before", &r.before),
+                ("Open the reading after", &r.after),
+            ] {
+                if let Some(b) = b
+                    && ui.small_button(label).clicked()
+                {
+                    out.push(Action::OpenReading {
+                        tank,
+                        time_ms: b.time_ms,
+                    });
+                }
+            }
+        });
+    }
     ui.add_space(6.0);
     ui.label(RichText::new("In words").strong());
     ui.label(&r.explanation);

@@ -152,7 +152,9 @@ fn form_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
         }
     });
     widgets::messages(ui, check, "supply_pressure");
-    if editing && let Some(v) = widgets::reason_field(ui, &f.reason, check) {
+    if editing
+        && let Some(v) = widgets::reason_field(ui, &f.reason, check, view.delivery_editor.tried)
+    {
         set(&mut |n| n.reason = v.clone());
     }
     if let Some(n) = next {
@@ -162,7 +164,8 @@ fn form_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
         ui.label(RichText::new(line).color(style::MUTED));
     }
     ui.add_space(6.0);
-    let (save, delete) = widgets::save_and_delete(ui, "delivery", editing, check.ok, &f.reason);
+    let (save, delete) =
+        widgets::save_and_delete(ui, "delivery", editing, widgets::savable(check), &f.reason);
     if save {
         out.push(Action::SaveDelivery);
     }

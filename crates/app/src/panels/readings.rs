@@ -171,7 +171,9 @@ fn form_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
     if let Some(v) = widgets::text_field(ui, "Note (optional)", &f.note, 300.0, "") {
         set(&mut |n| n.note = v.clone());
     }
-    if editing && let Some(v) = widgets::reason_field(ui, &f.reason, check) {
+    if editing
+        && let Some(v) = widgets::reason_field(ui, &f.reason, check, view.reading_editor.tried)
+    {
         set(&mut |n| n.reason = v.clone());
     }
     if let Some(n) = next {
@@ -202,7 +204,8 @@ fn form_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
         );
     }
     ui.add_space(6.0);
-    let (save, delete) = widgets::save_and_delete(ui, "reading", editing, check.ok, &f.reason);
+    let (save, delete) =
+        widgets::save_and_delete(ui, "reading", editing, widgets::savable(check), &f.reason);
     if save {
         out.push(Action::SaveReading);
     }

@@ -234,7 +234,9 @@ pub fn setup_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
                 ) {
                     set(&mut |n| n.reason = v.clone());
                 }
-                widgets::messages(ui, check, "reason");
+                if view.setup_tried {
+                    widgets::messages(ui, check, "reason");
+                }
             }
             if let Some(n) = next {
                 out.push(Action::EditSetupForm(n));
@@ -242,7 +244,7 @@ pub fn setup_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
             ui.add_space(10.0);
             ui.horizontal(|ui| {
                 let label = if editing { "Save tank" } else { "Create tank" };
-                if widgets::action_button(ui, label, check.ok) {
+                if widgets::action_button(ui, label, widgets::savable(check)) {
                     out.push(Action::SaveTank);
                 }
                 if !check.ok {

@@ -294,8 +294,15 @@ pub fn form_heading(ui: &mut Ui, noun: &str, editing: bool) -> bool {
     .inner
 }
 
-/// The reason asked for an edit or a deletion, with its messages; the new text when it changed.
-pub fn reason_field(ui: &mut Ui, reason: &str, check: &FormCheck) -> Option<String> {
+/// True when the form may be saved, or when only its reason is missing (saving then says so: a form
+/// does not complain about a reason before the user tries to save).
+pub fn savable(check: &FormCheck) -> bool {
+    check.ok || (!check.errors.is_empty() && check.errors.iter().all(|e| e.field == "reason"))
+}
+
+/// The reason asked for an edit or a deletion, with its messages once the user tried to save; the new
+/// text when it changed.
+pub fn reason_field(ui: &mut Ui, reason: &str, check: &FormCheck, tried: bool) -> Option<String> {
     let changed = text_field(
         ui,
         "Reason for the change",
@@ -303,7 +310,9 @@ pub fn reason_field(ui: &mut Ui, reason: &str, check: &FormCheck) -> Option<Stri
         300.0,
         "required to edit or delete",
     );
-    messages(ui, check, "reason");
+    if tried {
+        messages(ui, check, "reason");
+    }
     changed
 }
 
