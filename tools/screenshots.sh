@@ -43,3 +43,10 @@ WAIT=10 shot audit-fills audit si "$audit_db"
 WAIT=10 shot audit-balance audit:ticket:TK100056 si "$audit_db"
 WAIT=10 shot audit-vehicles audit:vehicles si "$audit_db"
 WAIT=10 shot audit-gauges audit:gauges:DSF-AR-7 si "$audit_db"
+# the import page checking files with one bad row (a DP typed as text on line 3 of the readings)
+imp=$work/import
+mkdir -p "$imp"
+"$bin" export --db "$audit_db" --what tanks --out "$imp/tanks.csv"
+"$bin" export --db "$audit_db" --what readings --out "$imp/readings.csv"
+sed -i '3s/,\([0-9.]*\),inH2O,/,1O4.2,inH2O,/' "$imp/readings.csv"
+WAIT=6 shot import-check "import:check:$imp" si "$work/empty.db"

@@ -29,6 +29,9 @@ pub struct ImportArgs {
     /// Stop checking after this many errors
     #[arg(long, default_value_t = 100, value_name = "N")]
     pub max_errors: usize,
+    /// Check every row and say what would be imported, writing nothing
+    #[arg(long)]
+    pub check_only: bool,
 }
 
 /// Run `import`: all or nothing; errors as FILE:LINE: field: reason, exit status 1.
@@ -50,16 +53,22 @@ pub fn import(a: ImportArgs) -> Result<ExitCode> {
     let opts = ImportOptions {
         max_errors: a.max_errors,
         reading_check: Some(&check),
+        dry_run: a.check_only,
     };
     let result = store.import(sources, &opts);
-    if result.is_err() {
+    if result.is_err() || a.check_only {
         drop(store);
         created.remove();
     }
     match result {
         Ok(s) => {
             println!(
-                "imported {} tanks, {} readings, {} deliveries into {}",
+                "{} {} tanks, {} readings, {} deliveries into {}",
+                if a.check_only {
+                    "every row checks out; nothing written; an import would add"
+                } else {
+                    "imported"
+                },
                 s.tanks,
                 s.readings,
                 s.deliveries,

@@ -109,3 +109,47 @@ fn demo_audit_finds_the_planted_faults() {
     // planted -3 %; tolerance 0.5 % (the fills' scatter over ~20 fills)
     assert!((bias + 3.0).abs() < 0.5, "{bias}");
 }
+
+/// `import --check-only` checks every row and says what an import would add, writing nothing: an
+/// existing database keeps its dump, a new one is not left behind.
+#[test]
+fn import_check_only_writes_nothing() {
+    let dir = tempfile::tempdir().unwrap();
+    let tanks = dir.path().join("tanks.csv");
+    std::fs::write(&tanks, include_str!("../../demo-data/tanks.csv")).unwrap();
+    let fresh = dir.path().join("fresh.db");
+    let out = bin()
+        .args(["import", "--check-only", "--tanks"])
+        .arg(&tanks)
+        .arg("--db")
+        .arg(&fresh)
+        .output()
+        .unwrap();
+    expect_success(&out);
+    let text = String::from_utf8(out.stdout).unwrap();
+    assert!(
+        text.contains("nothing written") && text.contains("16 tanks"),
+        "{text}"
+    );
+    assert!(!fresh.exists(), "a check leaves no database behind");
+    let db = dir.path().join("empty.db");
+    let made = bin()
+        .args(["import", "--tanks"])
+        .arg(&tanks)
+        .arg("--db")
+        .arg(&db)
+        .output()
+        .unwrap();
+    expect_success(&made);
+    let before = dump(&db);
+    let again = bin()
+        .args(["import", "--check-only", "--tanks"])
+        .arg(&tanks)
+        .arg("--db")
+        .arg(&db)
+        .output()
+        .unwrap();
+    // the same tanks again are refused as duplicates, and nothing changes either way
+    assert!(!again.status.success());
+    assert_eq!(dump(&db), before);
+}

@@ -62,6 +62,16 @@ pub enum Action {
     VerifyHistory,
     /// Open the audit page.
     ShowAudit,
+    /// Open the import page.
+    ShowImport,
+    /// The path of one kind of import file changed (an index into `IMPORT_KINDS`).
+    SetImportPath(usize, String),
+    /// Pick one kind of import file with the desktop's file dialog.
+    ChooseImportFile(usize),
+    /// Check the chosen files and preview them, writing nothing.
+    CheckImport,
+    /// Import the chosen files, all or nothing; the audit follows.
+    RunImport,
     /// Show a section of the audit page.
     ShowAuditSection(AuditSection),
     /// Keep the audit page's fills the filter names.
@@ -462,6 +472,22 @@ impl Core {
             Action::ShowTankPage => self.view.page = Page::Tank,
             Action::ShowHelp => self.view.page = Page::Help,
             Action::ShowAudit => self.view.page = Page::Audit,
+            Action::ShowImport => self.view.page = Page::Import,
+            Action::SetImportPath(k, p) => {
+                if let Some(slot) = self.view.import.paths.get_mut(k) {
+                    *slot = p;
+                    // a check is for the files it read
+                    self.view.import.checked = None;
+                }
+            }
+            Action::ChooseImportFile(k) => {
+                if let Some(p) = build::pick_csv_file(IMPORT_KINDS.get(k).copied().unwrap_or("CSV"))
+                {
+                    self.handle(Action::SetImportPath(k, p));
+                }
+            }
+            Action::CheckImport => self.run_import(true),
+            Action::RunImport => self.run_import(false),
             Action::ShowAuditSection(s) => {
                 self.view.page = Page::Audit;
                 self.view.audit.section = s;
@@ -590,6 +616,65 @@ impl Core {
                     self.rebuild_tank(id);
                 }
             }
+        }
+    }
+
+    /// Check (a dry run) or import the files of the import page; an import refreshes the fleet list
+    /// and the audit.
+    fn run_import(&mut self, check_only: bool) {
+        let iv = &mut self.view.import;
+        iv.done = None;
+        let (files, errors) = build::import_preview(&iv.paths);
+        iv.files = files;
+        iv.errors = errors;
+        iv.truncated = false;
+        iv.checked = None;
+        if !iv.errors.is_empty() {
+            return;
+        }
+        if iv.paths.iter().all(|p| p.trim().is_empty()) {
+            iv.errors.push("choose at least one file".into());
+            return;
+        }
+        let checker = evaluate::ReadingChecker::new();
+        let check = |t: &store::TankRecord, r: &store::ReadingEntry| checker.check(t, r);
+        let opts = store::ImportOptions {
+            reading_check: Some(&check),
+            dry_run: check_only,
+            ..store::ImportOptions::default()
+        };
+        let sources = match build::import_sources(&self.view.import.paths) {
+            Ok(s) => s,
+            Err(e) => {
+                self.view.import.errors.push(describe(&e));
+                return;
+            }
+        };
+        let result = self.store.import(sources, &opts);
+        let iv = &mut self.view.import;
+        match result {
+            Ok(s) => {
+                let what = format!(
+                    "{} tanks, {} readings, {} deliveries",
+                    s.tanks, s.readings, s.deliveries
+                );
+                if check_only {
+                    iv.checked = Some(format!(
+                        "Every row checks out: an import would add {what}. Nothing is written yet."
+                    ));
+                } else {
+                    iv.done = Some(format!("Imported {what}. The audit runs again."));
+                    iv.paths = Default::default();
+                    iv.files.clear();
+                    self.fleet_audit = None;
+                    self.start_fleet_summary();
+                }
+            }
+            Err(store::StoreError::Import(e)) => {
+                iv.errors = e.errors.iter().map(ToString::to_string).collect();
+                iv.truncated = e.truncated;
+            }
+            Err(e) => iv.errors.push(describe(&e)),
         }
     }
 

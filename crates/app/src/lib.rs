@@ -10,7 +10,8 @@
 //!
 //! Start-up options for screenshots and demos: `CRYOLEDGER_OPEN` opens a page
 //! (`tank:NAME[:now|readings|deliveries|trend]`, `audit[:fills|vehicles|gauges|findings]`,
-//! `audit:ticket:T` (that fill's balance open), `audit:gauges:TANK` (its fills plotted), `tank:NAME:readings:latest` to open the latest
+//! `audit:ticket:T` (that fill's balance open), `audit:gauges:TANK` (its fills plotted), `import`, `import:check:DIR` (DIR's tanks.csv,
+//! readings.csv and deliveries.csv checked), `tank:NAME:readings:latest` to open the latest
 //! reading for editing, `setup:NAME`, `setup:new`, `help`), and
 //! `CRYOLEDGER_UNITS` (`si` or `us`) sets the display units for this session.
 #![deny(missing_docs)]
@@ -170,6 +171,22 @@ impl CryoApp {
             |core: &Core, name: &str| core.repository().tank_by_name(name).ok().map(|t| t.id.0);
         match kind {
             "help" => self.push(Action::ShowHelp),
+            "import" => {
+                self.push(Action::ShowImport);
+                if name == "check" && !tab.is_empty() {
+                    let dir = std::path::Path::new(tab);
+                    for (k, file) in ["tanks.csv", "readings.csv", "deliveries.csv"]
+                        .iter()
+                        .enumerate()
+                    {
+                        let p = dir.join(file);
+                        if p.is_file() {
+                            self.push(Action::SetImportPath(k, p.display().to_string()));
+                        }
+                    }
+                    self.push(Action::CheckImport);
+                }
+            }
             "audit" => {
                 let section = AuditSection::ALL
                     .into_iter()
@@ -250,6 +267,7 @@ impl CryoApp {
             Page::Setup => panels::setup::setup_ui(ui, view, &mut out),
             Page::Help => panels::help::help_ui(ui, view, &mut out),
             Page::Audit => panels::audit::audit_ui(ui, view, &mut out),
+            Page::Import => panels::import::import_ui(ui, view, &mut out),
         });
         self.actions.extend(out);
     }

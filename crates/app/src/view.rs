@@ -15,6 +15,43 @@ pub enum Page {
     Help,
     /// The fleet's audit: every fill's balance, vehicles, gauges and findings.
     Audit,
+    /// Import CSV files: pick, check with a preview, then import all or nothing.
+    Import,
+}
+
+/// The kinds of file an import takes, in the order they are read.
+pub const IMPORT_KINDS: [&str; 3] = ["Tanks", "Readings", "Deliveries"];
+
+/// One file of an import, as it will be read.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct ImportFileView {
+    /// Which kind (an index into [`IMPORT_KINDS`]).
+    pub kind: usize,
+    /// Its path.
+    pub path: String,
+    /// Its header.
+    pub header: Vec<String>,
+    /// Its first rows, as read.
+    pub rows: Vec<Vec<String>>,
+    /// Rows in the file (without the header).
+    pub row_count: usize,
+}
+
+/// The import page.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct ImportView {
+    /// The path of each kind of file (empty: none).
+    pub paths: [String; 3],
+    /// The files as they will be read (after a check).
+    pub files: Vec<ImportFileView>,
+    /// Every refused row, "file:line: field: reason", or a file that cannot be read.
+    pub errors: Vec<String>,
+    /// True when checking stopped at the cap.
+    pub truncated: bool,
+    /// What an import would add, once every row checks out.
+    pub checked: Option<String>,
+    /// What the last import wrote.
+    pub done: Option<String>,
 }
 
 /// A fill's verdict, as the window shows it: a word always, a colour beside it.
@@ -898,6 +935,8 @@ pub struct ViewState {
     pub history_check: Option<HistoryCheck>,
     /// The audit page.
     pub audit: AuditView,
+    /// The import page.
+    pub import: ImportView,
     /// Show frame and page-build timings in the status bar (a diagnostics switch on the help page).
     pub diagnostics: bool,
 }

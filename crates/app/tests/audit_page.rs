@@ -9,6 +9,7 @@
 use app::CryoApp;
 use app::action::Action;
 use app::egui;
+use app::egui::Role;
 use app::view::{AuditSection, Page, VerdictWord};
 use egui_kittest::{Harness, kittest::Queryable};
 use std::path::PathBuf;
@@ -219,4 +220,130 @@ fn a_balance_opens_with_the_fleet_audits_numbers_and_the_filter_keeps_one_vehicl
             .any(|d| d.1 == ticket && d.2 == Some(VerdictWord::Short))
     );
     let _ = h.state().repository().reading_count(None);
+}
+
+fn empty_harness() -> Harness<'static, CryoApp> {
+    let mut app = CryoApp::new(
+        Store::open_in_memory().expect("store"),
+        PathBuf::from(":memory:"),
+    );
+    app.wait_for_background();
+    let mut h = Harness::builder()
+        .with_size(egui::vec2(1360.0, 860.0))
+        .build_eframe(move |_cc| app);
+    h.run();
+    h
+}
+
+fn set_path(h: &mut Harness<'_, CryoApp>, label: &str, path: &std::path::Path) {
+    let field = h.get_by_role_and_label(Role::TextInput, label);
+    field.focus();
+    field.type_text(&path.display().to_string());
+    h.run();
+}
+
+/// A readings file with a bad DP on its third line: "Check" lists the error with its file and line,
+/// "Import" stays disabled, and nothing is written (the store's all-or-nothing rule).
+#[test]
+fn an_import_with_a_bad_row_shows_it_and_writes_nothing() {
+    let dir = tempfile::tempdir().expect("dir");
+    let tanks = dir.path().join("tanks.csv");
+    std::fs::write(&tanks, include_str!("../../../demo-data/tanks.csv")).expect("write");
+    let readings = dir.path().join("readings.csv");
+    std::fs::write(
+        &readings,
+        "tank,time,dp,dp_unit,pressure,pressure_unit\n\
+         ASB-N2-1,2026-01-01T08:52:38Z,114,inH2O,12.1,barg\n\
+         ASB-N2-1,2026-01-02T08:44:30Z,abc,inH2O,11.5,barg\n",
+    )
+    .expect("write");
+    let mut h = empty_harness();
+    h.get_by_label("Import").click();
+    h.run();
+    assert_eq!(h.state().view().page, Page::Import);
+    set_path(&mut h, "Tanks file", &tanks);
+    set_path(&mut h, "Readings file", &readings);
+    h.get_by_label("Check").click();
+    h.run();
+    let iv = &h.state().view().import;
+    assert!(iv.checked.is_none());
+    let line = format!("{}:3: dp:", readings.display());
+    assert!(
+        iv.errors.iter().any(|e| e.starts_with(&line)),
+        "{:?}",
+        iv.errors
+    );
+    let shown = iv.errors[0].clone();
+    h.get_by_label(shown.as_str());
+    // the preview shows the files as read
+    assert_eq!(iv.files.len(), 2);
+    assert_eq!(iv.files[1].row_count, 2);
+    assert_eq!(iv.files[1].rows[1][2], "abc");
+    // the page's Import button is disabled: a click does nothing
+    h.get_all_by_label("Import")
+        .last()
+        .expect("the page's Import button")
+        .click();
+    h.run();
+    assert!(h.state().repository().tanks().expect("tanks").is_empty());
+    assert_eq!(
+        h.state().repository().reading_count(None).expect("count"),
+        0
+    );
+}
+
+/// Good files: "Check" says what an import would add and writes nothing; "Import" writes them, and
+/// the audit page shows the fleet's fills with MC-T25 biased (the demo's planted fault).
+#[test]
+fn an_import_of_good_files_refreshes_the_audit() {
+    let dir = tempfile::tempdir().expect("dir");
+    let mut paths = Vec::new();
+    for (name, text) in [
+        ("tanks.csv", include_str!("../../../demo-data/tanks.csv")),
+        (
+            "readings.csv",
+            include_str!("../../../demo-data/readings.csv"),
+        ),
+        (
+            "deliveries.csv",
+            include_str!("../../../demo-data/deliveries.csv"),
+        ),
+    ] {
+        let p = dir.path().join(name);
+        std::fs::write(&p, text).expect("write");
+        paths.push(p);
+    }
+    let mut h = empty_harness();
+    h.get_by_label("Import").click();
+    h.run();
+    for (label, p) in ["Tanks file", "Readings file", "Deliveries file"]
+        .iter()
+        .zip(&paths)
+    {
+        set_path(&mut h, label, p);
+    }
+    h.get_by_label("Check").click();
+    h.run();
+    let checked = h.state().view().import.checked.clone().expect("checked");
+    assert!(
+        checked.contains("16 tanks, 5726 readings, 191 deliveries"),
+        "{checked}"
+    );
+    assert!(h.state().repository().tanks().expect("tanks").is_empty());
+    // the page's Import button (the top bar's comes first)
+    h.get_all_by_label("Import")
+        .last()
+        .expect("the page's Import button")
+        .click();
+    h.run();
+    h.state_mut().wait_for_background();
+    h.run();
+    assert_eq!(h.state().repository().tanks().expect("tanks").len(), 16);
+    let a = &h.state().view().audit;
+    assert_eq!(a.rows.len(), 191);
+    assert!(
+        a.vehicles
+            .iter()
+            .any(|v| v.vehicle == "MC-T25" && v.flagged)
+    );
 }

@@ -136,6 +136,8 @@ pub struct ImportOptions<'a> {
     pub max_errors: usize,
     /// Extra check of each reading against its tank.
     pub reading_check: Option<ReadingCheck<'a>>,
+    /// Check everything and say what would be written, then write nothing (a preview).
+    pub dry_run: bool,
 }
 
 impl Default for ImportOptions<'_> {
@@ -143,6 +145,7 @@ impl Default for ImportOptions<'_> {
         Self {
             max_errors: 100,
             reading_check: None,
+            dry_run: false,
         }
     }
 }

@@ -8,6 +8,7 @@ mod fleet;
 mod form_fill;
 mod forms;
 mod history;
+mod import_page;
 mod reading;
 mod tank_page;
 mod trend;
@@ -20,6 +21,7 @@ pub use form_fill::{
 };
 pub use forms::{SiteSettings, check_delivery, check_reading, check_setup, split_value_unit};
 pub use history::history;
+pub use import_page::{PREVIEW_ROWS, import_preview, import_sources, pick_csv_file};
 pub use tank_page::{tank_view, vessel};
 pub use trend::{quantity_of, quantity_unit, trend};
 

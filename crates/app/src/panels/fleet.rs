@@ -46,7 +46,7 @@ pub fn fleet_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
             ui.label(format!("Evaluating the fleet… {done} of {total} tanks"));
             ui.add(egui::ProgressBar::new(done as f32 / total.max(1) as f32));
         } else {
-            ui.label("No tanks yet. Use New tank, or import CSV files: cryoledger import --db DB --tanks FILE");
+            ui.label("No tanks yet. Use New tank, or Import (top bar) for CSV files.");
         }
         return;
     }

@@ -5,6 +5,7 @@ pub mod audit;
 pub mod deliveries;
 pub mod fleet;
 pub mod help;
+pub mod import;
 pub mod now;
 pub mod readings;
 pub mod setup;

@@ -34,6 +34,13 @@ pub fn top_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
             out.push(Action::ShowAudit);
         }
         if ui
+            .selectable_label(view.page == Page::Import, "Import")
+            .on_hover_text("Import tanks, readings and deliveries from CSV files")
+            .clicked()
+        {
+            out.push(Action::ShowImport);
+        }
+        if ui
             .selectable_label(view.page == Page::Help, "Help and cautions")
             .clicked()
         {

@@ -61,6 +61,10 @@ pub(crate) fn import(
         return Err(fatal);
     }
     match sink.into_errors() {
+        None if opts.dry_run => {
+            tx.rollback()?;
+            Ok(summary)
+        }
         None => {
             tx.commit()?;
             Ok(summary)
