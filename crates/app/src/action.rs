@@ -112,6 +112,27 @@ struct FleetJob {
     rx: Receiver<Result<FleetSummary, AppError>>,
 }
 
+/// An import running on its own thread and connection: bytes read of the files' total, and the result.
+struct ImportJob {
+    read: Arc<std::sync::atomic::AtomicU64>,
+    total: u64,
+    rx: Receiver<Result<store::ImportSummary, store::StoreError>>,
+}
+
+/// A reader that counts the bytes read through it (an import's progress).
+struct Counting<R> {
+    inner: R,
+    read: Arc<std::sync::atomic::AtomicU64>,
+}
+
+impl<R: std::io::Read> std::io::Read for Counting<R> {
+    fn read(&mut self, buf: &mut [u8]) -> std::io::Result<usize> {
+        let n = self.inner.read(buf)?;
+        self.read.fetch_add(n as u64, Ordering::Relaxed);
+        Ok(n)
+    }
+}
+
 /// The store, the view state built from it, and background work.
 pub struct Core {
     /// The open store: private, so that [`Core::handle`] is the only code that can write to it.
@@ -121,6 +142,7 @@ pub struct Core {
     /// What the panels draw.
     pub view: ViewState,
     job: Option<FleetJob>,
+    import_job: Option<ImportJob>,
     /// The first fleet summary waits for the first frame, so a page opened at start-up is built
     /// without competing with it.
     summary_pending: bool,
@@ -142,6 +164,7 @@ impl Core {
                 ..Default::default()
             },
             job: None,
+            import_job: None,
             summary_pending: true,
             db_path: db_path.filter(|p| p.is_file()),
         };
@@ -213,6 +236,27 @@ impl Core {
         if std::mem::take(&mut self.summary_pending) {
             self.start_fleet_summary();
         }
+        if let Some(job) = &self.import_job {
+            match job.rx.try_recv() {
+                Ok(result) => {
+                    self.import_job = None;
+                    self.view.import.progress = None;
+                    self.import_done(result, false);
+                }
+                Err(TryRecvError::Empty) => {
+                    self.view.import.progress = Some((job.read.load(Ordering::Relaxed), job.total));
+                    return true;
+                }
+                Err(TryRecvError::Disconnected) => {
+                    self.import_job = None;
+                    self.view.import.progress = None;
+                    self.view
+                        .import
+                        .errors
+                        .push("the import stopped unexpectedly; nothing was written".into());
+                }
+            }
+        }
         let Some(job) = &self.job else {
             return false;
         };
@@ -240,6 +284,17 @@ impl Core {
 
     /// Block until the background fleet summary has finished (tests, benchmarks, first frame).
     pub fn wait_for_background(&mut self) {
+        if let Some(job) = self.import_job.take() {
+            self.view.import.progress = None;
+            match job.rx.recv() {
+                Ok(result) => self.import_done(result, false),
+                Err(_) => self
+                    .view
+                    .import
+                    .errors
+                    .push("the import stopped unexpectedly; nothing was written".into()),
+            }
+        }
         if std::mem::take(&mut self.summary_pending) {
             self.start_fleet_summary();
         }
@@ -643,6 +698,67 @@ impl Core {
             dry_run: check_only,
             ..store::ImportOptions::default()
         };
+        // a real import of a database file runs on its own thread and connection, its progress the
+        // bytes read; a check, or a database in memory, runs here
+        if !check_only
+            && let Some(path) = self.db_path.clone()
+            && self.import_job.is_none()
+        {
+            let paths = self.view.import.paths.clone();
+            let total: u64 = paths
+                .iter()
+                .filter(|p| !p.trim().is_empty())
+                .filter_map(|p| std::fs::metadata(p.trim()).ok())
+                .map(|m| m.len())
+                .sum();
+            let read = Arc::new(std::sync::atomic::AtomicU64::new(0));
+            let counter = Arc::clone(&read);
+            let (tx, rx) = std::sync::mpsc::channel();
+            let spawned = std::thread::Builder::new()
+                .name("import".into())
+                .spawn(move || {
+                    let result = (|| {
+                        let mut store = Store::open(&path)?;
+                        let mut sources = build::import_sources(&paths)?;
+                        for s in [
+                            &mut sources.tanks,
+                            &mut sources.readings,
+                            &mut sources.deliveries,
+                        ]
+                        .into_iter()
+                        .flatten()
+                        {
+                            let inner =
+                                std::mem::replace(&mut s.reader, Box::new(std::io::empty()));
+                            s.reader = Box::new(Counting {
+                                inner,
+                                read: Arc::clone(&counter),
+                            });
+                        }
+                        let checker = evaluate::ReadingChecker::new();
+                        let check =
+                            |t: &store::TankRecord, r: &store::ReadingEntry| checker.check(t, r);
+                        let opts = store::ImportOptions {
+                            reading_check: Some(&check),
+                            ..store::ImportOptions::default()
+                        };
+                        store.import(sources, &opts)
+                    })();
+                    let _ = tx.send(result);
+                });
+            match spawned {
+                Ok(_) => {
+                    self.view.import.progress = Some((0, total));
+                    self.import_job = Some(ImportJob { read, total, rx });
+                }
+                Err(e) => self
+                    .view
+                    .import
+                    .errors
+                    .push(format!("cannot start the import: {e}")),
+            }
+            return;
+        }
         let sources = match build::import_sources(&self.view.import.paths) {
             Ok(s) => s,
             Err(e) => {
@@ -651,6 +767,15 @@ impl Core {
             }
         };
         let result = self.store.import(sources, &opts);
+        self.import_done(result, check_only);
+    }
+
+    /// Show what a check or an import did; after an import the fleet list and the audit follow.
+    fn import_done(
+        &mut self,
+        result: Result<store::ImportSummary, store::StoreError>,
+        check_only: bool,
+    ) {
         let iv = &mut self.view.import;
         match result {
             Ok(s) => {

@@ -52,6 +52,8 @@ pub struct ImportView {
     pub checked: Option<String>,
     /// What the last import wrote.
     pub done: Option<String>,
+    /// An import running in the background: bytes read of the files' total.
+    pub progress: Option<(u64, u64)>,
 }
 
 /// A fill's verdict, as the window shows it: a word always, a colour beside it.

@@ -347,3 +347,61 @@ fn an_import_of_good_files_refreshes_the_audit() {
             .any(|v| v.vehicle == "MC-T25" && v.flagged)
     );
 }
+
+/// On a database file the import runs on its own thread and connection, with its progress shown; the
+/// window's ledger sees the imported records, and the audit follows.
+#[test]
+fn an_import_into_a_database_file_runs_in_the_background() {
+    let dir = tempfile::tempdir().expect("dir");
+    let db = dir.path().join("ledger.db");
+    let store = Store::open(&db).expect("store");
+    let mut paths = Vec::new();
+    for (name, text) in [
+        ("tanks.csv", include_str!("../../../demo-data/tanks.csv")),
+        (
+            "readings.csv",
+            include_str!("../../../demo-data/readings.csv"),
+        ),
+        (
+            "deliveries.csv",
+            include_str!("../../../demo-data/deliveries.csv"),
+        ),
+    ] {
+        let p = dir.path().join(name);
+        std::fs::write(&p, text).expect("write");
+        paths.push(p);
+    }
+    let mut app = CryoApp::new(store, db.clone());
+    app.wait_for_background();
+    for (k, p) in paths.iter().enumerate() {
+        app.push(Action::SetImportPath(k, p.display().to_string()));
+    }
+    app.push(Action::CheckImport);
+    app.push(Action::RunImport);
+    app.drain_actions();
+    let (read, total) = app
+        .view()
+        .import
+        .progress
+        .expect("running in the background");
+    let size: u64 = paths
+        .iter()
+        .map(|p| std::fs::metadata(p).expect("size").len())
+        .sum();
+    assert_eq!(total, size);
+    assert!(read <= total);
+    app.wait_for_background();
+    let v = app.view();
+    assert!(v.import.progress.is_none());
+    assert!(
+        v.import
+            .done
+            .as_deref()
+            .is_some_and(|d| d.contains("16 tanks, 5726 readings, 191 deliveries")),
+        "{:?} {:?}",
+        v.import.done,
+        v.import.errors
+    );
+    assert_eq!(app.repository().tanks().expect("tanks").len(), 16);
+    assert_eq!(v.audit.rows.len(), 191);
+}

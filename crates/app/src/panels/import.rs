@@ -44,18 +44,35 @@ pub fn import_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
         });
     }
     ui.add_space(6.0);
+    let busy = iv.progress.is_some();
     ui.horizontal(|ui| {
-        if ui.button("Check").clicked() {
+        if ui.add_enabled(!busy, egui::Button::new("Check")).clicked() {
             out.push(Action::CheckImport);
         }
         if ui
-            .add_enabled(iv.checked.is_some(), egui::Button::new("Import"))
+            .add_enabled(iv.checked.is_some() && !busy, egui::Button::new("Import"))
             .on_disabled_hover_text("Check the files first")
             .clicked()
         {
             out.push(Action::RunImport);
         }
     });
+    if let Some((read, total)) = iv.progress {
+        let f = if total > 0 {
+            read as f32 / total as f32
+        } else {
+            0.0
+        };
+        ui.add(
+            egui::ProgressBar::new(f.min(1.0))
+                .desired_width(420.0)
+                .text(format!(
+                    "importing: {:.1} of {:.1} MB read (all or nothing: written when every row checks out)",
+                    read as f64 / 1e6,
+                    total as f64 / 1e6
+                )),
+        );
+    }
     if let Some(done) = &iv.done {
         ui.label(RichText::new(done).color(style::OK).strong());
     }
