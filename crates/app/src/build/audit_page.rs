@@ -194,14 +194,21 @@ pub fn audit_view(
             tolerance_percent: v.legal_tolerance_percent,
         })
         .collect();
+    // each tank's fills, grouped once (a fleet has thousands of tanks)
+    let mut fills_of: HashMap<&str, Vec<&Balance>> = HashMap::new();
+    for b in &fa.fills {
+        fills_of.entry(b.tank.as_str()).or_default().push(b);
+    }
     let gauges = fa
         .gauges
         .iter()
         .map(|g| {
-            let points: Vec<(f64, f64, String)> = fa
-                .fills
+            let points: Vec<(f64, f64, String)> = fills_of
+                .get(g.tank.as_str())
+                .map(Vec::as_slice)
+                .unwrap_or_default()
                 .iter()
-                .filter(|b| b.tank == g.tank && b.ratio.is_finite() && b.before.is_some())
+                .filter(|b| b.ratio.is_finite() && b.before.is_some())
                 .map(|b| {
                     (
                         b.start_ms as f64 / DAY_MS,

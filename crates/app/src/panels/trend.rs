@@ -107,6 +107,8 @@ pub fn trend_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
         .period_days
         .map_or(first_x, |d| (last_x - f64::from(d)).max(first_x));
     let period_id = tv.period_days.unwrap_or(0);
+    let hover_label = tv.y_label.clone();
+    let pressure_label = tv.pressure_label.clone();
     Plot::new(("trend_contents", period_id))
         .height(top_h)
         .default_x_bounds(from_x, last_x + 2.0)
@@ -129,9 +131,10 @@ pub fn trend_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
             } if *plot_name == SERIES => hover.get(*index).cloned(),
             HoverPosition::NearDataPoint { position, .. }
             | HoverPosition::Elsewhere { position, .. } => Some(format!(
-                "{}\n{:.1}",
+                "{} UTC\n{}: {}",
                 fmt::date_time((position.x * 86_400_000.0) as i64),
-                position.y
+                hover_label,
+                fmt::num(position.y, fmt::decimals_for(position.y))
             )),
         })
         .show(ui, |p| {
@@ -216,15 +219,16 @@ pub fn trend_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
         .grid_color(style::GRID)
         .y_grid_spacer(egui_plot::uniform_grid_spacer(nice_steps))
         .y_axis_min_width(56.0)
-        .label_formatter(|pos: &HoverPosition<'_>| {
+        .label_formatter(move |pos: &HoverPosition<'_>| {
             let p = match pos {
                 HoverPosition::NearDataPoint { position, .. }
                 | HoverPosition::Elsewhere { position, .. } => position,
             };
             Some(format!(
-                "{}\n{:.2}",
+                "{} UTC\n{}: {}",
                 fmt::date_time((p.x * 86_400_000.0) as i64),
-                p.y
+                pressure_label,
+                fmt::num(p.y, 2)
             ))
         })
         .show(ui, |p| {
