@@ -55,14 +55,19 @@ fn parse_time(text: &str) -> Result<chrono::DateTime<chrono::FixedOffset>> {
     chrono::DateTime::parse_from_rfc3339(text).with_context(|| format!("demo time '{text}'"))
 }
 
+/// Where the named columns are in a header.
+fn column_indexes(header: &csv::StringRecord, columns: &[&str]) -> Vec<usize> {
+    columns
+        .iter()
+        .filter_map(|c| header.iter().position(|h| h == *c))
+        .collect()
+}
+
 /// Every time (ms) in the named columns of a CSV text.
 fn read_times(text: &str, columns: &[&str]) -> Result<Vec<i64>> {
     let mut r = csv::Reader::from_reader(text.as_bytes());
     let header = r.headers()?.clone();
-    let idx: Vec<usize> = columns
-        .iter()
-        .filter_map(|c| header.iter().position(|h| h == *c))
-        .collect();
+    let idx = column_indexes(&header, columns);
     let mut out = Vec::new();
     for row in r.records() {
         let row = row?;
@@ -79,10 +84,7 @@ fn read_times(text: &str, columns: &[&str]) -> Result<Vec<i64>> {
 fn shift_times(text: &str, columns: &[&str], days: i64) -> Result<String> {
     let mut r = csv::Reader::from_reader(text.as_bytes());
     let header = r.headers()?.clone();
-    let idx: Vec<usize> = columns
-        .iter()
-        .filter_map(|c| header.iter().position(|h| h == *c))
-        .collect();
+    let idx = column_indexes(&header, columns);
     let mut w = csv::Writer::from_writer(Vec::new());
     w.write_record(&header)?;
     for row in r.records() {

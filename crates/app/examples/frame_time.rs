@@ -33,6 +33,17 @@ fn stats(mut v: Vec<f64>) -> (f64, f64, f64) {
     )
 }
 
+/// One frame: the harness step plus the tessellation eframe does next (ms), and the app's own
+/// logic + ui time (ms).
+fn frame(h: &mut Harness<'_, CryoApp>) -> (f64, f64) {
+    let t = Instant::now();
+    h.step();
+    let shapes = h.output().shapes.clone();
+    let ppp = h.output().pixels_per_point;
+    let _meshes = h.ctx.tessellate(shapes, ppp);
+    (t.elapsed().as_secs_f64() * 1e3, h.state().last_frame_ms())
+}
+
 fn main() {
     let args: Vec<String> = std::env::args().collect();
     let tanks: u32 = args
@@ -134,13 +145,9 @@ fn main() {
     h.step();
     let (mut own, mut total) = (Vec::new(), Vec::new());
     for _ in 0..100 {
-        let t = Instant::now();
-        h.step();
-        let shapes = h.output().shapes.clone();
-        let ppp = h.output().pixels_per_point;
-        let _meshes = h.ctx.tessellate(shapes, ppp);
-        total.push(t.elapsed().as_secs_f64() * 1e3);
-        own.push(h.state().last_frame_ms());
+        let (whole, app_ms) = frame(&mut h);
+        total.push(whole);
+        own.push(app_ms);
     }
     let (r_med, r_p95, _) = stats(own);
     let (rt_med, rt_p95, _) = stats(total);
@@ -159,13 +166,9 @@ fn main() {
     let (mut own, mut total) = (Vec::new(), Vec::new());
     for i in 0..100 {
         h.hover_at(app::egui::pos2(600.0, 200.0 + (i % 20) as f32 * 20.0));
-        let t = Instant::now();
-        h.step();
-        let shapes = h.output().shapes.clone();
-        let ppp = h.output().pixels_per_point;
-        let _meshes = h.ctx.tessellate(shapes, ppp);
-        total.push(t.elapsed().as_secs_f64() * 1e3);
-        own.push(h.state().last_frame_ms());
+        let (whole, app_ms) = frame(&mut h);
+        total.push(whole);
+        own.push(app_ms);
     }
     let (a_med, a_p95, _) = stats(own);
     let (at_med, at_p95, _) = stats(total);
@@ -179,13 +182,9 @@ fn main() {
     let (mut own, mut total) = (Vec::new(), Vec::new());
     let started = Instant::now();
     while h.state().view().fleet.progress.is_some() && started.elapsed().as_secs() < 600 {
-        let t = Instant::now();
-        h.step();
-        let shapes = h.output().shapes.clone();
-        let ppp = h.output().pixels_per_point;
-        let _meshes = h.ctx.tessellate(shapes, ppp);
-        total.push(t.elapsed().as_secs_f64() * 1e3);
-        own.push(h.state().last_frame_ms());
+        let (whole, app_ms) = frame(&mut h);
+        total.push(whole);
+        own.push(app_ms);
     }
     let frames = own.len();
     let (b_med, b_p95, _) = stats(own);

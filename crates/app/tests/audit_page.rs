@@ -222,6 +222,28 @@ fn a_balance_opens_with_the_fleet_audits_numbers_and_the_filter_keeps_one_vehicl
     let _ = h.state().repository().reading_count(None);
 }
 
+/// The demo's three CSV files written into `dir`: tanks, readings, deliveries.
+fn demo_files(dir: &std::path::Path) -> Vec<PathBuf> {
+    [
+        ("tanks.csv", include_str!("../../../demo-data/tanks.csv")),
+        (
+            "readings.csv",
+            include_str!("../../../demo-data/readings.csv"),
+        ),
+        (
+            "deliveries.csv",
+            include_str!("../../../demo-data/deliveries.csv"),
+        ),
+    ]
+    .into_iter()
+    .map(|(name, text)| {
+        let p = dir.join(name);
+        std::fs::write(&p, text).expect("write");
+        p
+    })
+    .collect()
+}
+
 fn empty_harness() -> Harness<'static, CryoApp> {
     let mut app = CryoApp::new(
         Store::open_in_memory().expect("store"),
@@ -297,22 +319,7 @@ fn an_import_with_a_bad_row_shows_it_and_writes_nothing() {
 #[test]
 fn an_import_of_good_files_refreshes_the_audit() {
     let dir = tempfile::tempdir().expect("dir");
-    let mut paths = Vec::new();
-    for (name, text) in [
-        ("tanks.csv", include_str!("../../../demo-data/tanks.csv")),
-        (
-            "readings.csv",
-            include_str!("../../../demo-data/readings.csv"),
-        ),
-        (
-            "deliveries.csv",
-            include_str!("../../../demo-data/deliveries.csv"),
-        ),
-    ] {
-        let p = dir.path().join(name);
-        std::fs::write(&p, text).expect("write");
-        paths.push(p);
-    }
+    let paths = demo_files(dir.path());
     let mut h = empty_harness();
     h.get_by_label("Import").click();
     h.run();
@@ -355,22 +362,7 @@ fn an_import_into_a_database_file_runs_in_the_background() {
     let dir = tempfile::tempdir().expect("dir");
     let db = dir.path().join("ledger.db");
     let store = Store::open(&db).expect("store");
-    let mut paths = Vec::new();
-    for (name, text) in [
-        ("tanks.csv", include_str!("../../../demo-data/tanks.csv")),
-        (
-            "readings.csv",
-            include_str!("../../../demo-data/readings.csv"),
-        ),
-        (
-            "deliveries.csv",
-            include_str!("../../../demo-data/deliveries.csv"),
-        ),
-    ] {
-        let p = dir.path().join(name);
-        std::fs::write(&p, text).expect("write");
-        paths.push(p);
-    }
+    let paths = demo_files(dir.path());
     let mut app = CryoApp::new(store, db.clone());
     app.wait_for_background();
     for (k, p) in paths.iter().enumerate() {

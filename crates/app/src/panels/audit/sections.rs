@@ -1,0 +1,235 @@
+//! The audit page's vehicles, gauges and findings sections.
+
+use crate::action::Action;
+use crate::fmt;
+use crate::style;
+use crate::view::AuditView;
+use egui::{RichText, Stroke, Ui, vec2};
+
+/// Each vehicle's bias with its 95 % interval against the legal tolerance (shaded), then its figures.
+pub(super) fn vehicles_ui(ui: &mut Ui, a: &AuditView) {
+    ui.label(
+        RichText::new(
+            "Each vehicle's fills against the level the other vehicles show at the same tanks. Bias and \
+             95 % interval, %; the shaded band is the legal tolerance for such meters.",
+        )
+        .color(style::MUTED),
+    );
+    let span = a
+        .vehicles
+        .iter()
+        .filter_map(|v| v.bias.map(|b| b.1.abs().max(b.2.abs())))
+        .chain(a.vehicles.iter().map(|v| v.tolerance_percent))
+        .fold(1.0_f64, f64::max)
+        * 1.15;
+    egui::ScrollArea::vertical().show(ui, |ui| {
+        egui::Grid::new("vehicles")
+            .striped(true)
+            .num_columns(7)
+            .show(ui, |ui| {
+                for h in [
+                    "Vehicle",
+                    "Carrier",
+                    "Status",
+                    "Fills",
+                    "Short fills",
+                    "Bias (%)",
+                    "",
+                ] {
+                    ui.label(RichText::new(h).color(style::MUTED));
+                }
+                ui.end_row();
+                for v in &a.vehicles {
+                    ui.label(&v.vehicle);
+                    ui.label(&v.carrier);
+                    let ink = if v.flagged { style::ERROR } else { style::INK };
+                    ui.label(RichText::new(&v.status).color(ink).strong());
+                    ui.label(v.fills.to_string());
+                    ui.label(v.short_fills.to_string());
+                    ui.label(match v.bias {
+                        Some((b, l, h)) => format!(
+                            "{} [{}, {}]",
+                            fmt::num(b, 2),
+                            fmt::num(l, 2),
+                            fmt::num(h, 2)
+                        ),
+                        None => "—".into(),
+                    });
+                    let (rect, resp) =
+                        ui.allocate_exact_size(vec2(260.0, 16.0), egui::Sense::hover());
+                    let p = ui.painter_at(rect);
+                    let x = |pct: f64| rect.center().x + (pct / span) as f32 * rect.width() * 0.5;
+                    p.rect_filled(
+                        egui::Rect::from_min_max(
+                            egui::pos2(x(-v.tolerance_percent), rect.top()),
+                            egui::pos2(x(v.tolerance_percent), rect.bottom()),
+                        ),
+                        0.0,
+                        style::BAND,
+                    );
+                    p.hline(
+                        rect.x_range(),
+                        rect.center().y,
+                        Stroke::new(1.0, style::GRID),
+                    );
+                    p.vline(x(0.0), rect.y_range(), Stroke::new(1.0, style::WALL));
+                    if let Some((b, l, h)) = v.bias {
+                        p.hline(x(l)..=x(h), rect.center().y, Stroke::new(2.0, ink));
+                        p.circle_filled(egui::pos2(x(b), rect.center().y), 4.0, ink);
+                    }
+                    resp.on_hover_text(format!(
+                        "legal tolerance ±{} %; p after Holm {}",
+                        fmt::num(v.tolerance_percent, 1),
+                        v.p_adjusted.map_or("—".into(), p_text)
+                    ));
+                    ui.end_row();
+                }
+            });
+    });
+}
+
+/// A p-value as read: three decimals, or powers of ten below 0.001.
+fn p_text(p: f64) -> String {
+    if p >= 0.001 {
+        format!("{p:.3}")
+    } else {
+        format!("{p:.1e}")
+    }
+}
+
+/// Colours told apart for the vehicles on one plot (cycled).
+const VEHICLE_COLOURS: [egui::Color32; 6] = [
+    egui::Color32::from_rgb(0x2f, 0x5f, 0x86),
+    egui::Color32::from_rgb(0xb0, 0x37, 0x37),
+    egui::Color32::from_rgb(0x3e, 0x8e, 0x7e),
+    egui::Color32::from_rgb(0xa8, 0x6a, 0x10),
+    egui::Color32::from_rgb(0x8a, 0x4f, 0x9e),
+    egui::Color32::from_rgb(0x4a, 0x55, 0x63),
+];
+
+/// One gauge's fills: (gained + drawn) / billed over time, a colour and a legend entry per vehicle,
+/// with what the test found.
+fn gauge_plot(ui: &mut Ui, g: &crate::view::GaugeLine) {
+    use egui_plot::{HLine, Legend, Line, Plot, Points};
+    ui.label(
+        RichText::new(format!(
+            "{}: each fill's (gained + drawn) / billed, %, by vehicle; {}",
+            g.tank,
+            match (g.drift_line.is_some(), g.step_lines.is_empty()) {
+                (true, _) => "the drift the test found, through the fills' mean",
+                (false, false) => "the step the test found: the mean before and after",
+                _ => "no fault found",
+            }
+        ))
+        .strong(),
+    );
+    let mut vehicles: Vec<&str> = g.points.iter().map(|p| p.2.as_str()).collect();
+    vehicles.sort_unstable();
+    vehicles.dedup();
+    Plot::new(("gauge_plot", g.tank.as_str()))
+        .height(260.0)
+        .legend(Legend::default())
+        .x_axis_formatter(|m, _| fmt::date((m.value * 86_400_000.0) as i64))
+        .y_axis_label("(gained + drawn) / billed (%)")
+        .show(ui, |p| {
+            p.add(HLine::new("100 %", 100.0).color(style::GRID));
+            for (k, v) in vehicles.iter().enumerate() {
+                let pts: Vec<[f64; 2]> = g
+                    .points
+                    .iter()
+                    .filter(|x| x.2 == *v)
+                    .map(|x| [x.0, x.1])
+                    .collect();
+                p.points(
+                    Points::new(*v, pts)
+                        .radius(3.5)
+                        .color(VEHICLE_COLOURS[k % VEHICLE_COLOURS.len()]),
+                );
+            }
+            if let Some(l) = g.drift_line {
+                p.line(Line::new("drift", l.to_vec()).color(style::INK).width(2.0));
+            }
+            for l in &g.step_lines {
+                p.line(Line::new("step", l.to_vec()).color(style::INK).width(2.0));
+            }
+        });
+}
+
+pub(super) fn gauges_ui(ui: &mut Ui, a: &AuditView, out: &mut Vec<Action>) {
+    ui.label(
+        RichText::new(
+            "(gained + drawn) / billed over time at each tank, vehicle effects removed: a linear drift \
+             or a step of the gauge's span (a bad recalibration). Click a tank to plot its fills.",
+        )
+        .color(style::MUTED),
+    );
+    egui::ScrollArea::vertical().show(ui, |ui| {
+        if let Some(g) = a.gauge_open.and_then(|i| a.gauges.get(i)) {
+            gauge_plot(ui, g);
+            ui.add_space(8.0);
+        }
+        egui::Grid::new("gauges")
+            .striped(true)
+            .num_columns(6)
+            .show(ui, |ui| {
+                for h in [
+                    "Tank",
+                    "Status",
+                    "Fills",
+                    "Drift (% of span/year)",
+                    "Best step (%, from)",
+                    "p after Holm",
+                ] {
+                    ui.label(RichText::new(h).color(style::MUTED));
+                }
+                ui.end_row();
+                for (i, g) in a.gauges.iter().enumerate() {
+                    let open = a.gauge_open == Some(i);
+                    if ui
+                        .selectable_label(open, &g.tank)
+                        .on_hover_text("Plot this gauge's fills")
+                        .clicked()
+                    {
+                        out.push(Action::SelectGauge(if open { None } else { Some(i) }));
+                    }
+                    let ink = if g.flagged { style::ERROR } else { style::INK };
+                    ui.label(RichText::new(&g.status).color(ink).strong());
+                    ui.label(g.fills.to_string());
+                    ui.label(g.drift.map_or("—".into(), |d| fmt::num(d, 2)));
+                    ui.label(g.step.map_or("—".into(), |(s, at)| {
+                        format!("{} from {}", fmt::num(s, 2), fmt::date(at))
+                    }));
+                    ui.label(g.p_adjusted.map_or("—".into(), p_text));
+                    ui.end_row();
+                }
+            });
+    });
+}
+
+pub(super) fn findings_ui(ui: &mut Ui, a: &AuditView, out: &mut Vec<Action>) {
+    if a.findings.is_empty() {
+        ui.label(RichText::new("No gains or losses beyond use between fills.").color(style::MUTED));
+        return;
+    }
+    egui::ScrollArea::vertical().show(ui, |ui| {
+        for f in &a.findings {
+            ui.horizontal(|ui| {
+                ui.label(RichText::new(&f.tank).strong());
+                ui.label(RichText::new(&f.kind).color(style::CAUTION));
+                ui.label(format!(
+                    "{} to {}",
+                    fmt::date_time(f.from_ms),
+                    fmt::date_time(f.to_ms)
+                ));
+                if let Some(id) = f.tank_id
+                    && ui.small_button("Trend").clicked()
+                {
+                    out.push(Action::SelectTank(id));
+                    out.push(Action::ShowTab(crate::view::TankTab::Trend));
+                }
+            });
+            ui.label(RichText::new(&f.text).small());
+            ui.separator();
+        }
+    });
+}
