@@ -117,7 +117,6 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
     if opts.type_a {
         crate::precision::refine(&mut tanks, opts);
     }
-    let tank_names: Vec<String> = tanks.iter().map(|t| t.tank.clone()).collect();
     let mut vehicle_names: Vec<(String, String)> = tanks
         .iter()
         .flat_map(|t| {
@@ -311,7 +310,6 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
             latest: t.latest,
         });
     }
-    let _ = tank_names;
     FleetAudit {
         fills,
         gauges,

@@ -15,11 +15,12 @@
 //!      uncertainty and a [`Verdict`] with a one-sentence explanation;
 //!    - [`Finding`]s between fills (gains no ticket explains, losses beyond use), the use rate and a
 //!      forecast of the next fill.
-//! 2. [`audit_fleet`] takes every tank's audit and adds the fleet statistics: gauge drift per tank
-//!    ([`GaugeFinding`], a weighted least-squares slope t-test on the fills' ratios with Holm's
-//!    correction across tanks) and vehicle bias ([`VehicleFinding`], a one-sample t-test of each
-//!    vehicle's tank-adjusted ratios, tank effects by Tukey's median polish, Holm's correction across
-//!    vehicles, gauges found drifting left out).
+//! 2. [`audit_fleet`] takes every tank's audit and adds the fleet statistics: the balances' precision
+//!    from their own scatter (Type A), gauge faults per tank ([`GaugeFinding`]: a drift or a step of
+//!    the fills' ratios, robust fits, Holm's correction across tanks), every fill judged again against
+//!    its gauge's scale fitted from the tank's other fills, and vehicle bias ([`VehicleFinding`]: each
+//!    vehicle's fills against the level the other vehicles show at the same tanks, and its count of
+//!    short verdicts; Holm's correction across vehicles; tanks with a gauge fault left out).
 //!
 //! ```
 //! use audit::{AuditOptions, DeliveryInput, ReadingInput, TankInput, Verdict, audit_fleet, audit_tank};
