@@ -212,9 +212,13 @@ impl Core {
                 );
                 self.fleet_audit = Some(summary.audit);
                 build::fleet_rows(&mut self.view.fleet);
-                // the selected tank's open findings come from the fleet audit
-                if let Some(id) = self.selected() {
-                    self.rebuild_tank(id);
+                // the open tank page's findings, verdicts and marks come from the fleet audit; its
+                // readings need no new evaluation
+                let units = self.view.units;
+                if let (Some(tv), Some(fa)) = (self.view.tank.as_mut(), self.fleet_audit.as_deref())
+                    && let Err(e) = build::apply_fleet_audit(tv, &self.store, fa, units)
+                {
+                    self.view.error = Some(e.to_string());
                 }
             }
             Err(AppError::Eval(evaluate::EvalError::Cancelled)) => {}

@@ -22,7 +22,7 @@ pub use form_fill::{
 pub use forms::{SiteSettings, check_delivery, check_reading, check_setup, split_value_unit};
 pub use history::history;
 pub use import_page::{PREVIEW_ROWS, import_preview, import_sources, pick_csv_file};
-pub use tank_page::{tank_view, vessel};
+pub use tank_page::{apply_fleet_audit, tank_view, vessel};
 pub use trend::{quantity_of, quantity_unit, trend};
 
 use crate::fmt::{self, CUBIC_FEET_PER_M3, UnitSystem};

@@ -26,6 +26,21 @@ pub fn vessel(spec: &TankSpec) -> Option<VesselView> {
     })
 }
 
+/// A tank's findings between fills: from, to (ms) and what.
+fn spans_of(findings: &[audit::Finding], tank: &str) -> Vec<(i64, i64, String)> {
+    findings
+        .iter()
+        .filter(|f| f.tank == tank)
+        .map(|f| {
+            let what = match f.kind {
+                audit::FindingKind::UnexplainedGain => "gain no ticket explains",
+                audit::FindingKind::LossBeyondUse => "loss beyond use",
+            };
+            (f.from_ms, f.to_ms, what.to_owned())
+        })
+        .collect()
+}
+
 /// The whole tank page: every reading evaluated with the liquid's thermal history (the bridge's
 /// audit of this tank), deliveries, Now figures and the trend. Open findings come from the fleet audit
 /// when there is one (the same the fleet list shows), else from this tank's own audit.
@@ -104,17 +119,7 @@ pub fn tank_view(
         (None, Ok(h)) => &h.findings,
         (None, Err(_)) => &[],
     };
-    let finding_spans = all_findings
-        .iter()
-        .filter(|f| f.tank == s.name)
-        .map(|f| {
-            let what = match f.kind {
-                audit::FindingKind::UnexplainedGain => "gain no ticket explains",
-                audit::FindingKind::LossBeyondUse => "loss beyond use",
-            };
-            (f.from_ms, f.to_ms, what.to_owned())
-        })
-        .collect();
+    let finding_spans = spans_of(all_findings, &s.name);
     let delivery_rows: Vec<DeliveryRow> = deliveries
         .iter()
         .rev()
@@ -274,4 +279,40 @@ fn now_view(
     };
     now.latest = Some(latest.clone());
     now
+}
+
+/// Bring an open tank page up to a new fleet audit without evaluating its readings again: its open
+/// findings and attention marks, each delivery's verdict, the findings' periods and the trend's marks.
+pub fn apply_fleet_audit(
+    tv: &mut TankView,
+    repo: &dyn Repository,
+    fa: &audit::FleetAudit,
+    units: UnitSystem,
+) -> Result<(), StoreError> {
+    let t = repo.tank(store::TankId(tv.id))?;
+    // rows are newest first
+    let latest_ms = tv.readings.first().map_or(0, |r| r.time_ms);
+    let findings = evaluate::open_findings(&fa.fills, &fa.findings, &tv.name, latest_ms);
+    tv.attention = attention_of(
+        &t,
+        tv.readings.first().map(|r| (r.time_ms, &r.contents)),
+        &findings,
+        fmt::now_ms(),
+    );
+    let by_ticket: std::collections::HashMap<&str, &audit::Balance> = fa
+        .fills
+        .iter()
+        .filter(|b| b.tank == tv.name)
+        .map(|b| (b.ticket.as_str(), b))
+        .collect();
+    for d in &mut tv.deliveries {
+        d.verdict = by_ticket
+            .get(d.ticket.as_str())
+            .map(|b| (super::verdict_word(b.verdict), b.residual_percent));
+    }
+    tv.finding_spans = spans_of(&fa.findings, &tv.name);
+    let period = tv.trend.period_days;
+    tv.trend = trend(tv, units, tv.trend.quantity);
+    tv.trend.period_days = period;
+    Ok(())
 }

@@ -58,8 +58,8 @@ pub fn full_dp_inh2o(s: &Store, tank: store::TankId, barg: f64) -> f64 {
     full.reading_pa / units::INCH_WATER_CONVENTIONAL_PA
 }
 
-/// Add `days` daily readings ending `end_ms` (the DP pattern shifted by `phase` days), and a delivery at
-/// each refill.
+/// Add `days` daily readings ending `end_ms` (the DP pattern shifted by `phase` days, counted from the
+/// first reading), and a delivery at each refill.
 pub fn add_history(
     s: &mut Store,
     tank: store::TankId,
@@ -125,7 +125,9 @@ pub fn add_history_at(
     let mut readings = Vec::with_capacity(days as usize);
     for d in 0..days {
         let ms = end_ms - (days - 1 - d) * DAY_MS;
-        let day = ms / DAY_MS + phase;
+        // the pattern's day counts from the first reading, not the calendar: the fixture is the same
+        // whatever day the tests run
+        let day = d + phase;
         let time = store::Stamp::from_ms(ms).text;
         let dp = format!("{:.1}", full * fraction_on_day(day));
         let wave = (day as f64 * std::f64::consts::TAU / 47.0).sin();
