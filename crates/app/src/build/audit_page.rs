@@ -9,6 +9,14 @@ use audit::{Balance, FindingKind, FleetAudit, GaugeStatus, VehicleStatus, Verdic
 use crate::fmt::{self, UnitSystem};
 use crate::view::*;
 
+/// The window's words for a finding between fills.
+pub fn finding_words(k: FindingKind) -> &'static str {
+    match k {
+        FindingKind::UnexplainedGain => "gain no ticket explains",
+        FindingKind::LossBeyondUse => "loss beyond use",
+    }
+}
+
 /// The window's word for a verdict.
 pub fn verdict_word(v: Verdict) -> VerdictWord {
     match v {
@@ -245,11 +253,7 @@ pub fn audit_view(
         .map(|f| FindingLine {
             tank: f.tank.clone(),
             tank_id: site_of.get(f.tank.as_str()).map(|x| x.1),
-            kind: match f.kind {
-                FindingKind::UnexplainedGain => "gain no ticket explains",
-                FindingKind::LossBeyondUse => "loss beyond use",
-            }
-            .into(),
+            kind: finding_words(f.kind).into(),
             from_ms: f.from_ms,
             to_ms: f.to_ms,
             text: f.explanation.clone(),

@@ -31,13 +31,7 @@ fn spans_of(findings: &[audit::Finding], tank: &str) -> Vec<(i64, i64, String)> 
     findings
         .iter()
         .filter(|f| f.tank == tank)
-        .map(|f| {
-            let what = match f.kind {
-                audit::FindingKind::UnexplainedGain => "gain no ticket explains",
-                audit::FindingKind::LossBeyondUse => "loss beyond use",
-            };
-            (f.from_ms, f.to_ms, what.to_owned())
-        })
+        .map(|f| (f.from_ms, f.to_ms, super::finding_words(f.kind).to_owned()))
         .collect()
 }
 
