@@ -5,7 +5,7 @@ mod commands;
 
 use anyhow::{Context, Result};
 use clap::{Parser, Subcommand};
-use commands::{audit, contents, demo, fluids, history, io};
+use commands::{audit, contents, demo, fluids, history, io, report};
 use std::path::PathBuf;
 use std::process::ExitCode;
 use store::Store;
@@ -61,6 +61,15 @@ enum Command {
         Also gains and leaks between fills, use rates and the next fill."
     )]
     Audit(audit::AuditArgs),
+    /// Write a report for a carrier or a customer: a fill, a vehicle, a period stock statement
+    #[command(
+        subcommand,
+        long_about = "Write a self-contained document (HTML with inline charts and style, nothing fetched; or CSV \
+        for a statement's table) from the same fleet audit `cryoledger audit` prints, so every figure in it \
+        equals the audit's. Each names the database, its schema version, the history's chain head and the \
+        records it rests on with their revision counts."
+    )]
+    Report(report::ReportCommand),
     /// Write the fictional demo fleet into a database (default: your data directory's)
     Demo(demo::DemoArgs),
     /// Check the history: name every record changed, added or removed outside cryoledger
@@ -100,6 +109,7 @@ fn run(cli: Cli) -> Result<ExitCode> {
         Some(Command::State(a)) => fluids::state(a),
         Some(Command::Contents(a)) => contents::run(*a),
         Some(Command::Audit(a)) => audit::run(a),
+        Some(Command::Report(a)) => report::run(a),
         Some(Command::Demo(a)) => demo::run(a, default_db_path),
         Some(Command::Verify(a)) => history::verify(a),
         Some(Command::Backup(a)) => history::backup(a),

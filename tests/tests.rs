@@ -44,3 +44,7 @@ mod paths;
 /// `verify` and `backup`: the hash-linked history, a consistent copy, read-only files refused.
 #[path = "e2e/history.rs"]
 mod history;
+
+/// `report`: self-contained HTML whose figures equal the audit's JSON; statements as HTML and CSV.
+#[path = "e2e/reports.rs"]
+mod reports;

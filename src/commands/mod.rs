@@ -6,6 +6,7 @@ pub mod demo;
 pub mod fluids;
 pub mod history;
 pub mod io;
+pub mod report;
 
 use std::io::Write;
 use std::path::{Path, PathBuf};

@@ -13,8 +13,9 @@ use store::{Repository, Store, TankId};
 
 mod import;
 mod intent;
+mod report;
 use import::ImportJob;
-pub use intent::Action;
+pub use intent::{Action, ReportRequest};
 
 /// The fleet summary running on its background thread.
 struct FleetJob {
@@ -436,6 +437,7 @@ impl Core {
                     self.handle(Action::SetImportPath(k, p));
                 }
             }
+            Action::SaveReport { what, to } => self.save_report(&what, to),
             Action::CheckImport => self.run_import(true),
             Action::RunImport => self.run_import(false),
             Action::ShowAuditSection(s) => {

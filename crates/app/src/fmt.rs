@@ -149,6 +149,15 @@ pub const CUBIC_FEET_PER_M3: f64 = 1.0 / CUBIC_FOOT_M3;
 /// One standard atmosphere, Pa (for labels that explain gauge readings).
 pub const ATMOSPHERE_PA: f64 = STANDARD_ATMOSPHERE_PA;
 
+/// How each kind of figure is rounded: stated once, in the report crate, and used by the reports,
+/// their CSV and the window alike.
+pub use report::rounding::Figure;
+
+/// A figure rounded as its kind says (digits grouped as [`num`] groups them).
+pub fn fig(kind: Figure, v: f64) -> String {
+    num(v, kind.decimals())
+}
+
 /// A number with thousands separators (thin spaces) and `decimals` decimals.
 pub fn num(v: f64, decimals: usize) -> String {
     if !v.is_finite() {

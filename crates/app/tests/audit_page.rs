@@ -7,7 +7,7 @@
 #![allow(clippy::expect_used)] // helpers of tests: a failure to set up is a test failure
 
 use app::CryoApp;
-use app::action::Action;
+use app::action::{Action, ReportRequest};
 use app::egui;
 use app::egui::Role;
 use app::view::{AuditSection, Page, VerdictWord};
@@ -396,4 +396,109 @@ fn an_import_into_a_database_file_runs_in_the_background() {
     );
     assert_eq!(app.repository().tanks().expect("tanks").len(), 16);
     assert_eq!(v.audit.rows.len(), 191);
+}
+
+/// "Save fill report…", each vehicle's "Report…" and the tank page's "Save stock statement…" are
+/// there; the reports they save are the command line's documents (the same code), written where
+/// asked, and the page says where.
+#[test]
+fn reports_are_saved_from_the_balance_the_vehicles_and_the_tank_page() {
+    let dir = tempfile::tempdir().expect("temp dir");
+    let mut h = harness();
+    h.get_by_label("Audit").click();
+    h.run();
+    let (ticket, vehicle) = {
+        let fa = h.state().fleet_audit().expect("audit");
+        let b = fa
+            .fills
+            .iter()
+            .find(|b| b.verdict == audit::Verdict::Short)
+            .expect("a short fill");
+        (b.ticket.clone(), b.vehicle.clone())
+    };
+    // the balance's detail offers its report
+    let row = h
+        .state()
+        .view()
+        .audit
+        .rows
+        .iter()
+        .position(|r| r.ticket == ticket)
+        .expect("row");
+    h.state_mut().push(Action::SelectBalance(Some(row)));
+    h.run();
+    assert!(h.query_by_label("Save fill report…").is_some());
+    let fill = dir.path().join("fill.html");
+    h.state_mut().push(Action::SaveReport {
+        what: ReportRequest::Fill(ticket.clone()),
+        to: Some(fill.clone()),
+    });
+    h.run();
+    let text = std::fs::read_to_string(&fill).expect("fill report");
+    assert!(text.contains(&format!("Fill report: ticket {ticket}")));
+    // the balance's residual as the report prints it: the audit's own figure
+    let b = h
+        .state()
+        .fleet_audit()
+        .and_then(|fa| fa.fills.iter().find(|b| b.ticket == ticket).cloned())
+        .expect("balance");
+    assert!(text.contains(&format!(
+        "data-field=\"residual_kg\" data-value=\"{:e}\"",
+        b.residual_kg
+    )));
+    let notice = h.state().view().notice.clone().unwrap_or_default();
+    assert!(notice.contains("fill.html"), "{notice}");
+
+    // each vehicle has its report button
+    h.get_by_label("Vehicles").click();
+    h.run();
+    let n = h.state().view().audit.vehicles.len();
+    assert_eq!(h.query_all_by_label("Report…").count(), n);
+    let vf = dir.path().join("vehicle.html");
+    h.state_mut().push(Action::SaveReport {
+        what: ReportRequest::Vehicle(vehicle.clone()),
+        to: Some(vf.clone()),
+    });
+    h.run();
+    assert!(
+        std::fs::read_to_string(&vf)
+            .expect("vehicle report")
+            .contains(&format!("Vehicle report: {vehicle}"))
+    );
+
+    // the tank page saves the tank's statement, as CSV when the name says so
+    let tank = h
+        .state()
+        .repository()
+        .tank_by_name(&b.tank)
+        .expect("tank")
+        .id
+        .0;
+    h.state_mut().push(Action::SelectTank(tank));
+    h.run();
+    assert!(h.query_by_label("Save stock statement…").is_some());
+    let sf = dir.path().join("statement.csv");
+    h.state_mut().push(Action::SaveReport {
+        what: ReportRequest::Statement(tank),
+        to: Some(sf.clone()),
+    });
+    h.run();
+    let csv = std::fs::read_to_string(&sf).expect("statement");
+    assert!(csv.starts_with("period,opened,closed,opening_kg"), "{csv}");
+    assert!(
+        h.state().view().error.is_none(),
+        "{:?}",
+        h.state().view().error
+    );
+
+    // a folder that is not there: the error names the file, nothing is written
+    let bad = dir.path().join("no-such-folder").join("x.html");
+    h.state_mut().push(Action::SaveReport {
+        what: ReportRequest::Fill(ticket),
+        to: Some(bad.clone()),
+    });
+    h.run();
+    let err = h.state().view().error.clone().unwrap_or_default();
+    assert!(err.contains("x.html"), "{err}");
+    assert!(!bad.exists());
 }

@@ -87,6 +87,14 @@ pub enum Action {
         /// When the reading was taken, ms.
         time_ms: i64,
     },
+    /// Save a report (the same document as `cryoledger report`); the desktop's save dialog asks
+    /// where unless `to` names the file.
+    SaveReport {
+        /// Which report.
+        what: ReportRequest,
+        /// The file to write (None: ask with the save dialog).
+        to: Option<std::path::PathBuf>,
+    },
     /// Open a tank's deliveries from the audit page, with this ticket's delivery in the form.
     OpenFill {
         /// The tank.
@@ -94,4 +102,16 @@ pub enum Action {
         /// The ticket.
         ticket: String,
     },
+}
+
+/// Which report to save.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub enum ReportRequest {
+    /// One fill, by ticket.
+    Fill(String),
+    /// One vehicle, by name (all its fills).
+    Vehicle(String),
+    /// A tank's stock statement by month over the twelve months before this one and this month so
+    /// far (HTML, or CSV when the file's name ends in .csv).
+    Statement(i64),
 }

@@ -2,8 +2,9 @@
 //! against the legal tolerance, each gauge's drift or step, and the gains and losses between fills. The
 //! audit runs in the background; a bar shows how far it is and a button stops it.
 
-use crate::action::Action;
+use crate::action::{Action, ReportRequest};
 use crate::fmt;
+use crate::fmt::Figure;
 use crate::panels::widgets::{self, Column, LogRow};
 use crate::style;
 use crate::style::verdict_colour;
@@ -71,7 +72,7 @@ pub fn audit_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
     }
     match a.section {
         AuditSection::Fills => fills_ui(ui, view, out),
-        AuditSection::Vehicles => sections::vehicles_ui(ui, a),
+        AuditSection::Vehicles => sections::vehicles_ui(ui, a, out),
         AuditSection::Gauges => sections::gauges_ui(ui, a, out),
         AuditSection::Findings => sections::findings_ui(ui, a, out),
     }
@@ -240,9 +241,12 @@ fn fills_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
                     r.tank.clone(),
                     r.vehicle.clone(),
                     r.verdict.word().to_owned(),
-                    fmt::num(u.mass(r.billed_kg), 0),
-                    fmt::num(r.residual_percent, 2),
-                    fmt::num(100.0 * r.limit_kg / r.billed_kg.abs().max(1e-9), 2),
+                    fmt::fig(Figure::Mass, u.mass(r.billed_kg)),
+                    fmt::fig(Figure::Percent, r.residual_percent),
+                    fmt::fig(
+                        Figure::Percent,
+                        100.0 * r.limit_kg / r.billed_kg.abs().max(1e-9),
+                    ),
                     r.site.clone(),
                 ],
                 colour: verdict_colour(r.verdict),
@@ -320,10 +324,10 @@ fn residual_chart(ui: &mut Ui, r: &BalanceRow, k: f64, mass: impl Fn(f64) -> f64
     );
     resp.on_hover_text(format!(
         "residual {} {unit} ± {} (k = {k:.0}); limit ±{} {unit} (shaded); materiality ±{} {unit} (purple)",
-        fmt::num(mass(r.residual_kg), 0),
-        fmt::num(mass(k * r.sigma_kg), 0),
-        fmt::num(mass(r.limit_kg), 0),
-        fmt::num(mass(r.materiality_kg), 0),
+        fmt::fig(Figure::Mass, mass(r.residual_kg)),
+        fmt::fig(Figure::Mass, mass(k * r.sigma_kg)),
+        fmt::fig(Figure::Mass, mass(r.limit_kg)),
+        fmt::fig(Figure::Mass, mass(r.materiality_kg)),
     ));
 }
 
@@ -357,7 +361,7 @@ fn budget_ui(ui: &mut Ui, r: &BalanceRow, mass: impl Fn(f64) -> f64, unit: &str)
             ui.label(
                 RichText::new(format!(
                     "{} {unit} ({} %)",
-                    fmt::num(mass(b.kg), 0),
+                    fmt::fig(Figure::Mass, mass(b.kg)),
                     fmt::num(share, 0)
                 ))
                 .small(),
@@ -373,14 +377,14 @@ fn bracket_line(ui: &mut Ui, label: &str, b: &Option<BracketView>, view: &ViewSt
             ui.label(RichText::new(format!(
                 "{label}: {} — {} {} ({} % full); liquid at {} {}, saturation at the tank pressure {} {} ({} {} subcooled)",
                 fmt::date_time(b.time_ms),
-                fmt::num(u.mass(b.mass_kg), 0),
+                fmt::fig(Figure::Mass, u.mass(b.mass_kg)),
                 u.mass_unit(),
-                fmt::num(100.0 * b.fill, 1),
-                fmt::num(u.temperature(b.liquid_temperature_k), 2),
+                fmt::fig(Figure::FillPercent, 100.0 * b.fill),
+                fmt::fig(Figure::Kelvin, u.temperature(b.liquid_temperature_k)),
                 u.temperature_unit(),
-                fmt::num(u.temperature(b.saturation_temperature_k), 2),
+                fmt::fig(Figure::Kelvin, u.temperature(b.saturation_temperature_k)),
                 u.temperature_unit(),
-                fmt::num(u.temperature_difference(b.saturation_temperature_k - b.liquid_temperature_k), 2),
+                fmt::fig(Figure::Kelvin, u.temperature_difference(b.saturation_temperature_k - b.liquid_temperature_k)),
                 u.temperature_difference_unit(),
             )).small());
         }
@@ -422,6 +426,18 @@ fn detail_ui(ui: &mut Ui, view: &ViewState, r: &BalanceRow, out: &mut Vec<Action
                 ticket: r.ticket.clone(),
             });
         }
+        if ui
+            .button("Save fill report…")
+            .on_hover_text(
+                "A self-contained HTML document for the carrier: this balance, its budget, the readings, the vehicle's fills, the method and the records it rests on (as `cryoledger report fill`).",
+            )
+            .clicked()
+        {
+            out.push(Action::SaveReport {
+                what: ReportRequest::Fill(r.ticket.clone()),
+                to: None,
+            });
+        }
         if ui.small_button("Close").clicked() {
             out.push(Action::SelectBalance(None));
         }
@@ -432,7 +448,7 @@ fn detail_ui(ui: &mut Ui, view: &ViewState, r: &BalanceRow, out: &mut Vec<Action
         let line = |ui: &mut Ui, what: &str, kg: f64| {
             ui.label(what);
             ui.with_layout(egui::Layout::right_to_left(egui::Align::Center), |ui| {
-                ui.label(format!("{} {unit}", fmt::num(mass(kg), 0)));
+                ui.label(format!("{} {unit}", fmt::fig(Figure::Mass, mass(kg))));
             });
             ui.end_row();
         };

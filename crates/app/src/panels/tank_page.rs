@@ -42,6 +42,18 @@ pub fn tank_page_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
             if ui.button("Edit tank setup").clicked() {
                 out.push(Action::OpenSetup(Some(t.id)));
             }
+            if ui
+                .button("Save stock statement…")
+                .on_hover_text(
+                    "This tank's monthly stock statement over the last twelve months and this one: in, out, losses found, and the running sum of fill residuals against its band (HTML, or CSV for the table; as `cryoledger report statement`).",
+                )
+                .clicked()
+            {
+                out.push(Action::SaveReport {
+                    what: crate::action::ReportRequest::Statement(t.id),
+                    to: None,
+                });
+            }
         });
     });
     ui.label(RichText::new(&t.summary).color(style::MUTED));

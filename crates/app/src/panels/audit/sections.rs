@@ -2,12 +2,13 @@
 
 use crate::action::Action;
 use crate::fmt;
+use crate::fmt::Figure;
 use crate::style;
 use crate::view::AuditView;
 use egui::{RichText, Stroke, Ui, vec2};
 
 /// Each vehicle's bias with its 95 % interval against the legal tolerance (shaded), then its figures.
-pub(super) fn vehicles_ui(ui: &mut Ui, a: &AuditView) {
+pub(super) fn vehicles_ui(ui: &mut Ui, a: &AuditView, out: &mut Vec<Action>) {
     ui.label(
         RichText::new(
             "Each vehicle's fills against the level the other vehicles show at the same tanks. Bias and \
@@ -25,7 +26,7 @@ pub(super) fn vehicles_ui(ui: &mut Ui, a: &AuditView) {
     egui::ScrollArea::vertical().show(ui, |ui| {
         egui::Grid::new("vehicles")
             .striped(true)
-            .num_columns(7)
+            .num_columns(8)
             .show(ui, |ui| {
                 for h in [
                     "Vehicle",
@@ -34,6 +35,7 @@ pub(super) fn vehicles_ui(ui: &mut Ui, a: &AuditView) {
                     "Fills",
                     "Short fills",
                     "Bias (%)",
+                    "",
                     "",
                 ] {
                     ui.label(RichText::new(h).color(style::MUTED));
@@ -49,9 +51,9 @@ pub(super) fn vehicles_ui(ui: &mut Ui, a: &AuditView) {
                     ui.label(match v.bias {
                         Some((b, l, h)) => format!(
                             "{} [{}, {}]",
-                            fmt::num(b, 2),
-                            fmt::num(l, 2),
-                            fmt::num(h, 2)
+                            fmt::fig(Figure::Percent, b),
+                            fmt::fig(Figure::Percent, l),
+                            fmt::fig(Figure::Percent, h)
                         ),
                         None => "—".into(),
                     });
@@ -82,6 +84,19 @@ pub(super) fn vehicles_ui(ui: &mut Ui, a: &AuditView) {
                         fmt::num(v.tolerance_percent, 1),
                         v.p_adjusted.map_or("—".into(), p_text)
                     ));
+                    if ui
+                        .small_button("Report…")
+                        .on_hover_text(format!(
+                            "Save vehicle {}'s report: its fills across tanks with its bias, interval and the legal tolerance (as `cryoledger report vehicle`)",
+                            v.vehicle
+                        ))
+                        .clicked()
+                    {
+                        out.push(Action::SaveReport {
+                            what: crate::action::ReportRequest::Vehicle(v.vehicle.clone()),
+                            to: None,
+                        });
+                    }
                     ui.end_row();
                 }
             });
