@@ -36,15 +36,21 @@ pub fn write_demo(db: &Path) -> Result<ImportSummary> {
     write_demo_dated(db, true)
 }
 
-/// The demo's CSV texts with every time moved by whole days so that the latest reading falls on
-/// `today` (times of day kept; `today` as days since the epoch, UTC).
-pub fn moved_to(today_days: i64) -> Result<(String, String)> {
+/// The demo's CSV texts with every time moved by whole days so that the latest reading falls on the
+/// day of `now_ms`, or on the day before when its time of day is still to come (times of day kept; UTC):
+/// nothing in the demo lies in the future.
+pub fn moved_to(now_ms: i64) -> Result<(String, String)> {
     let day_ms = 86_400_000_i64;
-    let latest = read_times(READINGS_CSV, &["time"])?
+    let mut times = read_times(READINGS_CSV, &["time"])?;
+    times.extend(read_times(DELIVERIES_CSV, &["start", "end"])?);
+    let latest = times
         .into_iter()
         .max()
         .context("the demo has no readings")?;
-    let shift_days = today_days - latest.div_euclid(day_ms);
+    let mut shift_days = now_ms.div_euclid(day_ms) - latest.div_euclid(day_ms);
+    while latest + shift_days * day_ms > now_ms {
+        shift_days -= 1;
+    }
     Ok((
         shift_times(READINGS_CSV, &["time"], shift_days)?,
         shift_times(DELIVERIES_CSV, &["start", "end"], shift_days)?,
@@ -120,8 +126,7 @@ pub fn write_demo_dated(db: &Path, move_dates: bool) -> Result<ImportSummary> {
             ..ImportOptions::default()
         };
         let (readings, deliveries) = if move_dates {
-            let today = chrono::Utc::now().timestamp_millis().div_euclid(86_400_000);
-            moved_to(today)?
+            moved_to(chrono::Utc::now().timestamp_millis())?
         } else {
             (READINGS_CSV.to_owned(), DELIVERIES_CSV.to_owned())
         };

@@ -16,8 +16,8 @@ fn demo_writes_once() {
     assert_eq!(dump(&db), before);
 }
 
-/// The latest reading of an export: its date (the time column's first 10 characters).
-fn latest_reading_day(db: &std::path::Path) -> String {
+/// The latest reading of an export: its time as written (RFC 3339).
+fn latest_reading(db: &std::path::Path) -> String {
     let out = bin()
         .args(["export", "--what", "readings", "--db"])
         .arg(db)
@@ -33,23 +33,52 @@ fn latest_reading_day(db: &std::path::Path) -> String {
         .position(|h| h == "time")
         .unwrap();
     r.records()
-        .map(|x| x.unwrap()[col][..10].to_owned())
+        .map(|x| {
+            chrono::DateTime::parse_from_rfc3339(&x.unwrap()[col])
+                .unwrap()
+                .to_utc()
+                .to_rfc3339_opts(chrono::SecondsFormat::Secs, true)
+        })
         .max()
         .unwrap()
 }
 
-/// A new user's demo is alive: its dates are moved by whole days so that the latest readings are from
-/// today (UTC); `--keep-dates` keeps the scenario's own (its last reading day is 2026-11-30,
-/// demo-data/readings.csv). The day is read before and after the run, so a run across midnight
-/// cannot fail it.
+/// A new user's demo is alive: its dates are moved by whole days so that the latest reading is from the
+/// last 24 hours and none is in the future (UTC); `--keep-dates` keeps the scenario's own (its last
+/// reading day is 2026-11-30, demo-data/readings.csv). The clock is read before and after the run.
 #[test]
 fn demo_dates_end_today_unless_kept() {
     let dir = tempfile::tempdir().unwrap();
-    let before = chrono::Utc::now().format("%Y-%m-%d").to_string();
+    let before = chrono::Utc::now();
     let db = demo_db(dir.path());
-    let after = chrono::Utc::now().format("%Y-%m-%d").to_string();
-    let day = latest_reading_day(&db);
-    assert!(day == before || day == after, "{day} vs {before}/{after}");
+    let after = chrono::Utc::now();
+    let latest = chrono::DateTime::parse_from_rfc3339(&latest_reading(&db))
+        .unwrap()
+        .to_utc();
+    assert!(latest <= after, "{latest} is after {after}");
+    assert!(
+        latest > before - chrono::Duration::hours(24),
+        "{latest} is more than a day before {before}"
+    );
+    // nor any delivery
+    let out = bin()
+        .args(["export", "--what", "deliveries", "--db"])
+        .arg(&db)
+        .output()
+        .unwrap();
+    expect_success(&out);
+    let text = String::from_utf8(out.stdout).unwrap();
+    let mut r = csv::Reader::from_reader(text.as_bytes());
+    let end = r
+        .headers()
+        .unwrap()
+        .iter()
+        .position(|h| h == "end")
+        .unwrap();
+    for row in r.records() {
+        let t = chrono::DateTime::parse_from_rfc3339(&row.unwrap()[end]).unwrap();
+        assert!(t.to_utc() <= after, "a delivery ends at {t}");
+    }
     let kept = dir.path().join("kept.db");
     let out = bin()
         .args(["demo", "--keep-dates", "--db"])
@@ -57,7 +86,7 @@ fn demo_dates_end_today_unless_kept() {
         .output()
         .unwrap();
     expect_success(&out);
-    assert_eq!(latest_reading_day(&kept), "2026-11-30");
+    assert!(latest_reading(&kept).starts_with("2026-11-30"));
 }
 
 /// The demo's planted faults (demo-data/README.md: vehicle MC-T25 3 % short, gauge of DSF-AR-7
