@@ -550,7 +550,7 @@ impl Core {
                 }
             }
             Action::EditSetupForm(form) => {
-                self.view.setup_form = form;
+                self.view.setup_form = *form;
                 self.recheck_setup();
             }
             Action::SaveTank => self.save_tank(),
@@ -586,20 +586,14 @@ impl Core {
             .ok()
             .and_then(|s| s.into_iter().find(|s| s.name == spec.site));
         let site_result = match existing {
-            None => self
-                .store
-                .add_site(&spec.site, site.elevation_m, site.barometer_kpa)
-                .map(|_| ()),
-            Some(s)
-                if s.elevation_m != site.elevation_m || s.barometer_kpa != site.barometer_kpa =>
-            {
+            None => self.store.add_site(&spec.site, &site).map(|_| ()),
+            Some(s) if store::SiteSettings::of(&s) != site => {
                 let why = if reason.is_empty() {
                     "site settings entered in Tank setup".to_owned()
                 } else {
                     reason.clone()
                 };
-                self.store
-                    .edit_site(s.id, site.elevation_m, site.barometer_kpa, &why)
+                self.store.edit_site(s.id, &site, &why)
             }
             Some(_) => Ok(()),
         };

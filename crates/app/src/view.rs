@@ -465,6 +465,8 @@ pub struct SetupForm {
     pub elevation_m: String,
     /// Site barometer, kPa absolute (optional).
     pub barometer_kpa: String,
+    /// Site time zone, an IANA name (optional; times are shown and entered in it).
+    pub time_zone: String,
     /// Tank name.
     pub tank: String,
     /// Fluid.

@@ -346,7 +346,7 @@ pub(crate) const READING_REQUIRED: usize = 6;
 pub(crate) const DELIVERY_REQUIRED: usize = 8;
 
 /// Header of the tanks CSV as exported.
-pub const TANK_HEADER: [&str; 20] = [
+pub const TANK_HEADER: [&str; 21] = [
     "site",
     "tank",
     "fluid",
@@ -357,6 +357,7 @@ pub const TANK_HEADER: [&str; 20] = [
     "line_temperature_c",
     "elevation_m",
     "barometer_kpa",
+    "time_zone",
     "crown_ratio",
     "knuckle_ratio",
     "dp_unit",

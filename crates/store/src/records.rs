@@ -83,13 +83,58 @@ pub struct Site {
     pub elevation_m: Option<f64>,
     /// Entered barometer, kPa absolute (wins over the elevation).
     pub barometer_kpa: Option<f64>,
+    /// The site's time zone, an IANA name (None: times shown in UTC).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub time_zone: Option<String>,
+}
+
+/// What a site is set with: its barometer (elevation or an entered value) and its clock.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct SiteSettings {
+    /// Elevation above sea level, m.
+    pub elevation_m: Option<f64>,
+    /// Entered barometer, kPa absolute.
+    pub barometer_kpa: Option<f64>,
+    /// Time zone, an IANA name such as `Europe/London`.
+    pub time_zone: Option<String>,
+}
+
+impl SiteSettings {
+    /// Check the settings: a time zone must be an IANA name; an empty one is none.
+    pub fn check(&self) -> Result<(), crate::check::FieldError> {
+        if let Some(z) = &self.time_zone {
+            z.parse::<units::Zone>()
+                .map_err(|m| crate::check::FieldError::new("time_zone", m))?;
+        }
+        Ok(())
+    }
+
+    /// The settings of a stored site.
+    pub fn of(s: &Site) -> Self {
+        SiteSettings {
+            elevation_m: s.elevation_m,
+            barometer_kpa: s.barometer_kpa,
+            time_zone: s.time_zone.clone(),
+        }
+    }
 }
 
 impl Site {
+    /// The site's time zone (UTC when none is set or the stored name is unknown).
+    pub fn zone(&self) -> units::Zone {
+        zone_of(self.time_zone.as_deref())
+    }
+
     /// The barometer to use for gauge pressures at this site, Pa absolute.
     pub fn barometer_pa(&self) -> f64 {
         barometer_pa(self.barometer_kpa.map(|k| k * 1e3), self.elevation_m)
     }
+}
+
+/// A stored time-zone name as a zone (UTC when none, or when the name is not known).
+pub fn zone_of(name: Option<&str>) -> units::Zone {
+    name.and_then(|n| n.parse().ok())
+        .unwrap_or(units::Zone::UTC)
 }
 
 /// Barometer from an entered value, else the elevation through the ICAO atmosphere, else 1 atm.
@@ -161,6 +206,8 @@ pub struct TankRecord {
     pub site_id: SiteId,
     /// The site's barometer, Pa absolute.
     pub barometer_pa: f64,
+    /// The site's time zone, an IANA name (None: UTC).
+    pub time_zone: Option<String>,
     /// The settings.
     pub spec: TankSpec,
 }

@@ -31,18 +31,12 @@ pub trait Repository {
     /// All live sites, by name.
     fn sites(&self) -> Result<Vec<Site>, StoreError>;
     /// Create a site; its name must be new.
-    fn add_site(
-        &mut self,
-        name: &str,
-        elevation_m: Option<f64>,
-        barometer_kpa: Option<f64>,
-    ) -> Result<SiteId, StoreError>;
-    /// Change a site's barometer settings, keeping the earlier version.
+    fn add_site(&mut self, name: &str, settings: &SiteSettings) -> Result<SiteId, StoreError>;
+    /// Change a site's settings (barometer, time zone), keeping the earlier version.
     fn edit_site(
         &mut self,
         id: SiteId,
-        elevation_m: Option<f64>,
-        barometer_kpa: Option<f64>,
+        settings: &SiteSettings,
         reason: &str,
     ) -> Result<(), StoreError>;
 

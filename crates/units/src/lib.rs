@@ -27,6 +27,7 @@ mod factors;
 mod instant;
 mod parse;
 mod quantity;
+mod zone;
 
 pub use factors::*;
 pub use instant::{
@@ -37,3 +38,4 @@ pub use parse::{
     parse_mass, parse_tank_pressure, parse_temperature,
 };
 pub use quantity::*;
+pub use zone::{LocalTimeError, Repeat, Zone};

@@ -43,7 +43,7 @@ pub enum Action {
     /// Show this many days back from the latest reading on the trend (None: all of it).
     SetTrendPeriod(Option<u32>),
     /// The setup form's text changed (the vessel drawing and full-tank DP follow).
-    EditSetupForm(SetupForm),
+    EditSetupForm(Box<SetupForm>),
     /// Save the setup form: create the site and tank, or edit them with the form's reason.
     SaveTank,
     /// Dismiss the notice or error line.

@@ -12,6 +12,10 @@ pub fn setup_form_for(repo: &dyn Repository, id: i64) -> Result<SetupForm, Store
         site: s.site.clone(),
         elevation_m: o(site.as_ref().and_then(|s| s.elevation_m)),
         barometer_kpa: o(site.as_ref().and_then(|s| s.barometer_kpa)),
+        time_zone: site
+            .as_ref()
+            .and_then(|s| s.time_zone.clone())
+            .unwrap_or_default(),
         tank: s.name.clone(),
         fluid: s.fluid.to_string(),
         orientation: s.orientation.to_string(),

@@ -219,20 +219,15 @@ pub fn check_delivery(
     (check, input.filter(|_| ok))
 }
 
-/// Site settings typed in the setup form.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub struct SiteSettings {
-    /// Elevation, m.
-    pub elevation_m: Option<f64>,
-    /// Barometer, kPa absolute.
-    pub barometer_kpa: Option<f64>,
-}
-
 /// Check the setup form; the preview draws the vessel and the full-tank DP whenever the shape checks.
 pub fn check_setup(
     form: &SetupForm,
     units: UnitSystem,
-) -> (FormCheck, SetupPreview, Option<(TankSpec, SiteSettings)>) {
+) -> (
+    FormCheck,
+    SetupPreview,
+    Option<(TankSpec, store::SiteSettings)>,
+) {
     let mut extra = Vec::new();
     let opt = |field: &str, text: &str, extra: &mut Vec<FieldMessage>| -> Option<f64> {
         let t = text.trim();
@@ -250,9 +245,21 @@ pub fn check_setup(
             }
         }
     };
-    let site = SiteSettings {
+    let zone = form.time_zone.trim();
+    let site = store::SiteSettings {
         elevation_m: opt("elevation_m", &form.elevation_m, &mut extra),
         barometer_kpa: opt("barometer_kpa", &form.barometer_kpa, &mut extra),
+        time_zone: match zone.parse::<units::Zone>() {
+            _ if zone.is_empty() => None,
+            Ok(z) => Some(z.name().to_string()),
+            Err(m) => {
+                extra.push(FieldMessage {
+                    field: "time_zone".into(),
+                    reason: m,
+                });
+                None
+            }
+        },
     };
     if site
         .barometer_kpa

@@ -19,7 +19,7 @@ pub use form_fill::{
     delivery_form_for, new_delivery_form, new_reading_form, new_setup_form, reading_form_for,
     setup_form_for,
 };
-pub use forms::{SiteSettings, check_delivery, check_reading, check_setup, split_value_unit};
+pub use forms::{check_delivery, check_reading, check_setup, split_value_unit};
 pub use history::history;
 pub use import_page::{PREVIEW_ROWS, import_preview, import_sources, pick_csv_file};
 pub use tank_page::{apply_fleet_audit, tank_view, vessel};

@@ -107,10 +107,20 @@ pub fn setup_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
                 ) {
                     set(&mut |n| n.barometer_kpa = v.clone());
                 }
+                if let Some(v) = widgets::text_field(
+                    ui,
+                    "Time zone (IANA name, optional)",
+                    &f.time_zone,
+                    170.0,
+                    "e.g. Europe/London",
+                ) {
+                    set(&mut |n| n.time_zone = v.clone());
+                }
             });
             widgets::messages(ui, check, "site");
             widgets::messages(ui, check, "elevation_m");
             widgets::messages(ui, check, "barometer_kpa");
+            widgets::messages(ui, check, "time_zone");
             section(ui, "Tank and vessel");
             ui.horizontal(|ui| {
                 if let Some(v) = widgets::text_field(ui, "Tank name", &f.tank, 160.0, "unique name")
@@ -239,7 +249,7 @@ pub fn setup_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
                 }
             }
             if let Some(n) = next {
-                out.push(Action::EditSetupForm(n));
+                out.push(Action::EditSetupForm(Box::new(n)));
             }
             ui.add_space(10.0);
             ui.horizontal(|ui| {

@@ -39,6 +39,7 @@ pub(crate) fn tanks(store: &Store, out: &mut dyn Write) -> Result<(), StoreError
             num(s.line_temperature_c),
             opt(site.and_then(|s| s.elevation_m)),
             opt(site.and_then(|s| s.barometer_kpa)),
+            site.and_then(|s| s.time_zone.clone()).unwrap_or_default(),
             opt(s.crown_ratio),
             opt(s.knuckle_ratio),
             s.dp_unit.symbol().to_owned(),

@@ -115,6 +115,7 @@ fn import_tanks(
         c("strapping"),
         c("elevation_m"),
         c("barometer_kpa"),
+        c("time_zone"),
     ];
     let file = t.name.clone();
     each_row(t, sink, |rec, line, sink| {
@@ -154,11 +155,27 @@ fn import_tanks(
         };
         let elevation = site_opt("elevation_m", 18, false);
         let barometer = site_opt("barometer_kpa", 19, true);
+        let zone_text = f(20).trim();
+        let zone = if zone_text.is_empty() {
+            Ok(None)
+        } else {
+            zone_text
+                .parse::<units::Zone>()
+                .map(|z| Some(z.name().to_string()))
+                .map_err(|m| FieldError::new("time_zone", m))
+        };
         let spec = fields.check();
-        let (spec, elevation, barometer) = match (spec, elevation, barometer) {
-            (Ok(s), Ok(e), Ok(b)) => (s, e, b),
-            (s, e, b) => {
-                for err in s.err().into_iter().flatten().chain(e.err()).chain(b.err()) {
+        let (spec, elevation, barometer, zone) = match (spec, elevation, barometer, zone) {
+            (Ok(s), Ok(e), Ok(b), Ok(z)) => (s, e, b, z),
+            (s, e, b, z) => {
+                for err in s
+                    .err()
+                    .into_iter()
+                    .flatten()
+                    .chain(e.err())
+                    .chain(b.err())
+                    .chain(z.err())
+                {
                     sink.push(&file, line, err);
                 }
                 return;
@@ -175,7 +192,12 @@ fn import_tanks(
             );
             return;
         }
-        let site_id = match site_with(conn, chain, &spec.site, elevation, barometer) {
+        let settings = crate::records::SiteSettings {
+            elevation_m: elevation,
+            barometer_kpa: barometer,
+            time_zone: zone.clone(),
+        };
+        let site_id = match site_with(conn, chain, &spec.site, &settings) {
             Ok(id) => id,
             Err(SiteError::Field(e)) => return sink.push(&file, line, e),
             Err(SiteError::Store(e)) => {
@@ -200,6 +222,7 @@ fn import_tanks(
                         id,
                         site_id,
                         barometer_pa,
+                        time_zone: zone,
                         spec,
                     },
                 );

@@ -26,6 +26,10 @@ pub const MIGRATION_FILES: &[(&str, &str)] = &[
         "0002_chain.sql",
         include_str!("../../../../migrations/0002_chain.sql"),
     ),
+    (
+        "0003_site_time_zone.sql",
+        include_str!("../../../../migrations/0003_site_time_zone.sql"),
+    ),
 ];
 
 fn migrations() -> Migrations<'static> {
@@ -118,16 +122,9 @@ fn chain_site(
     action: Action,
 ) -> Result<(), StoreError> {
     let site: Site = conn.query_row(
-        "SELECT id, name, elevation_m, barometer_kpa FROM sites WHERE id = ?1",
+        &format!("SELECT {SITE_COLUMNS} FROM sites WHERE id = ?1"),
         [id.0],
-        |r| {
-            Ok(Site {
-                id: SiteId(r.get(0)?),
-                name: r.get(1)?,
-                elevation_m: r.get(2)?,
-                barometer_kpa: r.get(3)?,
-            })
-        },
+        site_from_row,
     )?;
     chain.append(conn, Kind::Site, id.0, action, |out| {
         chain::canonical_site(out, &site)
@@ -140,7 +137,7 @@ pub(crate) fn site_for(
     chain: &mut ChainWriter,
     name: &str,
 ) -> Result<SiteId, StoreError> {
-    site_with(conn, chain, name, None, None).map_err(|e| match e {
+    site_with(conn, chain, name, &SiteSettings::default()).map_err(|e| match e {
         SiteError::Field(f) => invalid(f),
         SiteError::Store(e) => e,
     })
@@ -152,16 +149,14 @@ pub(crate) enum SiteError {
     Store(StoreError),
 }
 
-/// [`site_for`] with the site's barometer settings (the importer's).
+/// [`site_for`] with the site's settings (the importer's).
 pub(crate) fn site_with(
     conn: &Connection,
     chain: &mut ChainWriter,
     name: &str,
-    elevation_m: Option<f64>,
-    barometer_kpa: Option<f64>,
+    settings: &SiteSettings,
 ) -> Result<SiteId, SiteError> {
-    let (id, created) =
-        site_id_for(conn, name, elevation_m, barometer_kpa).map_err(SiteError::Field)?;
+    let (id, created) = site_id_for(conn, name, settings).map_err(SiteError::Field)?;
     if created {
         chain_site(conn, chain, id, Action::Insert).map_err(SiteError::Store)?;
     }
@@ -176,26 +171,14 @@ impl Repository for Store {
     }
 
     fn sites(&self) -> Result<Vec<Site>, StoreError> {
-        let mut st = self.conn.prepare(
-            "SELECT id, name, elevation_m, barometer_kpa FROM sites WHERE deleted_at IS NULL ORDER BY name",
-        )?;
-        let rows = st.query_map([], |r| {
-            Ok(Site {
-                id: SiteId(r.get(0)?),
-                name: r.get(1)?,
-                elevation_m: r.get(2)?,
-                barometer_kpa: r.get(3)?,
-            })
-        })?;
+        let mut st = self.conn.prepare(&format!(
+            "SELECT {SITE_COLUMNS} FROM sites WHERE deleted_at IS NULL ORDER BY name"
+        ))?;
+        let rows = st.query_map([], site_from_row)?;
         Ok(rows.collect::<Result<_, _>>()?)
     }
 
-    fn add_site(
-        &mut self,
-        name: &str,
-        elevation_m: Option<f64>,
-        barometer_kpa: Option<f64>,
-    ) -> Result<SiteId, StoreError> {
+    fn add_site(&mut self, name: &str, settings: &SiteSettings) -> Result<SiteId, StoreError> {
         let name = name.trim();
         if name.is_empty() {
             return Err(invalid(FieldError::new("site", "a name is required")));
@@ -212,7 +195,7 @@ impl Repository for Store {
             )));
         }
         let tx = self.conn.transaction()?;
-        let (id, _) = site_id_for(&tx, name, elevation_m, barometer_kpa).map_err(invalid)?;
+        let (id, _) = site_id_for(&tx, name, settings).map_err(invalid)?;
         chain_site(&tx, &mut ChainWriter::new(&tx)?, id, Action::Insert)?;
         tx.commit()?;
         Ok(id)
@@ -221,10 +204,10 @@ impl Repository for Store {
     fn edit_site(
         &mut self,
         id: SiteId,
-        elevation_m: Option<f64>,
-        barometer_kpa: Option<f64>,
+        settings: &SiteSettings,
         reason: &str,
     ) -> Result<(), StoreError> {
+        settings.check().map_err(invalid)?;
         let old = self
             .sites()?
             .into_iter()
@@ -239,8 +222,15 @@ impl Repository for Store {
             &EarlierVersion::Site(old),
         )?;
         tx.execute(
-            "UPDATE sites SET elevation_m = ?2, barometer_kpa = ?3, barometer_pa = ?4 WHERE id = ?1",
-            params![id.0, elevation_m, barometer_kpa, barometer_kpa.map(|k| k * 1e3)],
+            "UPDATE sites SET elevation_m = ?2, barometer_kpa = ?3, barometer_pa = ?4, time_zone = ?5 \
+             WHERE id = ?1",
+            params![
+                id.0,
+                settings.elevation_m,
+                settings.barometer_kpa,
+                settings.barometer_kpa.map(|k| k * 1e3),
+                settings.time_zone
+            ],
         )?;
         chain_site(&tx, &mut ChainWriter::new(&tx)?, id, Action::Edit)?;
         tx.commit()?;

@@ -117,7 +117,10 @@ fn is_unique_violation(e: &rusqlite::Error) -> bool {
 pub(crate) const TANK_COLUMNS: &str = "t.id, t.site_id, s.name, s.elevation_m, s.barometer_kpa, t.name, t.fluid, \
     t.orientation, t.diameter_m, t.length_m, t.heads, t.crown_ratio, t.knuckle_ratio, t.line_temperature_c, \
     t.dp_unit, t.gauge_span, t.gauge_accuracy_percent, t.relief_pressure_value, t.relief_pressure_unit, \
-    t.reorder_percent, t.ner_percent_per_day";
+    t.reorder_percent, t.ner_percent_per_day, s.time_zone";
+
+/// How many columns [`TANK_COLUMNS`] selects (a query's own columns follow them).
+pub(crate) const TANK_COLUMN_COUNT: usize = 22;
 
 pub(crate) fn tank_from_row(r: &Row<'_>) -> rusqlite::Result<TankRecord> {
     let elevation: Option<f64> = r.get(3)?;
@@ -126,6 +129,7 @@ pub(crate) fn tank_from_row(r: &Row<'_>) -> rusqlite::Result<TankRecord> {
         id: TankId(r.get(0)?),
         site_id: SiteId(r.get(1)?),
         barometer_pa: barometer_pa(barometer_kpa.map(|k| k * 1e3), elevation),
+        time_zone: r.get(21)?,
         spec: TankSpec {
             site: r.get(2)?,
             name: r.get(5)?,
@@ -245,23 +249,59 @@ fn write_strapping(conn: &Connection, tank: TankId, points: &[(f64, f64)]) -> ru
 
 // ---- sites ----
 
+/// The columns of a site, in the order [`site_from_row`] reads them.
+pub(crate) const SITE_COLUMNS: &str = "id, name, elevation_m, barometer_kpa, time_zone";
+
+/// A site from a row of [`SITE_COLUMNS`].
+pub(crate) fn site_from_row(r: &Row<'_>) -> rusqlite::Result<Site> {
+    Ok(Site {
+        id: SiteId(r.get(0)?),
+        name: r.get(1)?,
+        elevation_m: r.get(2)?,
+        barometer_kpa: r.get(3)?,
+        time_zone: r.get(4)?,
+    })
+}
+
 /// The live site of this name (and false), or a new one (and true).
 pub(crate) fn site_id_for(
     conn: &Connection,
     name: &str,
-    elevation_m: Option<f64>,
-    barometer_kpa: Option<f64>,
+    settings: &SiteSettings,
 ) -> Result<(SiteId, bool), FieldError> {
+    settings.check()?;
+    let SiteSettings {
+        elevation_m,
+        barometer_kpa,
+        time_zone,
+    } = settings;
+    let (elevation_m, barometer_kpa) = (*elevation_m, *barometer_kpa);
     let existing = conn
         .query_row(
-            "SELECT id, elevation_m, barometer_kpa FROM sites WHERE name = ?1 AND deleted_at IS NULL",
+            "SELECT id, elevation_m, barometer_kpa, time_zone FROM sites WHERE name = ?1 AND deleted_at IS NULL",
             [name],
-            |r| Ok((r.get::<_, i64>(0)?, r.get::<_, Option<f64>>(1)?, r.get::<_, Option<f64>>(2)?)),
+            |r| {
+                Ok((
+                    r.get::<_, i64>(0)?,
+                    r.get::<_, Option<f64>>(1)?,
+                    r.get::<_, Option<f64>>(2)?,
+                    r.get::<_, Option<String>>(3)?,
+                ))
+            },
         )
         .optional()
         .map_err(|e| FieldError::new("site", e.to_string()))?;
     match existing {
-        Some((id, e0, b0)) => {
+        Some((id, e0, b0, z0)) => {
+            if time_zone.is_some() && *time_zone != z0 {
+                return Err(FieldError::new(
+                    "time_zone",
+                    format!(
+                        "site '{name}' already has time zone {}; edit the site instead",
+                        z0.as_deref().unwrap_or("none (UTC)")
+                    ),
+                ));
+            }
             if elevation_m.is_some() && elevation_m != e0 {
                 return Err(FieldError::new(
                     "elevation_m",
@@ -280,8 +320,15 @@ pub(crate) fn site_id_for(
         }
         None => {
             conn.execute(
-                "INSERT INTO sites (name, elevation_m, barometer_kpa, barometer_pa) VALUES (?1, ?2, ?3, ?4)",
-                params![name, elevation_m, barometer_kpa, barometer_kpa.map(|k| k * 1e3)],
+                "INSERT INTO sites (name, elevation_m, barometer_kpa, barometer_pa, time_zone) \
+                 VALUES (?1, ?2, ?3, ?4, ?5)",
+                params![
+                    name,
+                    elevation_m,
+                    barometer_kpa,
+                    barometer_kpa.map(|k| k * 1e3),
+                    time_zone
+                ],
             )
             .map_err(|e| FieldError::new("site", e.to_string()))?;
             Ok((SiteId(conn.last_insert_rowid()), true))
