@@ -62,7 +62,7 @@ impl Core {
         };
         core.view.cautions = build::cautions().to_vec();
         core.view.reading_editor.form = build::new_reading_form(None, units);
-        core.view.delivery_editor.form = build::new_delivery_form(units);
+        core.view.delivery_editor.form = build::new_delivery_form(None, units);
         core
     }
 

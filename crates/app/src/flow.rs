@@ -118,8 +118,8 @@ impl Flow for DeliveryFlow {
     fn reason(form: &DeliveryForm) -> &str {
         &form.reason
     }
-    fn blank(_: Option<&TankRecord>, units: UnitSystem) -> DeliveryForm {
-        build::new_delivery_form(units)
+    fn blank(t: Option<&TankRecord>, units: UnitSystem) -> DeliveryForm {
+        build::new_delivery_form(t, units)
     }
     fn load(repo: &dyn Repository, id: i64) -> Result<DeliveryForm, StoreError> {
         build::delivery_form_for(repo, id)

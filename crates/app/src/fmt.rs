@@ -224,6 +224,15 @@ pub fn date_time(ms: i64) -> String {
     format!("{y:04}-{m:02}-{d:02} {hh:02}:{mm:02}")
 }
 
+/// An instant on the open tank's site clock (`YYYY-MM-DD HH:MM` and the zone's abbreviation; UTC
+/// when the site has no time zone).
+pub fn site_time(view: &crate::view::ViewState, ms: i64) -> String {
+    view.tank
+        .as_ref()
+        .map_or(units::Zone::UTC, |t| t.zone)
+        .text(ms)
+}
+
 /// Milliseconds since the epoch as `YYYY-MM-DD` UTC.
 pub fn date(ms: i64) -> String {
     let (y, m, d, _, _) = civil(ms);

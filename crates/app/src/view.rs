@@ -409,8 +409,8 @@ pub struct Editor<F> {
 pub struct ReadingForm {
     /// The reading being edited, or None for a new reading.
     pub editing: Option<i64>,
-    /// RFC 3339 time.
-    pub time: String,
+    /// When it was read, on the site's clock.
+    pub time: LocalEntry,
     /// DP (a number, or a number and unit).
     pub dp: String,
     /// DP unit when the DP has none.
@@ -434,10 +434,10 @@ pub struct DeliveryForm {
     pub editing: Option<i64>,
     /// Ticket number.
     pub ticket: String,
-    /// RFC 3339 start.
-    pub start: String,
-    /// RFC 3339 end.
-    pub end: String,
+    /// Start of the fill, on the site's clock.
+    pub start: LocalEntry,
+    /// End of the fill, on the site's clock.
+    pub end: LocalEntry,
     /// Quantity (a number, or a number and unit).
     pub quantity: String,
     /// Its unit when the quantity has none.
@@ -452,6 +452,19 @@ pub struct DeliveryForm {
     pub supply_pressure_unit: String,
     /// Why it is edited or deleted.
     pub reason: String,
+}
+
+/// A time as the site's clock shows it, as entered in a form (stored as the instant, UTC, with the
+/// text as entered: RFC 3339 with the site's offset).
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct LocalEntry {
+    /// The day, `YYYY-MM-DD`.
+    pub date: String,
+    /// Hour and minute, `HH:MM`.
+    pub clock: String,
+    /// When the clocks show this time twice (going back): Some(false) the first, Some(true) the
+    /// second; None until the user says.
+    pub repeat: Option<bool>,
 }
 
 /// The text of the tank setup form.
@@ -528,6 +541,8 @@ pub struct HistoryRow {
 pub struct TankView {
     /// Tank id.
     pub id: i64,
+    /// The site's time zone (UTC when none is set): times are shown and entered in it.
+    pub zone: units::Zone,
     /// Tank name.
     pub name: String,
     /// Site name.

@@ -95,7 +95,7 @@ fn a_valid_reading_is_saved_shown_first_and_changes_the_contents() {
     assert_eq!(newest.entry.dp.value, 30.0);
     // Shown first in the table, and the Now figures follow it.
     assert!(
-        h.query_by_label(&app::fmt::date_time(newest.entry.time.ms))
+        h.query_by_label(&units::Zone::UTC.text(newest.entry.time.ms))
             .is_some()
     );
     let t = h.state().view().tank.as_ref().expect("tank");
@@ -220,7 +220,7 @@ fn an_edited_reading_keeps_its_old_value_in_the_history() {
     tab(&mut h, "Readings");
     let first = h.state().repository().readings(id, None).expect("readings")[0].clone();
     let old_dp = first.entry.dp.value;
-    h.get_by_label(&app::fmt::date_time(first.entry.time.ms))
+    h.get_by_label(&units::Zone::UTC.text(first.entry.time.ms))
         .click();
     h.run();
     assert_eq!(
@@ -399,7 +399,7 @@ fn a_deleted_reading_leaves_the_log_and_keeps_its_history() {
         .last()
         .cloned()
         .expect("reading");
-    h.get_by_label(&app::fmt::date_time(last.entry.time.ms))
+    h.get_by_label(&units::Zone::UTC.text(last.entry.time.ms))
         .click();
     h.run();
     // Without a reason the delete button does nothing.
@@ -436,7 +436,7 @@ fn a_deleted_reading_leaves_the_log_and_keeps_its_history() {
     assert_eq!(revs.len(), 1);
     assert_eq!(revs[0].action.as_str(), "delete");
     assert!(
-        h.query_by_label(&app::fmt::date_time(last.entry.time.ms))
+        h.query_by_label(&units::Zone::UTC.text(last.entry.time.ms))
             .is_none()
     );
     assert!(h.query_by_label_contains("Reading deleted").is_some());

@@ -36,11 +36,19 @@ impl Fleet {
             "relief_pressure_unit",
             "reorder_percent",
             "ner_percent_per_day",
+            "time_zone",
         ]);
+        // the demo's sites keep UK time (their readings are taken around 08:00-09:00 UTC, the
+        // morning round); numbered test fleets name no zone
+        let zone = match self.config.naming {
+            crate::fleet::Naming::Demo => "Europe/London",
+            crate::fleet::Naming::Numbered => "",
+        };
         let mut sites = std::collections::BTreeSet::new();
         for t in &self.tanks {
             // the store keeps a site's elevation once: give it with the site's first tank only
-            let elevation = if sites.insert(t.site.as_str()) {
+            let first = sites.insert(t.site.as_str());
+            let elevation = if first {
                 format!("{}", t.elevation_m)
             } else {
                 String::new()
@@ -62,6 +70,7 @@ impl Fleet {
                 "barg".to_owned(),
                 format!("{}", t.reorder_percent),
                 format!("{}", t.ner_percent_per_day),
+                if first { zone } else { "" }.to_owned(),
             ]);
         }
         text(w)

@@ -67,6 +67,12 @@ impl fmt::Display for Zone {
     }
 }
 
+impl Default for Zone {
+    fn default() -> Self {
+        Zone::UTC
+    }
+}
+
 impl Zone {
     /// Coordinated Universal Time.
     pub const UTC: Zone = Zone(chrono_tz::UTC);
@@ -102,7 +108,7 @@ impl Zone {
     pub fn rfc3339(&self, ms: i64) -> String {
         self.at(ms).map_or_else(String::new, |t| {
             t.fixed_offset()
-                .to_rfc3339_opts(chrono::SecondsFormat::Secs, true)
+                .to_rfc3339_opts(chrono::SecondsFormat::Secs, false)
         })
     }
 

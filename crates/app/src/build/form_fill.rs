@@ -59,9 +59,10 @@ pub fn new_setup_form(site: &str) -> SetupForm {
 /// The reading form filled from a stored reading, for editing.
 pub fn reading_form_for(repo: &dyn Repository, id: i64) -> Result<ReadingForm, StoreError> {
     let r = repo.reading(store::ReadingId(id))?;
+    let zone = store::zone_of(repo.tank(r.tank_id)?.time_zone.as_deref());
     Ok(ReadingForm {
         editing: Some(id),
-        time: r.entry.time.text.clone(),
+        time: local_entry(zone, r.entry.time.ms),
         dp: r.entry.dp.value.to_string(),
         dp_unit: r.entry.dp.unit.symbol().to_owned(),
         pressure: r.entry.pressure.value.to_string(),
@@ -78,8 +79,9 @@ pub fn reading_form_for(repo: &dyn Repository, id: i64) -> Result<ReadingForm, S
 
 /// A blank reading form for a tank: time now, the gauge's unit, the display pressure unit.
 pub fn new_reading_form(t: Option<&store::TankRecord>, units: UnitSystem) -> ReadingForm {
+    let zone = store::zone_of(t.and_then(|t| t.time_zone.as_deref()));
     ReadingForm {
-        time: fmt::rfc3339(fmt::now_ms()),
+        time: local_entry(zone, fmt::now_ms()),
         dp_unit: t
             .map(|t| t.spec.dp_unit.symbol().to_owned())
             .unwrap_or_else(|| "inH2O".into()),
@@ -90,12 +92,14 @@ pub fn new_reading_form(t: Option<&store::TankRecord>, units: UnitSystem) -> Rea
 
 /// The delivery form filled from a stored delivery.
 pub fn delivery_form_for(repo: &dyn Repository, id: i64) -> Result<DeliveryForm, StoreError> {
-    let d = repo.delivery(store::DeliveryId(id))?.entry;
+    let stored = repo.delivery(store::DeliveryId(id))?;
+    let zone = store::zone_of(repo.tank(stored.tank_id)?.time_zone.as_deref());
+    let d = stored.entry;
     Ok(DeliveryForm {
         editing: Some(id),
         ticket: d.ticket,
-        start: d.start.text,
-        end: d.end.text,
+        start: local_entry(zone, d.start.ms),
+        end: local_entry(zone, d.end.ms),
         quantity: d.quantity.value.to_string(),
         quantity_unit: d.quantity.unit.symbol().to_owned(),
         carrier: d.carrier,
@@ -112,14 +116,53 @@ pub fn delivery_form_for(repo: &dyn Repository, id: i64) -> Result<DeliveryForm,
     })
 }
 
-/// A blank delivery form: start and end one hour ago and now.
-pub fn new_delivery_form(units: UnitSystem) -> DeliveryForm {
+/// A blank delivery form: start and end one hour ago and now, on the tank's site's clock.
+pub fn new_delivery_form(t: Option<&store::TankRecord>, units: UnitSystem) -> DeliveryForm {
     let now = fmt::now_ms();
+    let zone = store::zone_of(t.and_then(|t| t.time_zone.as_deref()));
     DeliveryForm {
-        start: fmt::rfc3339(now - 3_600_000),
-        end: fmt::rfc3339(now),
+        start: local_entry(zone, now - 3_600_000),
+        end: local_entry(zone, now),
         quantity_unit: units.default_quantity_entry_unit().to_owned(),
         supply_pressure_unit: units.default_pressure_entry_unit().to_owned(),
         ..Default::default()
     }
+}
+
+/// An instant as a form shows it on the site's clock; a time the clocks show twice says which.
+pub fn local_entry(zone: units::Zone, ms: i64) -> LocalEntry {
+    let Some((date, h, m)) = zone.parts(ms) else {
+        return LocalEntry::default();
+    };
+    let repeat = match zone.instant(date, h, m, units::Repeat::First) {
+        Ok(first) if zone.instant(date, h, m, units::Repeat::Ask).is_err() => Some(first != ms),
+        _ => None,
+    };
+    LocalEntry {
+        date: date.format("%Y-%m-%d").to_string(),
+        clock: format!("{h:02}:{m:02}"),
+        repeat,
+    }
+}
+
+/// The instant a form's local time names on the site's clock, as RFC 3339 with the site's offset
+/// (the text stored as entered); the reason when it names none (no such day or time, a time the
+/// clocks skip, or a repeated time not yet chosen).
+pub fn entry_instant(e: &LocalEntry, zone: units::Zone) -> Result<String, String> {
+    let date = chrono::NaiveDate::parse_from_str(e.date.trim(), "%Y-%m-%d")
+        .map_err(|_| format!("'{}' is not a day (YYYY-MM-DD)", e.date.trim()))?;
+    let clock = e.clock.trim();
+    let (h, m) = clock
+        .split_once(':')
+        .and_then(|(h, m)| Some((h.parse::<u32>().ok()?, m.parse::<u32>().ok()?)))
+        .filter(|(h, m)| *h < 24 && *m < 60)
+        .ok_or_else(|| format!("'{clock}' is not a time of day (HH:MM, 00:00 to 23:59)"))?;
+    let repeat = match e.repeat {
+        None => units::Repeat::Ask,
+        Some(false) => units::Repeat::First,
+        Some(true) => units::Repeat::Second,
+    };
+    zone.instant(date, h, m, repeat)
+        .map(|ms| zone.rfc3339(ms))
+        .map_err(|e| e.to_string())
 }

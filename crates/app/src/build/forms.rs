@@ -80,8 +80,13 @@ pub fn check_reading(
             reason: "say why this reading is changed (kept in its history)".into(),
         });
     }
+    let zone = store::zone_of(t.time_zone.as_deref());
+    let time = super::entry_instant(&form.time, zone).unwrap_or_else(|e| {
+        extra.push(FieldMessage::new("time", e));
+        String::new()
+    });
     let fields = ReadingFields {
-        time: &form.time,
+        time: &time,
         dp,
         dp_unit,
         pressure: p,
@@ -183,10 +188,18 @@ pub fn check_delivery(
             reason: "say why this delivery is changed (kept in its history)".into(),
         });
     }
+    let zone = store::zone_of(t.time_zone.as_deref());
+    let mut instant = |field: &str, e: &LocalEntry| {
+        super::entry_instant(e, zone).unwrap_or_else(|m| {
+            extra.push(FieldMessage::new(field, m));
+            String::new()
+        })
+    };
+    let (start, end) = (instant("start", &form.start), instant("end", &form.end));
     let fields = DeliveryFields {
         ticket: &form.ticket,
-        start: &form.start,
-        end: &form.end,
+        start: &start,
+        end: &end,
         quantity: q,
         quantity_unit: q_unit,
         carrier: &form.carrier,

@@ -16,8 +16,8 @@ mod trend;
 pub use audit_page::{apply_filter, audit_view, finding_words, verdict_word};
 pub use fleet::{FleetSummary, fleet_rows, fleet_sites, fleet_summary, history_check};
 pub use form_fill::{
-    delivery_form_for, new_delivery_form, new_reading_form, new_setup_form, reading_form_for,
-    setup_form_for,
+    delivery_form_for, entry_instant, local_entry, new_delivery_form, new_reading_form,
+    new_setup_form, reading_form_for, setup_form_for,
 };
 pub use forms::{check_delivery, check_reading, check_setup, split_value_unit};
 pub use history::history;

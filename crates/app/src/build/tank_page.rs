@@ -142,6 +142,7 @@ pub fn tank_view(
     );
     let mut view = TankView {
         id,
+        zone: store::zone_of(t.time_zone.as_deref()),
         name: s.name.clone(),
         site: s.site.clone(),
         fluid: s.fluid.to_string(),

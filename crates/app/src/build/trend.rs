@@ -58,7 +58,7 @@ pub fn trend(view: &TankView, units: UnitSystem, q: TrendQuantity) -> TrendView 
         tv.band_hi.push(f.value + u);
         tv.hover.push(format!(
             "{} UTC\nDP {} · {}\n{}: {} {unit}",
-            fmt::date_time(r.time_ms),
+            view.zone.text(r.time_ms),
             r.dp_text,
             r.pressure_text,
             q.title(),

@@ -20,7 +20,7 @@ pub fn deliveries_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
         });
     let mut cols = vec![
         Column::text("Ticket", 84.0),
-        Column::text("Start (UTC)", 116.0),
+        Column::text("Start (site)", 150.0),
         Column::num("Minutes", 62.0),
         Column::num("Billed", 90.0),
         Column::num("Supply", 80.0),
@@ -52,7 +52,7 @@ pub fn deliveries_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
                 id: d.id,
                 cells: vec![
                     d.ticket.clone(),
-                    fmt::date_time(d.start_ms),
+                    fmt::site_time(view, d.start_ms),
                     fmt::num((d.end_ms - d.start_ms) as f64 / 60_000.0, 0),
                     d.quantity_text.clone(),
                     d.supply_text.clone(),
@@ -88,19 +88,12 @@ fn form_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
         set(&mut |n| n.ticket = v.clone());
     }
     widgets::messages(ui, check, "ticket");
-    if let Some(v) = widgets::text_field(
-        ui,
-        "Start (RFC 3339)",
-        &f.start,
-        300.0,
-        "2026-03-01T10:00:00Z",
-    ) {
+    let zone = view.tank.as_ref().map(|t| t.zone).unwrap_or_default();
+    if let Some(v) = widgets::local_time(ui, "Start", &f.start, zone) {
         set(&mut |n| n.start = v.clone());
     }
     widgets::messages(ui, check, "start");
-    if let Some(v) =
-        widgets::text_field(ui, "End (RFC 3339)", &f.end, 300.0, "2026-03-01T10:40:00Z")
-    {
+    if let Some(v) = widgets::local_time(ui, "End", &f.end, zone) {
         set(&mut |n| n.end = v.clone());
     }
     widgets::messages(ui, check, "end");

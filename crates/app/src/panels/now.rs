@@ -37,8 +37,8 @@ pub fn now_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
     let Ok(c) = &latest.contents else { return };
     ui.label(
         RichText::new(format!(
-            "Latest reading {} UTC ({} ago): DP {} at {}",
-            fmt::date_time(latest.time_ms),
+            "Latest reading {} ({} ago): DP {} at {}",
+            fmt::site_time(view, latest.time_ms),
             fmt::age(fmt::now_ms() - latest.time_ms),
             latest.dp_text,
             latest.pressure_text

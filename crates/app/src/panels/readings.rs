@@ -21,7 +21,7 @@ pub fn readings_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
         });
     let units = view.units;
     let mut cols = vec![
-        Column::text("Time (UTC)", 116.0),
+        Column::text("Time (site)", 150.0),
         Column::num(format!("DP ({})", t.dp_unit), 70.0),
         Column::num("Pressure", 80.0),
         Column::num(format!("Mass ({})", units.mass_unit()), 76.0),
@@ -55,7 +55,7 @@ pub fn readings_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
                 Ok(c) => {
                     let vd = if units == UnitSystem::Si { 3 } else { 0 };
                     vec![
-                        fmt::date_time(r.time_ms),
+                        fmt::site_time(view, r.time_ms),
                         dp,
                         r.pressure_text.clone(),
                         fmt::num(units.mass(c.mass_kg.value), 0),
@@ -70,7 +70,7 @@ pub fn readings_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
                     ]
                 }
                 Err(e) => vec![
-                    fmt::date_time(r.time_ms),
+                    fmt::site_time(view, r.time_ms),
                     dp,
                     r.pressure_text.clone(),
                     "refused".into(),
@@ -106,28 +106,10 @@ fn form_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
         g(&mut n);
         next = Some(n);
     };
-    ui.horizontal(|ui| {
-        if let Some(v) = widgets::text_field(
-            ui,
-            "Time (RFC 3339)",
-            &f.time,
-            214.0,
-            "2026-03-01T08:00:00Z",
-        ) {
-            set(&mut |n| n.time = v.clone());
-        }
-        ui.vertical(|ui| {
-            ui.add_space(14.0);
-            if ui
-                .button("Set to now")
-                .on_hover_text("Set the time to now (UTC)")
-                .clicked()
-            {
-                let now = fmt::rfc3339(fmt::now_ms());
-                set(&mut |n| n.time = now.clone());
-            }
-        });
-    });
+    let zone = view.tank.as_ref().map(|t| t.zone).unwrap_or_default();
+    if let Some(v) = widgets::local_time(ui, "Time", &f.time, zone) {
+        set(&mut |n| n.time = v.clone());
+    }
     widgets::messages(ui, check, "time");
     ui.horizontal(|ui| {
         if let Some(v) = widgets::text_field(ui, "DP", &f.dp, 150.0, "e.g. 182.5 or 46 kPa") {

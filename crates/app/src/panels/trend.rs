@@ -131,8 +131,8 @@ pub fn trend_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
             } if *plot_name == SERIES => hover.get(*index).cloned(),
             HoverPosition::NearDataPoint { position, .. }
             | HoverPosition::Elsewhere { position, .. } => Some(format!(
-                "{} UTC\n{}: {}",
-                fmt::date_time((position.x * 86_400_000.0) as i64),
+                "{}\n{}: {}",
+                fmt::site_time(view, (position.x * 86_400_000.0) as i64),
                 hover_label,
                 fmt::num(position.y, fmt::decimals_for(position.y))
             )),
@@ -225,8 +225,8 @@ pub fn trend_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
                 | HoverPosition::Elsewhere { position, .. } => position,
             };
             Some(format!(
-                "{} UTC\n{}: {}",
-                fmt::date_time((p.x * 86_400_000.0) as i64),
+                "{}\n{}: {}",
+                fmt::site_time(view, (p.x * 86_400_000.0) as i64),
                 pressure_label,
                 fmt::num(p.y, 2)
             ))

@@ -359,3 +359,115 @@ pub fn record_history(ui: &mut Ui, noun: &str, history: &[HistoryRow]) {
         );
     }
 }
+
+/// The local day, hour and minute a form's entry names (None while it is not a day and HH:MM).
+fn entry_parts(e: &crate::view::LocalEntry) -> Option<(chrono::NaiveDate, u32, u32)> {
+    let date = chrono::NaiveDate::parse_from_str(e.date.trim(), "%Y-%m-%d").ok()?;
+    let (h, m) = e.clock.trim().split_once(':')?;
+    Some((date, h.parse().ok()?, m.parse().ok()?))
+}
+
+/// A time on the site's clock: a date picker, the time of day as HH:MM, "Now", and, when the clocks
+/// show that time twice (going back), which of the two. Returns the changed entry.
+pub fn local_time(
+    ui: &mut Ui,
+    label: &str,
+    e: &crate::view::LocalEntry,
+    zone: units::Zone,
+) -> Option<crate::view::LocalEntry> {
+    use crate::view::LocalEntry;
+    let mut out: Option<LocalEntry> = None;
+    let now = crate::fmt::now_ms();
+    ui.vertical(|ui| {
+        ui.label(
+            RichText::new(format!("{label} (site time, {})", zone.name()))
+                .color(style::MUTED)
+                .small(),
+        );
+        ui.horizontal(|ui| {
+            let day = chrono::NaiveDate::parse_from_str(e.date.trim(), "%Y-%m-%d")
+                .ok()
+                .or_else(|| zone.parts(now).map(|p| p.0));
+            if let Some(day) = day {
+                use chrono::Datelike;
+                let mut picked =
+                    jiff::civil::Date::new(day.year() as i16, day.month() as i8, day.day() as i8)
+                        .unwrap_or_default();
+                let before = picked;
+                let r = ui.add(
+                    egui_extras::DatePickerButton::new(&mut picked)
+                        .id_salt(label)
+                        .calendar_week(false)
+                        .show_icon(false),
+                );
+                r.widget_info(|| WidgetInfo::labeled(Role::Button, true, format!("{label} day")));
+                if picked != before {
+                    out = Some(LocalEntry {
+                        date: format!(
+                            "{:04}-{:02}-{:02}",
+                            picked.year(),
+                            picked.month(),
+                            picked.day()
+                        ),
+                        repeat: None,
+                        ..e.clone()
+                    });
+                }
+            }
+            let mut clock = e.clock.clone();
+            let r = ui.add(
+                egui::TextEdit::singleline(&mut clock)
+                    .desired_width(52.0)
+                    .hint_text("HH:MM"),
+            );
+            r.widget_info(|| {
+                WidgetInfo::labeled(Role::TextInput, true, format!("{label} time of day"))
+            });
+            if r.changed() {
+                out = Some(LocalEntry {
+                    clock,
+                    repeat: None,
+                    ..out.clone().unwrap_or_else(|| e.clone())
+                });
+            }
+            if ui
+                .button("Now")
+                .on_hover_text(format!(
+                    "Set {} to now on the site's clock",
+                    label.to_lowercase()
+                ))
+                .clicked()
+                && let Some((d, h, m)) = zone.parts(now)
+            {
+                out = Some(LocalEntry {
+                    date: d.format("%Y-%m-%d").to_string(),
+                    clock: format!("{h:02}:{m:02}"),
+                    repeat: None,
+                });
+            }
+        });
+        // a time the clocks show twice: say which
+        let shown = out.clone().unwrap_or_else(|| e.clone());
+        if let Some((d, h, m)) = entry_parts(&shown)
+            && let Err(units::LocalTimeError::Repeated { first, second, .. }) =
+                zone.instant(d, h, m, units::Repeat::Ask)
+        {
+            ui.horizontal(|ui| {
+                ui.label(RichText::new("This time happens twice:").small());
+                for (second_one, text) in [(false, &first), (true, &second)] {
+                    let word = if second_one { "second" } else { "first" };
+                    if ui
+                        .radio(shown.repeat == Some(second_one), format!("{word} ({text})"))
+                        .clicked()
+                    {
+                        out = Some(LocalEntry {
+                            repeat: Some(second_one),
+                            ..shown.clone()
+                        });
+                    }
+                }
+            });
+        }
+    });
+    out
+}

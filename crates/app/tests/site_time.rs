@@ -1,0 +1,145 @@
+//! Time as operators live it: a site in Europe/London, a reading entered on the site's clock on the two
+//! days the clocks change (2026-03-29 and 2026-10-25, the IANA tz database's rule for the UK, as
+//! chrono-tz carries it) is stored at the right UTC instant, with its text as entered, and shown back
+//! as entered; a time the clocks skip is refused, a time they show twice asks which.
+
+#![allow(clippy::expect_used)] // helpers of tests: a failure to set up is a test failure
+
+mod common;
+
+use app::CryoApp;
+use app::action::Action;
+use app::egui;
+use app::view::{LocalEntry, ReadingForm, TankTab};
+use egui_kittest::{Harness, kittest::Queryable};
+use std::path::PathBuf;
+use store::Repository;
+
+fn store_in_london() -> (store::Store, store::TankId) {
+    let mut s = store::Store::open_in_memory().expect("store");
+    s.add_site(
+        "Harrowmere Quay",
+        &store::SiteSettings {
+            time_zone: Some("Europe/London".into()),
+            ..Default::default()
+        },
+    )
+    .expect("site");
+    let id = s
+        .add_tank(&common::tank_fields(
+            "Harrowmere Quay",
+            "HQ-N2-1",
+            "nitrogen",
+            "vertical",
+        ))
+        .expect("tank");
+    (s, id)
+}
+
+fn form(date: &str, clock: &str, repeat: Option<bool>) -> ReadingForm {
+    ReadingForm {
+        time: LocalEntry {
+            date: date.into(),
+            clock: clock.into(),
+            repeat,
+        },
+        dp: "120".into(),
+        dp_unit: "inH2O".into(),
+        pressure: "8".into(),
+        pressure_unit: "barg".into(),
+        ..Default::default()
+    }
+}
+
+fn time_messages(h: &Harness<'_, CryoApp>) -> Vec<String> {
+    h.state()
+        .view()
+        .reading_editor
+        .check
+        .errors
+        .iter()
+        .filter(|m| m.field == "time")
+        .map(|m| m.reason.clone())
+        .collect()
+}
+
+#[test]
+fn readings_on_the_days_the_clocks_change_are_stored_at_the_right_instant() {
+    let (store, tank) = store_in_london();
+    let mut app = CryoApp::new(store, PathBuf::from(":memory:"));
+    app.wait_for_background();
+    let mut h = Harness::builder()
+        .with_size(egui::vec2(1360.0, 860.0))
+        .build_eframe(move |_cc| app);
+    h.run();
+    h.state_mut().push(Action::SelectTank(tank.0));
+    h.state_mut().push(Action::ShowTab(TankTab::Readings));
+    h.run();
+    // the form says whose clock it is
+    assert!(
+        h.query_by_label_contains("site time, Europe/London")
+            .is_some()
+    );
+
+    // 01:30 on 29 March does not happen in London: refused, nothing written
+    h.state_mut()
+        .push(Action::EditReadingForm(form("2026-03-29", "01:30", None)));
+    h.run();
+    let m = time_messages(&h);
+    assert!(m.iter().any(|m| m.contains("does not happen")), "{m:?}");
+    h.state_mut().push(Action::SaveReading);
+    h.run();
+    assert!(
+        h.state()
+            .repository()
+            .readings(tank, None)
+            .expect("r")
+            .is_empty()
+    );
+
+    // 03:30 BST that day is 02:30 UTC
+    h.state_mut()
+        .push(Action::EditReadingForm(form("2026-03-29", "03:30", None)));
+    h.state_mut().push(Action::SaveReading);
+    h.run();
+    let r = h.state().repository().readings(tank, None).expect("r");
+    assert_eq!(r.len(), 1);
+    assert_eq!(r[0].entry.time.ms, 1_774_751_400_000);
+    assert_eq!(r[0].entry.time.text, "2026-03-29T03:30:00+01:00");
+
+    // 01:30 on 25 October happens twice: the form asks which
+    h.state_mut()
+        .push(Action::EditReadingForm(form("2026-10-25", "01:30", None)));
+    h.run();
+    let m = time_messages(&h);
+    assert!(m.iter().any(|m| m.contains("happens twice")), "{m:?}");
+    assert!(
+        h.query_all_by_label_contains("second (2026-10-25T01:30:00+00:00)")
+            .next()
+            .is_some()
+    );
+    // the second, after the clocks went back: 01:30 GMT
+    h.state_mut().push(Action::EditReadingForm(form(
+        "2026-10-25",
+        "01:30",
+        Some(true),
+    )));
+    h.state_mut().push(Action::SaveReading);
+    h.run();
+    let r = h.state().repository().readings(tank, None).expect("r");
+    assert_eq!(r.len(), 2);
+    let autumn = &r[1];
+    assert_eq!(autumn.entry.time.ms, 1_792_891_800_000);
+    assert_eq!(autumn.entry.time.text, "2026-10-25T01:30:00+00:00");
+
+    // shown back as entered: in the table on the site's clock, and in the form when opened
+    assert!(h.query_by_label("2026-10-25 01:30 GMT").is_some());
+    assert!(h.query_by_label("2026-03-29 03:30 BST").is_some());
+    h.state_mut().push(Action::SelectReading(Some(autumn.id.0)));
+    h.run();
+    let shown = &h.state().view().reading_editor.form.time;
+    assert_eq!(
+        (shown.date.as_str(), shown.clock.as_str(), shown.repeat),
+        ("2026-10-25", "01:30", Some(true))
+    );
+}
