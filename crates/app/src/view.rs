@@ -145,6 +145,8 @@ pub struct FleetSite {
     pub id: i64,
     /// Site name.
     pub name: String,
+    /// The site's time zone (UTC when none is set).
+    pub zone: units::Zone,
     /// Its tanks, by name.
     pub tanks: Vec<FleetTank>,
 }

@@ -37,9 +37,15 @@ fn bracket(r: &Option<audit::BracketReading>) -> Option<BracketView> {
     })
 }
 
-fn balance_row(b: &Balance, site: &str, tank_id: Option<i64>, materiality: f64) -> BalanceRow {
+fn balance_row(
+    b: &Balance,
+    (site, zone): (&str, units::Zone),
+    tank_id: Option<i64>,
+    materiality: f64,
+) -> BalanceRow {
     BalanceRow {
         ticket: b.ticket.clone(),
+        zone,
         site: site.to_owned(),
         tank: b.tank.clone(),
         tank_id,
@@ -149,20 +155,22 @@ pub fn audit_view(
     units: UnitSystem,
     old: &AuditView,
 ) -> AuditView {
-    let mut site_of: HashMap<&str, (&str, i64)> = HashMap::new();
+    let mut site_of: HashMap<&str, (&str, i64, units::Zone)> = HashMap::new();
     for s in sites {
         for t in &s.tanks {
-            site_of.insert(t.name.as_str(), (s.name.as_str(), t.id));
+            site_of.insert(t.name.as_str(), (s.name.as_str(), t.id, s.zone));
         }
     }
     let rows: Vec<BalanceRow> = fa
         .fills
         .iter()
         .map(|b| {
-            let (site, id) = site_of
+            let (site, id, zone) = site_of
                 .get(b.tank.as_str())
-                .map_or(("", None), |(s, id)| (*s, Some(*id)));
-            balance_row(b, site, id, materiality)
+                .map_or(("", None, units::Zone::UTC), |(s, id, z)| {
+                    (*s, Some(*id), *z)
+                });
+            balance_row(b, (site, zone), id, materiality)
         })
         .collect();
     let names = |f: &dyn Fn(&BalanceRow) -> &str| -> Vec<String> {
@@ -251,6 +259,9 @@ pub fn audit_view(
         .findings
         .iter()
         .map(|f| FindingLine {
+            zone: site_of
+                .get(f.tank.as_str())
+                .map_or(units::Zone::UTC, |x| x.2),
             tank: f.tank.clone(),
             tank_id: site_of.get(f.tank.as_str()).map(|x| x.1),
             kind: finding_words(f.kind).into(),
@@ -385,6 +396,7 @@ mod tests {
     fn row(ticket: &str, tank: &str, vehicle: &str, start_ms: i64, w: VerdictWord) -> BalanceRow {
         BalanceRow {
             ticket: ticket.into(),
+            zone: units::Zone::UTC,
             site: "Yard".into(),
             tank: tank.into(),
             tank_id: Some(1),

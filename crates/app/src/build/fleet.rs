@@ -141,6 +141,7 @@ pub fn fleet_sites(
         .into_iter()
         .map(|s| FleetSite {
             id: s.id.0,
+            zone: s.zone(),
             name: s.name,
             tanks: Vec::new(),
         })

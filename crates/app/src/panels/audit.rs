@@ -211,7 +211,7 @@ fn fills_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
     let u = view.units;
     let mut cols = vec![
         Column::text("Ticket", 90.0),
-        Column::text("Start (UTC)", 116.0),
+        Column::text("Start (site time)", 150.0),
         Column::text("Tank", 90.0),
         Column::text("Vehicle", 70.0),
         Column::text("Verdict", 90.0),
@@ -237,7 +237,7 @@ fn fills_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
                 id: i as i64,
                 cells: vec![
                     r.ticket.clone(),
-                    fmt::date_time(r.start_ms),
+                    r.zone.text(r.start_ms),
                     r.tank.clone(),
                     r.vehicle.clone(),
                     r.verdict.word().to_owned(),
@@ -370,13 +370,19 @@ fn budget_ui(ui: &mut Ui, r: &BalanceRow, mass: impl Fn(f64) -> f64, unit: &str)
     }
 }
 
-fn bracket_line(ui: &mut Ui, label: &str, b: &Option<BracketView>, view: &ViewState) {
+fn bracket_line(
+    ui: &mut Ui,
+    label: &str,
+    b: &Option<BracketView>,
+    zone: units::Zone,
+    view: &ViewState,
+) {
     let u = view.units;
     match b {
         Some(b) => {
             ui.label(RichText::new(format!(
                 "{label}: {} — {} {} ({} % full); liquid at {} {}, saturation at the tank pressure {} {} ({} {} subcooled)",
-                fmt::date_time(b.time_ms),
+                zone.text(b.time_ms),
                 fmt::fig(Figure::Mass, u.mass(b.mass_kg)),
                 u.mass_unit(),
                 fmt::fig(Figure::FillPercent, 100.0 * b.fill),
@@ -413,7 +419,7 @@ fn detail_ui(ui: &mut Ui, view: &ViewState, r: &BalanceRow, out: &mut Vec<Action
             r.site,
             r.vehicle,
             r.carrier,
-            fmt::date_time(r.start_ms)
+            r.zone.text(r.start_ms)
         ))
         .color(style::MUTED),
     );
@@ -470,8 +476,8 @@ fn detail_ui(ui: &mut Ui, view: &ViewState, r: &BalanceRow, out: &mut Vec<Action
     budget_ui(ui, r, mass, unit);
     ui.add_space(6.0);
     ui.label(RichText::new("Readings used, with the liquid state assumed").strong());
-    bracket_line(ui, "before", &r.before, view);
-    bracket_line(ui, "after", &r.after, view);
+    bracket_line(ui, "before", &r.before, r.zone, view);
+    bracket_line(ui, "after", &r.after, r.zone, view);
     if let Some(tank) = r.tank_id {
         ui.horizontal(|ui| {
             for (label, b) in [

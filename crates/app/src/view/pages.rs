@@ -153,6 +153,8 @@ pub struct BracketView {
 pub struct BalanceRow {
     /// Ticket.
     pub ticket: String,
+    /// The site's time zone: the row's times are shown on its clock.
+    pub zone: units::Zone,
     /// Site.
     pub site: String,
     /// Tank.
@@ -248,6 +250,8 @@ pub struct GaugeLine {
 pub struct FindingLine {
     /// Tank.
     pub tank: String,
+    /// The site's time zone.
+    pub zone: units::Zone,
     /// The tank's id.
     pub tank_id: Option<i64>,
     /// What it is.

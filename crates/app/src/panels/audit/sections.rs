@@ -233,8 +233,8 @@ pub(super) fn findings_ui(ui: &mut Ui, a: &AuditView, out: &mut Vec<Action>) {
                 ui.label(RichText::new(&f.kind).color(style::CAUTION));
                 ui.label(format!(
                     "{} to {}",
-                    fmt::date_time(f.from_ms),
-                    fmt::date_time(f.to_ms)
+                    f.zone.text(f.from_ms),
+                    f.zone.text(f.to_ms)
                 ));
                 if let Some(id) = f.tank_id
                     && ui.small_button("Trend").clicked()
