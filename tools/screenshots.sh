@@ -1,8 +1,9 @@
 #!/usr/bin/env bash
 # Regenerates the README screenshots (assets/screenshots/*.png) from the real app under a private Xvfb.
-# Builds the binary (release, so the status bar's frame time is representative; PROFILE=debug for a
-# quicker build), writes a fictional demo database with the app's demo_db example, then opens each page
-# through CRYOLEDGER_OPEN and captures the window with the shared `shoot` tool.
+# Builds the binary (release; PROFILE=debug for a quicker build), writes the fictional demo fleet with
+# `cryoledger demo` (the one a new user's first start writes, its dates moved so its latest readings are
+# from today), then opens each page through CRYOLEDGER_OPEN and captures the window with the shared
+# `shoot` tool.
 # Usage: tools/screenshots.sh [SHOOT]   (SHOOT: path of the shoot tool; default ../shared/tools/shoot)
 set -euo pipefail
 cd "$(dirname "$0")/.."
@@ -13,11 +14,10 @@ trap 'rm -rf "$work"' EXIT
 db=$work/demo.db
 profile=${PROFILE:-release}
 if [[ $profile == release ]]; then cargo build -q --release -p cryoledger; else cargo build -q -p cryoledger; fi
-cargo run -q -p app --example demo_db -- "$db"
 bin=$CARGO_TARGET_DIR/$profile/cryoledger
-# The audit pages show the demo fleet of `cryoledger demo` (its planted faults).
-audit_db=$work/audit.db
-"$bin" demo --db "$audit_db" > /dev/null
+# every page shows the demo fleet of `cryoledger demo` (its planted faults: demo-data/README.md)
+"$bin" demo --db "$db" > /dev/null
+audit_db=$db
 # Keep eframe's remembered settings out of the user's data directory.
 export XDG_DATA_HOME=$work/data XDG_CONFIG_HOME=$work/config
 out=assets/screenshots
@@ -29,14 +29,14 @@ shot() { # NAME PAGE UNITS [DB] (retried: a private X server occasionally fails 
   done
   return 1
 }
-shot now tank:LF-N2-1:now si
-shot now-horizontal-us tank:LF-AR-1:now us
-shot now-open-finding tank:SW-AR-1:now si
-shot readings tank:LF-N2-1:readings:latest si
-shot deliveries tank:LF-N2-1:deliveries si
-shot trend tank:LF-N2-1:trend si
-shot trend-oxygen-us tank:CR-O2-1:trend us
-shot setup setup:LF-AR-1 si
+shot now tank:ASB-N2-1:now si
+shot now-horizontal-us tank:HLL-AR-15:now us
+shot now-open-finding tank:BH-CO2-4:now si
+shot readings tank:ASB-N2-1:readings:latest si
+shot deliveries tank:BH-CO2-4:deliveries si
+shot trend tank:ASB-N2-1:trend si
+shot trend-oxygen-us tank:EFF-O2-10:trend us
+shot setup setup:HLL-AR-15 si
 shot help help si
 # the audit runs in the background first: give it time
 WAIT=10 shot audit-fills audit si "$audit_db"

@@ -99,9 +99,11 @@ impl Core {
             done.store(d, Ordering::Relaxed);
             total.store(t, Ordering::Relaxed);
         };
+        // the audit page is built on the summary's thread from the page's settings now
+        let page = Some((build::audit_settings(&self.view.audit), self.view.units));
         let Some(path) = self.db_path.clone() else {
             self.view.fleet.as_of_ms = now;
-            let result = build::fleet_summary(&self.store, now, &mut progress, &cancel);
+            let result = build::fleet_summary(&self.store, now, &mut progress, &cancel, None);
             return self.install_fleet(result);
         };
         let spawned = std::thread::Builder::new()
@@ -109,7 +111,7 @@ impl Core {
             .spawn(move || {
                 let result = Store::open(&path)
                     .map_err(AppError::from)
-                    .and_then(|s| build::fleet_summary(&s, now, &mut progress, &cancel));
+                    .and_then(|s| build::fleet_summary(&s, now, &mut progress, &cancel, page));
                 // The receiver may be gone when a newer summary replaced this one.
                 let _ = tx.send(result);
             });
@@ -203,21 +205,34 @@ impl Core {
         match result {
             Ok(summary) => {
                 self.view.history_check = Some(summary.history);
-                self.view.fleet.sites = summary.sites;
-                self.view.audit = build::audit_view(
-                    &summary.audit,
-                    &self.view.fleet.sites,
-                    audit::AuditOptions::default().materiality_fraction,
-                    self.view.units,
-                    &self.view.audit,
-                );
-                self.fleet_audit = Some(summary.audit);
+                let old_sites = std::mem::replace(&mut self.view.fleet.sites, summary.sites);
+                // the page built on the summary's thread, unless its settings changed meanwhile
+                let current = build::audit_settings(&self.view.audit);
+                let new_page = match summary.audit_view {
+                    Some((v, settings, units))
+                        if settings == current && units == self.view.units =>
+                    {
+                        v
+                    }
+                    _ => build::audit_view(
+                        &summary.audit,
+                        &self.view.fleet.sites,
+                        audit::AuditOptions::default().materiality_fraction,
+                        self.view.units,
+                        &self.view.audit,
+                    ),
+                };
+                let old_page = std::mem::replace(&mut self.view.audit, new_page);
+                let old_audit = self.fleet_audit.replace(summary.audit);
+                // freeing the old fleet's pages takes milliseconds on a large fleet: not in a frame
+                let _ = std::thread::Builder::new()
+                    .name("free-old-audit".into())
+                    .spawn(move || drop((old_sites, old_page, old_audit)));
                 build::fleet_rows(&mut self.view.fleet);
                 // the open tank page's findings, verdicts and marks come from the fleet audit; its
                 // readings need no new evaluation
-                let units = self.view.units;
                 if let (Some(tv), Some(fa)) = (self.view.tank.as_mut(), self.fleet_audit.as_deref())
-                    && let Err(e) = build::apply_fleet_audit(tv, &self.store, fa, units)
+                    && let Err(e) = build::apply_fleet_audit(tv, &self.store, fa)
                 {
                     self.view.error = Some(e.to_string());
                 }

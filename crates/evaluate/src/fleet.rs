@@ -187,7 +187,18 @@ pub fn audit_tank(
     let t = repo.tank(tank)?;
     let readings = repo.readings(tank, None)?;
     let deliveries = repo.deliveries(Some(tank))?;
-    let input = tank_input(&t, &readings, &deliveries, &meters(repo)?, None)?;
+    audit_tank_records(&t, &readings, &deliveries, &meters(repo)?, options)
+}
+
+/// [`audit_tank`] of records already read (the window's tank page reads them once for both).
+pub fn audit_tank_records(
+    t: &TankRecord,
+    readings: &[store::Reading],
+    deliveries: &[Delivery],
+    meters: &Meters,
+    options: &AuditOptions,
+) -> Result<TankAudit, EvalError> {
+    let input = tank_input(t, readings, deliveries, meters, None)?;
     let opts = AuditOptions {
         keep_readings: true,
         ..options.clone()

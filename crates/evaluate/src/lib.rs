@@ -33,7 +33,9 @@ mod reading_check;
 
 pub use audit_input::{Meters, billed_kg, dp_resolution_u_pa, meters, tank_input};
 pub use engine::{conditions, contents_of, engine_tank, gauge, geometry, pressure_abs_pa};
-pub use fleet::{AuditRequest, OPEN_WINDOW_MS, audit_fleet, audit_tank, open_findings};
+pub use fleet::{
+    AuditRequest, OPEN_WINDOW_MS, audit_fleet, audit_tank, audit_tank_records, open_findings,
+};
 pub use reading_check::{ReadingChecker, check_reading_against_tank};
 
 /// Why stored records could not be evaluated. Each names its cause once; the cause's own words

@@ -88,8 +88,19 @@ impl Zone {
 
     /// The instant as the site's clock shows it: `YYYY-MM-DD HH:MM` and the zone's abbreviation.
     pub fn text(&self, ms: i64) -> String {
-        self.at(ms)
-            .map_or_else(String::new, |t| t.format("%Y-%m-%d %H:%M %Z").to_string())
+        use chrono::{Datelike, Timelike};
+        use chrono_tz::OffsetName;
+        self.at(ms).map_or_else(String::new, |t| {
+            let name = t.offset().abbreviation().unwrap_or("");
+            format!(
+                "{:04}-{:02}-{:02} {:02}:{:02} {name}",
+                t.year(),
+                t.month(),
+                t.day(),
+                t.hour(),
+                t.minute()
+            )
+        })
     }
 
     /// The day as the site's calendar shows it: `YYYY-MM-DD`.

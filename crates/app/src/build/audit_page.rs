@@ -306,6 +306,27 @@ pub fn audit_view(
     v
 }
 
+/// What of the audit page outlives a new audit (its filter, order, section, and the balance and
+/// gauge open), without its rows: a small copy to build the next page from on another thread.
+pub fn audit_settings(old: &AuditView) -> AuditView {
+    AuditView {
+        filter: old.filter.clone(),
+        sort: old.sort,
+        section: old.section,
+        open_ticket: old
+            .selected
+            .and_then(|i| old.rows.get(i))
+            .map(|r| r.ticket.clone())
+            .or_else(|| old.open_ticket.clone()),
+        open_gauge: old
+            .gauge_open
+            .and_then(|i| old.gauges.get(i))
+            .map(|g| g.tank.clone())
+            .or_else(|| old.open_gauge.clone()),
+        ..AuditView::default()
+    }
+}
+
 /// ms since the epoch of the start of a day, YYYY-MM-DD (UTC).
 fn day_ms(text: &str) -> Result<Option<i64>, String> {
     let t = text.trim();

@@ -15,6 +15,9 @@ pub struct FleetSummary {
     pub audit: Arc<FleetAudit>,
     /// The verify run over the hash chain.
     pub history: HistoryCheck,
+    /// The audit page built from it (on the summary's thread), with the settings and units it was
+    /// built for: the window installs it when they are still the page's.
+    pub audit_view: Option<(AuditView, AuditView, UnitSystem)>,
 }
 
 /// Verify the ledger's history (the same walk as `cryoledger verify`).
@@ -51,6 +54,7 @@ pub fn fleet_summary(
     now_ms: i64,
     progress: &mut dyn FnMut(usize, usize),
     cancel: &AtomicBool,
+    page: Option<(AuditView, UnitSystem)>,
 ) -> Result<FleetSummary, AppError> {
     let audit = evaluate::audit_fleet(repo, &evaluate::AuditRequest::default(), progress, cancel)?;
     let mut lines = Vec::new();
@@ -62,10 +66,22 @@ pub fn fleet_summary(
             fleet_tank(&t, latest.as_ref(), summary, &audit, now_ms),
         ));
     }
+    let sites = fleet_sites(repo, lines)?;
+    let audit_view = page.map(|(settings, units)| {
+        let v = super::audit_view(
+            &audit,
+            &sites,
+            audit::AuditOptions::default().materiality_fraction,
+            units,
+            &settings,
+        );
+        (v, settings, units)
+    });
     Ok(FleetSummary {
-        sites: fleet_sites(repo, lines)?,
+        sites,
         audit: Arc::new(audit),
         history: history_check(repo)?,
+        audit_view,
     })
 }
 

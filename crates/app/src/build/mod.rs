@@ -13,7 +13,7 @@ mod reading;
 mod tank_page;
 mod trend;
 
-pub use audit_page::{apply_filter, audit_view, finding_words, verdict_word};
+pub use audit_page::{apply_filter, audit_settings, audit_view, finding_words, verdict_word};
 pub use fleet::{FleetSummary, fleet_rows, fleet_sites, fleet_summary, history_check};
 pub use form_fill::{
     delivery_form_for, entry_instant, local_entry, new_delivery_form, new_reading_form,

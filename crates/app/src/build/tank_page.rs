@@ -51,7 +51,15 @@ pub fn tank_view(
     let readings = repo.readings(tank_id, None)?;
     let deliveries = repo.deliveries(Some(tank_id))?;
     let engine = evaluate::engine_tank(&t.spec).ok();
-    let history = evaluate::audit_tank(repo, tank_id, &audit::AuditOptions::default());
+    let history = evaluate::meters(repo).and_then(|m| {
+        evaluate::audit_tank_records(
+            &t,
+            &readings,
+            &deliveries,
+            &m,
+            &audit::AuditOptions::default(),
+        )
+    });
     let saturation: std::collections::HashMap<i64, f64> = history
         .as_ref()
         .map(|h| {
@@ -62,10 +70,9 @@ pub fn tank_view(
         })
         .unwrap_or_default();
     let sat = |r: &store::Reading| saturation.get(&r.entry.time.ms).copied();
-    let mut rows: Vec<ReadingRow> = readings
-        .iter()
-        .map(|r| reading_row(&t, engine.as_ref(), r, sat(r)))
-        .collect();
+    // every reading's contents with its GUM budget: the page's main cost, shared across the cores
+    let mut rows: Vec<ReadingRow> =
+        parallel_map(&readings, |r| reading_row(&t, engine.as_ref(), r, sat(r)));
     let s = &t.spec;
     let mut vessel = vessel(s).unwrap_or_default();
     let mut now = now_view(&t, engine.as_ref(), &readings, &rows, &mut vessel, sat);
@@ -282,7 +289,6 @@ pub fn apply_fleet_audit(
     tv: &mut TankView,
     repo: &dyn Repository,
     fa: &audit::FleetAudit,
-    units: UnitSystem,
 ) -> Result<(), StoreError> {
     let t = repo.tank(store::TankId(tv.id))?;
     // rows are newest first
@@ -306,8 +312,31 @@ pub fn apply_fleet_audit(
             .map(|b| (super::verdict_word(b.verdict), b.residual_percent));
     }
     tv.finding_spans = spans_of(&fa.findings, &tv.name);
-    let period = tv.trend.period_days;
-    tv.trend = trend(tv, units, tv.trend.quantity);
-    tv.trend.period_days = period;
+    // only the marks change: the series (thousands of points and their hover texts) stay
+    let mut marks = std::mem::take(&mut tv.trend);
+    super::trend::trend_marks(tv, &mut marks);
+    tv.trend = marks;
     Ok(())
+}
+
+/// `f` over `items` in order, the items split into one contiguous chunk per core.
+fn parallel_map<T: Sync, R: Send>(items: &[T], f: impl Fn(&T) -> R + Sync) -> Vec<R> {
+    let cores = std::thread::available_parallelism().map_or(1, std::num::NonZeroUsize::get);
+    if cores < 2 || items.len() < 256 {
+        return items.iter().map(&f).collect();
+    }
+    let chunk = items.len().div_ceil(cores);
+    std::thread::scope(|s| {
+        let f = &f;
+        let parts: Vec<_> = items
+            .chunks(chunk)
+            .map(|c| s.spawn(move || c.iter().map(f).collect::<Vec<R>>()))
+            .collect();
+        // a chunk that panicked: evaluate it here, where the panic is the caller's
+        parts
+            .into_iter()
+            .zip(items.chunks(chunk))
+            .flat_map(|(p, c)| p.join().unwrap_or_else(|_| c.iter().map(f).collect()))
+            .collect()
+    })
 }

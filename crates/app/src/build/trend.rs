@@ -28,6 +28,22 @@ pub fn quantity_unit(q: TrendQuantity, units: UnitSystem) -> &'static str {
     }
 }
 
+/// The trend's marks: each delivery with its verdict, and the findings' periods (what a new fleet
+/// audit changes; the series stay).
+pub fn trend_marks(view: &TankView, tv: &mut TrendView) {
+    let day = |ms: i64| ms as f64 / 86_400_000.0;
+    tv.deliveries = view
+        .deliveries
+        .iter()
+        .map(|dl| (day(dl.start_ms), dl.ticket.clone(), dl.verdict.map(|v| v.0)))
+        .collect();
+    tv.findings = view
+        .finding_spans
+        .iter()
+        .map(|(a, b, what)| (day(*a), day(*b), what.clone()))
+        .collect();
+}
+
 /// The trend's series in display units (cheap: no engine calls; rebuilt on a unit or quantity change).
 pub fn trend(view: &TankView, units: UnitSystem, q: TrendQuantity) -> TrendView {
     let unit = quantity_unit(q, units);
@@ -57,7 +73,7 @@ pub fn trend(view: &TankView, units: UnitSystem, q: TrendQuantity) -> TrendView 
         tv.band_lo.push(f.value - u);
         tv.band_hi.push(f.value + u);
         tv.hover.push(format!(
-            "{} UTC\nDP {} · {}\n{}: {} {unit}",
+            "{}\nDP {} · {}\n{}: {} {unit}",
             view.zone.text(r.time_ms),
             r.dp_text,
             r.pressure_text,
@@ -65,16 +81,7 @@ pub fn trend(view: &TankView, units: UnitSystem, q: TrendQuantity) -> TrendView 
             fmt::with_u(f.value, f.u)
         ));
     }
-    tv.deliveries = view
-        .deliveries
-        .iter()
-        .map(|dl| (day(dl.start_ms), dl.ticket.clone(), dl.verdict.map(|v| v.0)))
-        .collect();
-    tv.findings = view
-        .finding_spans
-        .iter()
-        .map(|(a, b, what)| (day(*a), day(*b), what.clone()))
-        .collect();
+    trend_marks(view, &mut tv);
     // Levels as the plotted quantity, with the latest densities.
     let latest = view
         .now

@@ -81,6 +81,22 @@ pub fn add_history_at(
     phase: i64,
     barg: f64,
 ) {
+    add_history_every(s, tank, end_ms, days, ticket_prefix, phase, barg, 1);
+}
+
+/// [`add_history_at`] read `per_day` times a day, evenly spaced from the morning reading; the extra
+/// readings follow the day's use toward the next morning's (or the last reading before a fill).
+#[allow(clippy::too_many_arguments)]
+pub fn add_history_every(
+    s: &mut Store,
+    tank: store::TankId,
+    end_ms: i64,
+    days: i64,
+    ticket_prefix: &str,
+    phase: i64,
+    barg: f64,
+    per_day: i64,
+) {
     let barometer = s.tank(tank).expect("tank").barometer_pa;
     let full = full_dp_inh2o(s, tank, barg);
     let t = s.tank(tank).expect("tank");
@@ -143,6 +159,37 @@ pub fn add_history_at(
         .check(barometer)
         .expect("fixture reading checks");
         readings.push(r);
+        // later readings of the day, toward tomorrow's morning level (before a fill: toward the
+        // reading just before it)
+        let next = if (day + 1).rem_euclid(33) == 0 {
+            fraction_on_day(day) - 0.004
+        } else {
+            fraction_on_day(day + 1)
+        };
+        for k in 1..per_day.max(1) {
+            if d + 1 == days {
+                break;
+            }
+            let share = k as f64 / per_day as f64;
+            // at most 18 h after the morning reading: before the next day's fill (at 04:00 when the
+            // morning reading is at 07:00)
+            let later = store::Stamp::from_ms(ms + (share * DAY_MS as f64) as i64).text;
+            let dp = format!(
+                "{:.1}",
+                full * (fraction_on_day(day) + share * (next - fraction_on_day(day)))
+            );
+            let r = ReadingFields {
+                time: &later,
+                dp: &dp,
+                dp_unit: "inH2O",
+                pressure: &p,
+                pressure_unit: "barg",
+                ..Default::default()
+            }
+            .check(barometer)
+            .expect("fixture reading checks");
+            readings.push(r);
+        }
         if day.rem_euclid(33) == 0 && d > 0 {
             // A reading just before the fill (the day's use so far), so the fill is bracketed.
             let before = store::Stamp::from_ms(ms - 4 * 3_600_000).text;
