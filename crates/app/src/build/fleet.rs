@@ -56,7 +56,14 @@ pub fn fleet_summary(
     cancel: &AtomicBool,
     page: Option<(AuditView, UnitSystem)>,
 ) -> Result<FleetSummary, AppError> {
-    let audit = evaluate::audit_fleet(repo, &evaluate::AuditRequest::default(), progress, cancel)?;
+    // one core is left to the window: on a 2-core machine the audit takes longer, the frames stay
+    // smooth
+    let cores = std::thread::available_parallelism().map_or(1, std::num::NonZeroUsize::get);
+    let req = evaluate::AuditRequest {
+        threads: cores.saturating_sub(1).max(1),
+        ..evaluate::AuditRequest::default()
+    };
+    let audit = evaluate::audit_fleet(repo, &req, progress, cancel)?;
     let mut lines = Vec::new();
     for t in repo.tanks()? {
         let summary = audit.tanks.iter().find(|s| s.tank == t.spec.name);

@@ -109,10 +109,14 @@ pub fn tank_view(
         (None, Ok(h)) => &h.balances,
         (None, Err(_)) => &[],
     };
+    let by_ticket: std::collections::HashMap<&str, &audit::Balance> = balances
+        .iter()
+        .filter(|b| b.tank == s.name)
+        .map(|b| (b.ticket.as_str(), b))
+        .collect();
     let verdict_of = |ticket: &str| {
-        balances
-            .iter()
-            .find(|b| b.ticket == ticket)
+        by_ticket
+            .get(ticket)
             .map(|b| (super::verdict_word(b.verdict), b.residual_percent))
     };
     let all_findings: &[audit::Finding] = match (fleet_audit, &history) {

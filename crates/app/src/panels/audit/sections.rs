@@ -146,6 +146,26 @@ fn gauge_plot(ui: &mut Ui, g: &crate::view::GaugeLine) {
         .legend(Legend::default())
         .x_axis_formatter(|m, _| fmt::date((m.value * 86_400_000.0) as i64))
         .y_axis_label("(gained + drawn) / billed (%)")
+        .label_formatter(|pos: &egui_plot::HoverPosition<'_>| {
+            let (name, at) = match pos {
+                egui_plot::HoverPosition::NearDataPoint {
+                    plot_name,
+                    position,
+                    ..
+                } => (*plot_name, position),
+                egui_plot::HoverPosition::Elsewhere { position, .. } => ("", position),
+            };
+            let lead = if name.is_empty() {
+                String::new()
+            } else {
+                format!("{name}\n")
+            };
+            Some(format!(
+                "{lead}{} (UTC day)\n(gained + drawn) / billed: {} %",
+                fmt::date((at.x * 86_400_000.0) as i64),
+                fmt::num(at.y, 2)
+            ))
+        })
         .show(ui, |p| {
             p.add(HLine::new("100 %", 100.0).color(style::GRID));
             for (k, v) in vehicles.iter().enumerate() {
