@@ -239,11 +239,6 @@ pub fn date(ms: i64) -> String {
     format!("{y:04}-{m:02}-{d:02}")
 }
 
-/// Milliseconds since the epoch as `YYYY-MM-DDTHH:MM:SSZ`, as the entry forms expect.
-pub fn rfc3339(ms: i64) -> String {
-    units::rfc3339_from_ms(ms)
-}
-
 /// Year, month, day, hour, minute (UTC) of an instant.
 fn civil(ms: i64) -> (i64, i64, i64, i64, i64) {
     let c = units::civil_from_ms(ms);
@@ -280,7 +275,6 @@ mod tests {
     fn dates_round_trip_known_instants() {
         // 2026-03-01T08:00:00Z is 1 772 352 000 s after the epoch (date arithmetic, no source needed).
         assert_eq!(date_time(1_772_352_000_000), "2026-03-01 08:00");
-        assert_eq!(rfc3339(0), "1970-01-01T00:00:00Z");
         assert_eq!(date(951_782_400_000), "2000-02-29");
     }
 

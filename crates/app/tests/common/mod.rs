@@ -138,6 +138,19 @@ pub fn add_history_every(
     };
     let supply_pa = supply_barg * 1e5 + barometer;
     let supply = format!("{supply_barg}");
+    // one fixture reading: its time, DP (inH2O) and tank pressure (barg) as typed
+    let entry = |time: &str, dp: &str, p: &str| {
+        ReadingFields {
+            time,
+            dp,
+            dp_unit: "inH2O",
+            pressure: p,
+            pressure_unit: "barg",
+            ..Default::default()
+        }
+        .check(barometer)
+        .expect("fixture reading checks")
+    };
     let mut readings = Vec::with_capacity(days as usize);
     for d in 0..days {
         let ms = end_ms - (days - 1 - d) * DAY_MS;
@@ -148,17 +161,7 @@ pub fn add_history_every(
         let dp = format!("{:.1}", full * fraction_on_day(day));
         let wave = (day as f64 * std::f64::consts::TAU / 47.0).sin();
         let p = format!("{:.2}", barg + 0.3 * wave + 0.04 * ((day * 31) % 5) as f64);
-        let r = ReadingFields {
-            time: &time,
-            dp: &dp,
-            dp_unit: "inH2O",
-            pressure: &p,
-            pressure_unit: "barg",
-            ..Default::default()
-        }
-        .check(barometer)
-        .expect("fixture reading checks");
-        readings.push(r);
+        readings.push(entry(&time, &dp, &p));
         // later readings of the day, toward tomorrow's morning level (before a fill: toward the
         // reading just before it)
         let next = if (day + 1).rem_euclid(33) == 0 {
@@ -178,17 +181,7 @@ pub fn add_history_every(
                 "{:.1}",
                 full * (fraction_on_day(day) + share * (next - fraction_on_day(day)))
             );
-            let r = ReadingFields {
-                time: &later,
-                dp: &dp,
-                dp_unit: "inH2O",
-                pressure: &p,
-                pressure_unit: "barg",
-                ..Default::default()
-            }
-            .check(barometer)
-            .expect("fixture reading checks");
-            readings.push(r);
+            readings.push(entry(&later, &dp, &p));
         }
         if day.rem_euclid(33) == 0 && d > 0 {
             // A reading just before the fill (the day's use so far), so the fill is bracketed.
@@ -201,17 +194,7 @@ pub fn add_history_every(
                     .round()
                     * 10.0
             );
-            let r = ReadingFields {
-                time: &before,
-                dp: &dp_before,
-                dp_unit: "inH2O",
-                pressure: &p,
-                pressure_unit: "barg",
-                ..Default::default()
-            }
-            .check(barometer)
-            .expect("fixture reading checks");
-            readings.push(r);
+            readings.push(entry(&before, &dp_before, &p));
             let start = store::Stamp::from_ms(ms - 3 * 3_600_000).text;
             let end = store::Stamp::from_ms(ms - 2 * 3_600_000).text;
             let ticket = format!("{ticket_prefix}-{day}");
