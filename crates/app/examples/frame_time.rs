@@ -187,10 +187,17 @@ fn main() {
         total.push(whole);
         own.push(app_ms);
     }
+    // the frames just after: the new audit page's first layouts
+    let after: Vec<(f64, f64)> = (0..3).map(|_| frame(&mut h)).collect();
     let frames = own.len();
+    let (worst_at, worst) = total
+        .iter()
+        .copied()
+        .enumerate()
+        .fold((0, 0.0_f64), |a, (i, x)| if x > a.1 { (i, x) } else { a });
+    let worst_own = own.get(worst_at).copied().unwrap_or(0.0);
     let (b_med, b_p95, _) = stats(own);
     let (bt_med, bt_p95, _) = stats(total.clone());
-    let worst = total.iter().copied().fold(0.0_f64, f64::max);
     println!(
         "audit page while the {tanks}-tank audit runs in the background ({frames} frames, {:.1} s):",
         started.elapsed().as_secs_f64()
@@ -198,6 +205,18 @@ fn main() {
     println!("  app logic+ui CPU: median {b_med:.2} ms, p95 {b_p95:.2} ms");
     println!(
         "  step + tessellation: median {bt_med:.2} ms, p95 {bt_p95:.2} ms, worst {worst:.2} ms"
+    );
+    println!(
+        "  the worst is frame {} of {frames} (the last installs the result); the app's own logic+ui in it: {worst_own:.2} ms",
+        worst_at + 1
+    );
+    println!(
+        "  the 3 frames after (step + tessellation, app): {}",
+        after
+            .iter()
+            .map(|(w, a)| format!("{w:.2}/{a:.2} ms"))
+            .collect::<Vec<_>>()
+            .join(", ")
     );
     drop(h);
     let _ = std::fs::remove_dir_all(&dir);

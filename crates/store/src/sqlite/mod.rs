@@ -163,6 +163,35 @@ pub(crate) fn site_with(
     Ok(id)
 }
 
+impl Store {
+    /// The one live tank a condition on `t` picks, with its strapping table (one query each, not the
+    /// whole fleet's).
+    fn one_tank(
+        &self,
+        condition: &str,
+        value: &dyn rusqlite::ToSql,
+    ) -> Result<Option<TankRecord>, StoreError> {
+        let sql = format!(
+            "SELECT {TANK_COLUMNS} FROM tanks t JOIN sites s ON s.id = t.site_id \
+             WHERE t.deleted_at IS NULL AND {condition}"
+        );
+        let Some(mut t) = self
+            .conn
+            .query_row(&sql, [value], tank_from_row)
+            .optional()?
+        else {
+            return Ok(None);
+        };
+        let mut sp = self.conn.prepare_cached(
+            "SELECT level_m, volume_m3 FROM strapping_points WHERE tank_id = ?1 ORDER BY level_m",
+        )?;
+        t.spec.strapping = sp
+            .query_map([t.id.0], |r| Ok((r.get::<_, f64>(0)?, r.get::<_, f64>(1)?)))?
+            .collect::<Result<_, _>>()?;
+        Ok(Some(t))
+    }
+}
+
 impl Repository for Store {
     fn schema_version(&self) -> Result<i64, StoreError> {
         Ok(self
@@ -265,16 +294,12 @@ impl Repository for Store {
     }
 
     fn tank(&self, id: TankId) -> Result<TankRecord, StoreError> {
-        self.tanks()?
-            .into_iter()
-            .find(|t| t.id == id)
+        self.one_tank("t.id = ?1", &id.0)?
             .ok_or_else(|| Self::not_found("tank", id))
     }
 
     fn tank_by_name(&self, name: &str) -> Result<TankRecord, StoreError> {
-        self.tanks()?
-            .into_iter()
-            .find(|t| t.spec.name == name)
+        self.one_tank("t.name = ?1", &name)?
             .ok_or_else(|| Self::not_found("tank", name))
     }
 
