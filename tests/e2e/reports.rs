@@ -54,6 +54,15 @@ fn figures(doc: &Html, field: &str) -> Vec<(f64, String)> {
         .collect()
 }
 
+/// The text of the first element carrying field `field` (a verdict or status word).
+fn word(doc: &Html, field: &str) -> String {
+    doc.select(&sel(&format!("[data-field={field}]")))
+        .next()
+        .unwrap_or_else(|| panic!("no {field}"))
+        .text()
+        .collect()
+}
+
 /// The printed text is the value rounded to `decimals` places (the report's stated rounding): read
 /// back, it is within half a step of the audit's figure.
 fn assert_printed(field: &str, printed: &str, json: f64, decimals: i32) {
@@ -119,13 +128,7 @@ fn fill_report_holds_the_audits_figures() {
         assert_eq!(*value, json, "{field}");
         assert_printed(field, printed, json, decimals);
     }
-    let verdict: String = doc
-        .select(&sel("[data-field=verdict]"))
-        .next()
-        .unwrap()
-        .text()
-        .collect();
-    assert_eq!(verdict, "short");
+    assert_eq!(word(&doc, "verdict"), "short");
     // the two readings used, before then after, with the liquid state assumed
     for (field, decimals) in [("total_mass_kg", 0), ("liquid_temperature_k", 2)] {
         let f = figures(&doc, field);
@@ -230,13 +233,7 @@ fn vehicle_report_holds_the_audits_figures() {
         assert_eq!(f[0].0, biased[field].as_f64().unwrap(), "{field}");
         assert_printed(field, &f[0].1, biased[field].as_f64().unwrap(), 2);
     }
-    let status: String = doc
-        .select(&sel("[data-field=status]"))
-        .next()
-        .unwrap()
-        .text()
-        .collect();
-    assert_eq!(status, "biased");
+    assert_eq!(word(&doc, "status"), "biased");
     // the listed fills: the vehicle's in [since, until), as the audit judged them from `since`
     let listed: Vec<&Value> = vs["fills"]
         .as_array()

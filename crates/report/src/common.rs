@@ -135,8 +135,8 @@ pub(crate) fn data_section(
             .map(|r| {
                 vec![
                     Cell::t(r.what.clone()),
-                    Cell::Plain(Figure::Mass, r.id as f64),
-                    Cell::Plain(Figure::Mass, r.revisions as f64),
+                    Cell::Plain(Figure::Count, r.id as f64),
+                    Cell::Plain(Figure::Count, r.revisions as f64),
                 ]
             })
             .collect();

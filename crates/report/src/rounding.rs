@@ -25,13 +25,15 @@ pub enum Figure {
     Probability,
     /// A coverage factor: to 0.1.
     Factor,
+    /// A count or a record id: a whole number.
+    Count,
 }
 
 impl Figure {
     /// Decimal places kept (probabilities keep significant figures instead).
     pub fn decimals(self) -> usize {
         match self {
-            Figure::Mass => 0,
+            Figure::Mass | Figure::Count => 0,
             Figure::MassRate
             | Figure::Days
             | Figure::Hours

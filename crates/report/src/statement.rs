@@ -462,7 +462,7 @@ pub fn statement(
 fn columns(r: &StatementRow) -> Vec<(&'static str, &'static str, Figure, f64)> {
     vec![
         ("Opening, kg", "opening_kg", Figure::Mass, r.opening_kg),
-        ("Fills", "fills", Figure::Mass, r.fills as f64),
+        ("Fills", "fills", Figure::Count, r.fills as f64),
         ("Billed, kg", "billed_kg", Figure::Mass, r.billed_kg),
         ("Gained, kg", "gained_kg", Figure::Mass, r.gained_kg),
         ("Use, kg", "use_kg", Figure::Mass, r.use_kg),

@@ -57,7 +57,7 @@ pub(crate) fn vehicle_section(
             ));
             doc.key_values(&[
                 ("Carrier", Cell::t(v.carrier.clone())),
-                ("Fills tested", Cell::Plain(Figure::Mass, v.fills as f64)),
+                ("Fills tested", Cell::Plain(Figure::Count, v.fills as f64)),
                 (
                     "Bias, % (negative: delivers short)",
                     Cell::on("bias_percent", Figure::Percent, v.bias_percent),
@@ -98,7 +98,7 @@ pub(crate) fn vehicle_section(
                 ),
                 (
                     "Fills judged short",
-                    Cell::Plain(Figure::Mass, v.short_fills as f64),
+                    Cell::Plain(Figure::Count, v.short_fills as f64),
                 ),
                 (
                     "Short fills expected of an honest vehicle, %",
@@ -193,11 +193,11 @@ pub(crate) fn vehicle_section(
     doc.key_values(&[
         (
             "Fills listed",
-            Cell::Plain(Figure::Mass, fills.len() as f64),
+            Cell::Plain(Figure::Count, fills.len() as f64),
         ),
         (
             "Of them judged (not inconclusive)",
-            Cell::Plain(Figure::Mass, judged.len() as f64),
+            Cell::Plain(Figure::Count, judged.len() as f64),
         ),
         (
             "Billed on the judged fills, kg",
