@@ -41,7 +41,7 @@ shot help help si
 # the audit runs in the background first: give it time
 WAIT=10 shot audit-fills audit si "$audit_db"
 WAIT=10 shot audit-balance audit:ticket:TK100056 si "$audit_db"
-WAIT=10 shot audit-vehicles audit:vehicles si "$audit_db"
+WAIT=10 shot audit-vehicles audit:vehicles:MC-T25 si "$audit_db"
 WAIT=10 shot audit-gauges audit:gauges:DSF-AR-7 si "$audit_db"
 # the import page checking files with one bad row (a DP typed as text on line 3 of the readings)
 imp=$work/import

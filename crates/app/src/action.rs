@@ -474,6 +474,9 @@ impl Core {
             Action::SelectGauge(i) => {
                 self.view.audit.gauge_open = i.filter(|&i| i < self.view.audit.gauges.len());
             }
+            Action::SelectVehicle(i) => {
+                self.view.audit.vehicle_open = i.filter(|&i| i < self.view.audit.vehicles.len());
+            }
             Action::SetDiagnostics(on) => self.view.diagnostics = on,
             Action::StopAudit => {
                 if let Some(job) = self.job.take() {

@@ -10,8 +10,9 @@
 //!
 //! Start-up options for screenshots and demos: `CRYOLEDGER_OPEN` opens a page
 //! (`tank:NAME[:now|readings|deliveries|trend]`, `audit[:fills|vehicles|gauges|findings]`,
-//! `audit:ticket:T` (that fill's balance open), `audit:gauges:TANK` (its fills plotted), `import`, `import:check:DIR` (DIR's tanks.csv,
-//! readings.csv and deliveries.csv checked), `tank:NAME:readings:latest` to open the latest
+//! `audit:ticket:T` (that fill's balance open), `audit:gauges:TANK` (its fills plotted),
+//! `audit:vehicles:VEHICLE` (its tank-adjusted fills plotted), `import`, `import:check:DIR` (DIR's
+//! tanks.csv, readings.csv and deliveries.csv checked), `tank:NAME:readings:latest` to open the latest
 //! reading for editing, `setup:NAME`, `setup:new`, `help`), and
 //! `CRYOLEDGER_UNITS` (`si` or `us`) sets the display units for this session.
 #![deny(missing_docs)]
@@ -195,6 +196,10 @@ impl CryoApp {
                     (Some(AuditSection::Gauges), _) if !tab.is_empty() && tab != "now" => {
                         self.push(Action::ShowAuditSection(AuditSection::Gauges));
                         self.core.view.audit.open_gauge = Some(tab.to_owned());
+                    }
+                    (Some(AuditSection::Vehicles), _) if !tab.is_empty() && tab != "now" => {
+                        self.push(Action::ShowAuditSection(AuditSection::Vehicles));
+                        self.core.view.audit.open_vehicle = Some(tab.to_owned());
                     }
                     (Some(s), _) => self.push(Action::ShowAuditSection(s)),
                     (None, "ticket") => {

@@ -11,7 +11,7 @@ use crate::effects::{Row, groups, two_way};
 use crate::gauge_faults::{self, FaultTest, Point};
 use crate::records::{Balance, Finding, Forecast, GaugeStep, TankAudit};
 use crate::stats::holm_adjust;
-pub use crate::vehicles::{VehicleFinding, VehicleStatus};
+pub use crate::vehicles::{AdjustedFill, VehicleFinding, VehicleStatus};
 
 const YEAR_MS: f64 = 365.0 * 86_400_000.0;
 
@@ -226,6 +226,7 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
     // the fleet's levels and vehicle effects, tanks with a gauge fault left out
     let kept: Vec<Row> = plain.iter().copied().filter(|r| !faulty[r.0]).collect();
     let kept_u: Vec<f64> = rows.iter().filter(|r| !faulty[r.0]).map(|r| r.3).collect();
+    let kept_at: Vec<usize> = rows.iter().filter(|r| !faulty[r.0]).map(|r| r.5).collect();
     let kept_fit = two_way(&kept, tanks.len(), vehicle_names.len());
     let kept_of_vehicle = groups(kept.iter().map(|r| r.1), vehicle_names.len());
 
@@ -290,6 +291,7 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
         &tanks,
         &kept,
         &kept_u,
+        &kept_at,
         &kept_fit,
         opts,
     );

@@ -87,7 +87,8 @@ mod vehicles;
 use serde::Serialize;
 
 pub use fleet::{
-    FleetAudit, GaugeFinding, GaugeStatus, TankSummary, VehicleFinding, VehicleStatus, audit_fleet,
+    AdjustedFill, FleetAudit, GaugeFinding, GaugeStatus, TankSummary, VehicleFinding,
+    VehicleStatus, audit_fleet,
 };
 pub use records::{
     Balance, BracketReading, Finding, FindingKind, Forecast, GaugeScale, GaugeStep, Jump,

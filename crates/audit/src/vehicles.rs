@@ -75,6 +75,26 @@ pub struct VehicleFinding {
     pub short_count_p_value: Option<f64>,
     /// The test used.
     pub test: &'static str,
+    /// Each compared fill: its (gained + drawn) / billed less its tank's level from the other
+    /// vehicles' fills, the points whose weighted mean is the bias. Left out of the JSON, whose
+    /// `fills` already hold every fill.
+    #[serde(skip)]
+    pub adjusted: Vec<AdjustedFill>,
+}
+
+/// One of a vehicle's fills against the level the other vehicles show at its tank.
+#[derive(Debug, Clone, PartialEq)]
+pub struct AdjustedFill {
+    /// Ticket number.
+    pub ticket: String,
+    /// Tank name.
+    pub tank: String,
+    /// Start of the fill, ms.
+    pub start_ms: i64,
+    /// (gained + drawn) / billed less the tank's level from the other vehicles' fills, %.
+    pub percent: f64,
+    /// Its standard uncertainty, %.
+    pub u_percent: f64,
 }
 
 const VEHICLE_TEST: &str = "weighted mean of the ratios less their tank's level from the other vehicles' fills (levels and vehicle effects fitted jointly by Huber-weighted least squares), Student's t; and a binomial test of the count of short verdicts; Bonferroni over the two, Holm across vehicles";
@@ -96,13 +116,16 @@ fn normal_tail(k: f64) -> f64 {
 }
 
 /// Test every vehicle. `kept` are the fills at tanks without a gauge fault, `kept_u` their ratios'
-/// standard uncertainties, `fit` the levels and effects fitted from them.
+/// standard uncertainties, `kept_at` each one's balance (its index in its tank's balances), `fit`
+/// the levels and effects fitted from them.
+#[allow(clippy::too_many_arguments)]
 pub(crate) fn test(
     names: &[(String, String)],
     index: &BTreeMap<&str, usize>,
     tanks: &[TankAudit],
     kept: &[Row],
     kept_u: &[f64],
+    kept_at: &[usize],
     fit: &Effects,
     opts: &AuditOptions,
 ) -> Vec<VehicleFinding> {
@@ -158,13 +181,26 @@ pub(crate) fn test(
     for (vi, (name, carrier)) in names.iter().enumerate() {
         // (ratio less its tank's level from the other vehicles' fills, weight 1/u² of the ratio);
         // fills at tanks no other vehicle filled often enough have nothing to compare with
+        let mut adjusted = Vec::new();
         let d: Vec<(f64, f64)> = kept_of_vehicle[vi]
             .iter()
             .filter_map(|&k| {
                 let level = level_without(kept[k].0, vi)?;
-                Some((kept[k].2 - level, 1.0 / kept_u.get(k)?.max(1e-4).powi(2)))
+                let u = kept_u.get(k)?.max(1e-4);
+                let t = tanks.get(kept[k].0)?;
+                if let Some(b) = kept_at.get(k).and_then(|&bi| t.balances.get(bi)) {
+                    adjusted.push(AdjustedFill {
+                        ticket: b.ticket.clone(),
+                        tank: t.tank.clone(),
+                        start_ms: b.start_ms,
+                        percent: 100.0 * (kept[k].2 - level),
+                        u_percent: 100.0 * u,
+                    });
+                }
+                Some((kept[k].2 - level, 1.0 / u.powi(2)))
             })
             .collect();
+        adjusted.sort_by_key(|a| a.start_ms);
         let verdicts = std::mem::take(&mut verdict_counts[vi]);
         let (short, judged_n) = judged(&verdicts);
         let mut f = VehicleFinding {
@@ -185,6 +221,7 @@ pub(crate) fn test(
             short_rate_expected: expected,
             short_count_p_value: None,
             test: VEHICLE_TEST,
+            adjusted,
         };
         let n = d.len();
         if n >= opts.vehicle_min_fills.max(2) {

@@ -145,7 +145,29 @@ fn scenario(short: f64) {
             horizontal * 2 >= fleet.tanks.len(),
             "half the tanks horizontal"
         );
-        let f = figures(&fleet, &common::run(&fleet, &with));
+        let audited = common::run(&fleet, &with);
+        let f = figures(&fleet, &audited);
+        // each vehicle's per-fill points are what its bias is the weighted mean of (an identity of
+        // the weighted mean, common practice, no source): one point per compared fill, and their
+        // 1/u²-weighted mean within 1e-9 % of the bias
+        for v in &audited.vehicles {
+            let Some(bias) = v.bias_percent else { continue };
+            let sw: f64 = v.adjusted.iter().map(|a| a.u_percent.powi(-2)).sum();
+            let mean = v
+                .adjusted
+                .iter()
+                .map(|a| a.percent * a.u_percent.powi(-2))
+                .sum::<f64>()
+                / sw;
+            if v.adjusted.len() != v.fills || (mean - bias).abs() > 1e-9 {
+                failures.push(format!(
+                    "seed {seed}: vehicle {} has {} points for {} fills, mean {mean} against bias {bias}",
+                    v.vehicle,
+                    v.adjusted.len(),
+                    v.fills
+                ));
+            }
+        }
         print(
             &format!("seed {seed}, {:.1} % short, thermal history", 100.0 * short),
             &f,

@@ -74,6 +74,9 @@ pub enum Action {
     SelectBalance(Option<usize>),
     /// Plot a gauge's fills on the audit page (an index into its gauges; None: close).
     SelectGauge(Option<usize>),
+    /// Plot a vehicle's tank-adjusted fills on the audit page (an index into its vehicles; None:
+    /// close).
+    SelectVehicle(Option<usize>),
     /// Show or hide the frame and page-build timings in the status bar.
     SetDiagnostics(bool),
     /// Stop the audit running in the background.

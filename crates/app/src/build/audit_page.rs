@@ -208,6 +208,11 @@ pub fn audit_view(
             short_fills: v.short_fills,
             p_adjusted: v.p_adjusted,
             tolerance_percent: v.legal_tolerance_percent,
+            points: v
+                .adjusted
+                .iter()
+                .map(|a| (a.start_ms as f64 / DAY_MS, a.percent, a.tank.clone()))
+                .collect(),
         })
         .collect();
     // each tank's fills, grouped once (a fleet has thousands of tanks)
@@ -284,6 +289,8 @@ pub fn audit_view(
         section: old.section,
         gauge_open: None,
         open_gauge: None,
+        vehicle_open: None,
+        open_vehicle: None,
         vehicles,
         gauges,
         findings,
@@ -302,6 +309,12 @@ pub fn audit_view(
         .map(|g| g.tank.clone())
         .or_else(|| old.open_gauge.clone());
     v.gauge_open = gauge.and_then(|t| v.gauges.iter().position(|g| g.tank == t));
+    let vehicle = old
+        .vehicle_open
+        .and_then(|i| old.vehicles.get(i))
+        .map(|g| g.vehicle.clone())
+        .or_else(|| old.open_vehicle.clone());
+    v.vehicle_open = vehicle.and_then(|n| v.vehicles.iter().position(|g| g.vehicle == n));
     apply_filter(&mut v, units);
     v
 }
@@ -323,6 +336,11 @@ pub fn audit_settings(old: &AuditView) -> AuditView {
             .and_then(|i| old.gauges.get(i))
             .map(|g| g.tank.clone())
             .or_else(|| old.open_gauge.clone()),
+        open_vehicle: old
+            .vehicle_open
+            .and_then(|i| old.vehicles.get(i))
+            .map(|g| g.vehicle.clone())
+            .or_else(|| old.open_vehicle.clone()),
         ..AuditView::default()
     }
 }

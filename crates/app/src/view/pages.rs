@@ -218,6 +218,9 @@ pub struct VehicleLine {
     pub p_adjusted: Option<f64>,
     /// The legal tolerance, %.
     pub tolerance_percent: f64,
+    /// Each compared fill against its tank's level from the other vehicles' fills, %: (days since
+    /// the epoch, adjusted ratio less 100 %, tank).
+    pub points: Vec<(f64, f64, String)>,
 }
 
 /// One gauge's line.
@@ -297,6 +300,10 @@ pub struct AuditView {
     pub gauge_open: Option<usize>,
     /// A tank whose gauge to plot once the audit is in (start-up option).
     pub open_gauge: Option<String>,
+    /// The vehicle whose fills are plotted (index into `vehicles`).
+    pub vehicle_open: Option<usize>,
+    /// A vehicle whose fills to plot once the audit is in (start-up option).
+    pub open_vehicle: Option<String>,
     /// Findings between fills.
     pub findings: Vec<FindingLine>,
     /// True when the user stopped the audit before it finished.

@@ -12,7 +12,8 @@ pub(super) fn vehicles_ui(ui: &mut Ui, a: &AuditView, out: &mut Vec<Action>) {
     ui.label(
         RichText::new(
             "Each vehicle's fills against the level the other vehicles show at the same tanks. Bias and \
-             95 % interval, %; the shaded band is the legal tolerance for such meters.",
+             95 % interval, %; the shaded band is the legal tolerance for such meters. Click a vehicle \
+             to plot its fills.",
         )
         .color(style::MUTED),
     );
@@ -24,6 +25,10 @@ pub(super) fn vehicles_ui(ui: &mut Ui, a: &AuditView, out: &mut Vec<Action>) {
         .fold(1.0_f64, f64::max)
         * 1.15;
     egui::ScrollArea::vertical().show(ui, |ui| {
+        if let Some(v) = a.vehicle_open.and_then(|i| a.vehicles.get(i)) {
+            vehicle_plot(ui, v);
+            ui.add_space(8.0);
+        }
         egui::Grid::new("vehicles")
             .striped(true)
             .num_columns(8)
@@ -41,8 +46,15 @@ pub(super) fn vehicles_ui(ui: &mut Ui, a: &AuditView, out: &mut Vec<Action>) {
                     ui.label(RichText::new(h).color(style::MUTED));
                 }
                 ui.end_row();
-                for v in &a.vehicles {
-                    ui.label(&v.vehicle);
+                for (i, v) in a.vehicles.iter().enumerate() {
+                    let open = a.vehicle_open == Some(i);
+                    if ui
+                        .selectable_label(open, &v.vehicle)
+                        .on_hover_text("Plot this vehicle's fills against its tanks' levels")
+                        .clicked()
+                    {
+                        out.push(Action::SelectVehicle(if open { None } else { Some(i) }));
+                    }
                     ui.label(&v.carrier);
                     let ink = if v.flagged { style::ERROR } else { style::INK };
                     ui.label(RichText::new(&v.status).color(ink).strong());
@@ -101,6 +113,94 @@ pub(super) fn vehicles_ui(ui: &mut Ui, a: &AuditView, out: &mut Vec<Action>) {
                 }
             });
     });
+}
+
+/// One vehicle's fills: each one's (gained + drawn) / billed less its tank's level from the other
+/// vehicles' fills, over time, with the bias and its 95 % interval and the legal tolerance shaded.
+fn vehicle_plot(ui: &mut Ui, v: &crate::view::VehicleLine) {
+    use egui_plot::{HLine, Line, Plot, Points, Polygon};
+    ui.label(
+        RichText::new(format!(
+            "{}: each fill against its tank's level from the other vehicles' fills, %; {}",
+            v.vehicle,
+            match v.bias {
+                Some((b, l, h)) => format!(
+                    "bias {} % (95 % interval {} to {}), legal tolerance ±{} % shaded",
+                    fmt::fig(Figure::Percent, b),
+                    fmt::fig(Figure::Percent, l),
+                    fmt::fig(Figure::Percent, h),
+                    fmt::num(v.tolerance_percent, 1)
+                ),
+                None => "too few fills to estimate a bias".into(),
+            }
+        ))
+        .strong(),
+    );
+    let (x0, x1) = v
+        .points
+        .iter()
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), p| {
+            (a.min(p.0), b.max(p.0))
+        });
+    let (x0, x1) = if x0.is_finite() {
+        (x0 - 5.0, x1 + 5.0)
+    } else {
+        (0.0, 1.0)
+    };
+    let band = |lo: f64, hi: f64| vec![[x0, lo], [x1, lo], [x1, hi], [x0, hi]];
+    Plot::new(("vehicle_plot", v.vehicle.as_str()))
+        .height(260.0)
+        .x_axis_formatter(|m, _| fmt::date((m.value * 86_400_000.0) as i64))
+        .y_axis_label("against the tank's level (%)")
+        .label_formatter(|pos: &egui_plot::HoverPosition<'_>| {
+            let (tank, at) = match pos {
+                egui_plot::HoverPosition::NearDataPoint {
+                    plot_name: "fills",
+                    position,
+                    index,
+                } => (
+                    v.points
+                        .get(*index)
+                        .map_or(String::new(), |p| format!("tank {}\n", p.2)),
+                    position,
+                ),
+                egui_plot::HoverPosition::NearDataPoint { position, .. }
+                | egui_plot::HoverPosition::Elsewhere { position, .. } => (String::new(), position),
+            };
+            Some(format!(
+                "{tank}{} (UTC day)\nagainst the tank's level: {} %",
+                fmt::date((at.x * 86_400_000.0) as i64),
+                fmt::num(at.y, 2)
+            ))
+        })
+        .show(ui, |p| {
+            let tol = v.tolerance_percent;
+            p.add(
+                Polygon::new("legal tolerance", band(-tol, tol))
+                    .fill_color(style::BAND)
+                    .stroke(Stroke::NONE),
+            );
+            p.add(HLine::new("0 %", 0.0).color(style::GRID));
+            let ink = if v.flagged { style::ERROR } else { style::INK };
+            if let Some((b, l, h)) = v.bias {
+                p.add(
+                    Polygon::new("95 % interval", band(l, h))
+                        .fill_color(ink.gamma_multiply(0.25))
+                        .stroke(Stroke::NONE),
+                );
+                p.line(
+                    Line::new("bias", band(b, b)[..2].to_vec())
+                        .color(ink)
+                        .width(2.0),
+                );
+            }
+            let pts: Vec<[f64; 2]> = v.points.iter().map(|x| [x.0, x.1]).collect();
+            p.points(
+                Points::new("fills", pts)
+                    .radius(3.0)
+                    .color(VEHICLE_COLOURS[0]),
+            );
+        });
 }
 
 /// A p-value as read: three decimals, or powers of ten below 0.001.
