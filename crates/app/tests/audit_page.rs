@@ -13,31 +13,11 @@ use app::egui::Role;
 use app::view::{AuditSection, Page, VerdictWord};
 use egui_kittest::{Harness, kittest::Queryable};
 use std::path::PathBuf;
-use store::{ImportOptions, ImportSource, ImportSources, Repository, Store};
+use store::Store;
 
-/// The demo fleet of `cryoledger demo` (demo-data/, its planted faults in demo-data/README.md).
-fn demo_store() -> Store {
-    let mut s = Store::open_in_memory().expect("store");
-    s.import(
-        ImportSources {
-            tanks: Some(ImportSource::text(
-                "tanks.csv",
-                include_str!("../../../demo-data/tanks.csv"),
-            )),
-            readings: Some(ImportSource::text(
-                "readings.csv",
-                include_str!("../../../demo-data/readings.csv"),
-            )),
-            deliveries: Some(ImportSource::text(
-                "deliveries.csv",
-                include_str!("../../../demo-data/deliveries.csv"),
-            )),
-        },
-        &ImportOptions::default(),
-    )
-    .expect("demo import");
-    s
-}
+mod common;
+
+use common::demo_store;
 
 fn harness() -> Harness<'static, CryoApp> {
     let mut app = CryoApp::new(demo_store(), PathBuf::from(":memory:"));

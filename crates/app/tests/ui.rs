@@ -1,6 +1,7 @@
 //! Headless tests that drive the real app with egui_kittest: select a tank, enter readings (valid and
 //! invalid), add a delivery, switch units, edit a reading and find the old value in its history, and
-//! create a tank in Tank setup. Assertions read the store and the labels shown.
+//! create a tank in Tank setup. Assertions read the store and the labels shown. Every test runs on
+//! the demo fleet of `cryoledger demo` (demo-data/), the one a new user's first start writes.
 
 #![allow(clippy::expect_used)] // helpers of tests: a failure to set up is a test failure
 
@@ -27,6 +28,32 @@ fn tank_id(h: &Harness<'_, CryoApp>, name: &str) -> store::TankId {
     h.state().repository().tank_by_name(name).expect("tank").id
 }
 
+/// A time as the window shows it: on the tank's site clock.
+fn shown(h: &Harness<'_, CryoApp>, id: store::TankId, ms: i64) -> String {
+    let t = h.state().repository().tank(id).expect("tank");
+    store::zone_of(t.time_zone.as_deref()).text(ms)
+}
+
+/// The tank's newest reading (the log lists the newest first, in view when the tab opens).
+fn newest(h: &Harness<'_, CryoApp>, id: store::TankId) -> store::Reading {
+    h.state()
+        .repository()
+        .readings(id, None)
+        .expect("readings")
+        .last()
+        .cloned()
+        .expect("a reading")
+}
+
+/// The demo fleet's readings of one tank in demo-data/readings.csv (counted from the file, not
+/// through the store).
+fn demo_readings_of(tank: &str) -> usize {
+    include_str!("../../../demo-data/readings.csv")
+        .lines()
+        .filter(|l| l.split(',').next() == Some(tank))
+        .count()
+}
+
 fn select(h: &mut Harness<'_, CryoApp>, name: &str) {
     h.get_by_label(name).click();
     h.run();
@@ -50,12 +77,13 @@ fn type_into(h: &mut Harness<'_, CryoApp>, label: &str, text: &str) {
 
 #[test]
 fn clicking_a_tank_in_the_fleet_list_opens_its_page() {
-    let mut h = harness(common::small_fleet(10));
-    select(&mut h, "LF-AR-1");
+    let mut h = harness(common::demo_store());
+    select(&mut h, "HLL-AR-15");
     let view = h.state().view();
     let t = view.tank.as_ref().expect("a tank is selected");
-    assert_eq!(t.name, "LF-AR-1");
-    assert_eq!(t.readings.len(), 10);
+    assert_eq!(t.name, "HLL-AR-15");
+    assert!(demo_readings_of("HLL-AR-15") > 300);
+    assert_eq!(t.readings.len(), demo_readings_of("HLL-AR-15"));
     assert_eq!(view.page, Page::Tank);
     // The Now tab shows the big figures.
     assert!(h.query_by_label("Total mass").is_some());
@@ -64,9 +92,9 @@ fn clicking_a_tank_in_the_fleet_list_opens_its_page() {
 
 #[test]
 fn a_valid_reading_is_saved_shown_first_and_changes_the_contents() {
-    let mut h = harness(common::small_fleet(5));
-    select(&mut h, "LF-N2-1");
-    let id = tank_id(&h, "LF-N2-1");
+    let mut h = harness(common::demo_store());
+    select(&mut h, "ASB-N2-1");
+    let id = tank_id(&h, "ASB-N2-1");
     let before_mass = h
         .state()
         .view()
@@ -90,12 +118,12 @@ fn a_valid_reading_is_saved_shown_first_and_changes_the_contents() {
     h.get_by_label("Save reading").click();
     h.run();
     let stored = h.state().repository().readings(id, None).expect("readings");
-    assert_eq!(stored.len(), 6);
+    assert_eq!(stored.len(), demo_readings_of("ASB-N2-1") + 1);
     let newest = stored.last().expect("newest");
     assert_eq!(newest.entry.dp.value, 30.0);
     // Shown first in the table, and the Now figures follow it.
     assert!(
-        h.query_by_label(&units::Zone::UTC.text(newest.entry.time.ms))
+        h.query_by_label(&shown(&h, id, newest.entry.time.ms))
             .is_some()
     );
     let t = h.state().view().tank.as_ref().expect("tank");
@@ -116,9 +144,9 @@ fn a_valid_reading_is_saved_shown_first_and_changes_the_contents() {
 
 #[test]
 fn an_invalid_dp_shows_a_message_at_the_field_and_nothing_is_saved() {
-    let mut h = harness(common::small_fleet(3));
-    select(&mut h, "LF-N2-1");
-    let id = tank_id(&h, "LF-N2-1");
+    let mut h = harness(common::demo_store());
+    select(&mut h, "ASB-N2-1");
+    let id = tank_id(&h, "ASB-N2-1");
     tab(&mut h, "Readings");
     type_into(&mut h, "DP", "abc");
     type_into(&mut h, "Tank pressure", "11");
@@ -132,7 +160,7 @@ fn an_invalid_dp_shows_a_message_at_the_field_and_nothing_is_saved() {
             .readings(id, None)
             .expect("readings")
             .len(),
-        3
+        demo_readings_of("ASB-N2-1")
     );
     // A DP beyond a full tank is refused too, with the full-tank figure in the message.
     type_into(&mut h, "DP", "2000");
@@ -145,15 +173,15 @@ fn an_invalid_dp_shows_a_message_at_the_field_and_nothing_is_saved() {
             .readings(id, None)
             .expect("readings")
             .len(),
-        3
+        demo_readings_of("ASB-N2-1")
     );
 }
 
 #[test]
 fn a_delivery_is_added_and_listed() {
-    let mut h = harness(common::small_fleet(3));
-    select(&mut h, "CR-O2-1");
-    let id = tank_id(&h, "CR-O2-1");
+    let mut h = harness(common::demo_store());
+    select(&mut h, "ASB-O2-2");
+    let id = tank_id(&h, "ASB-O2-2");
     let before = h
         .state()
         .repository()
@@ -188,8 +216,8 @@ fn a_delivery_is_added_and_listed() {
 
 #[test]
 fn switching_units_changes_the_figures_and_is_remembered() {
-    let mut h = harness(common::small_fleet(3));
-    select(&mut h, "LF-N2-1");
+    let mut h = harness(common::demo_store());
+    select(&mut h, "ASB-N2-1");
     assert!(h.query_by_label("kg").is_some());
     h.get_by_label("US customary").click();
     h.run();
@@ -214,14 +242,13 @@ fn switching_units_changes_the_figures_and_is_remembered() {
 
 #[test]
 fn an_edited_reading_keeps_its_old_value_in_the_history() {
-    let mut h = harness(common::small_fleet(4));
-    select(&mut h, "LF-N2-1");
-    let id = tank_id(&h, "LF-N2-1");
+    let mut h = harness(common::demo_store());
+    select(&mut h, "ASB-N2-1");
+    let id = tank_id(&h, "ASB-N2-1");
     tab(&mut h, "Readings");
-    let first = h.state().repository().readings(id, None).expect("readings")[0].clone();
+    let first = newest(&h, id);
     let old_dp = first.entry.dp.value;
-    h.get_by_label(&units::Zone::UTC.text(first.entry.time.ms))
-        .click();
+    h.get_by_label(&shown(&h, id, first.entry.time.ms)).click();
     h.run();
     assert_eq!(
         h.state().view().reading_editor.form.editing,
@@ -275,7 +302,7 @@ fn an_edited_reading_keeps_its_old_value_in_the_history() {
 
 #[test]
 fn tank_setup_creates_a_tank_with_a_live_full_tank_dp() {
-    let mut h = harness(common::small_fleet(2));
+    let mut h = harness(common::demo_store());
     h.get_by_label("New tank").click();
     h.run();
     assert_eq!(h.state().view().page, Page::Setup);
@@ -302,18 +329,18 @@ fn tank_setup_creates_a_tank_with_a_live_full_tank_dp() {
 
 #[test]
 fn the_fleet_list_search_filters_tanks() {
-    let mut h = harness(common::small_fleet(2));
+    let mut h = harness(common::demo_store());
     type_into(&mut h, "Search fleet", "argon");
-    assert!(h.query_by_label("LF-AR-1").is_some());
-    assert!(h.query_by_label("LF-N2-1").is_none());
-    assert!(h.query_by_label("CR-O2-1").is_none());
+    assert!(h.query_by_label("DSF-AR-7").is_some());
+    assert!(h.query_by_label("ASB-N2-1").is_none());
+    assert!(h.query_by_label("ASB-O2-2").is_none());
 }
 
 #[test]
 fn an_edited_delivery_keeps_its_history_and_a_short_fill_marks_the_tank() {
-    let mut h = harness(common::small_fleet(40));
-    select(&mut h, "LF-N2-1");
-    let id = tank_id(&h, "LF-N2-1");
+    let mut h = harness(common::demo_store());
+    select(&mut h, "ASB-N2-1");
+    let id = tank_id(&h, "ASB-N2-1");
     assert!(
         !h.state()
             .view()
@@ -323,7 +350,7 @@ fn an_edited_delivery_keeps_its_history_and_a_short_fill_marks_the_tank() {
             .attention
             .iter()
             .any(|a| matches!(a, Attention::OpenFinding(_))),
-        "the honest fixture has no open finding"
+        "ASB-N2-1 has no open finding in the demo (demo-data/README.md: no fault planted there)"
     );
     tab(&mut h, "Deliveries");
     let d = h
@@ -333,13 +360,13 @@ fn an_edited_delivery_keeps_its_history_and_a_short_fill_marks_the_tank() {
         .expect("deliveries")
         .last()
         .cloned()
-        .expect("a fill in 40 days");
+        .expect("a fill in the demo year");
     let billed = d.entry.quantity.value;
     h.get_by_label(&d.entry.ticket).click();
     h.run();
     assert_eq!(h.state().view().delivery_editor.form.editing, Some(d.id.0));
     // Billed 6 % more than the tank gained: the audit must call this fill short (its limit is the
-    // larger of 2 standard uncertainties and 1 % of the ticket; the fixture's fills are honest).
+    // larger of 2 standard uncertainties and 1 % of the ticket; its last fill, by BH-T21, is honest in the demo).
     type_into(&mut h, "Quantity", &format!("{}", billed * 1.06));
     type_into(
         &mut h,
@@ -387,20 +414,12 @@ fn an_edited_delivery_keeps_its_history_and_a_short_fill_marks_the_tank() {
 
 #[test]
 fn a_deleted_reading_leaves_the_log_and_keeps_its_history() {
-    let mut h = harness(common::small_fleet(4));
-    select(&mut h, "LF-N2-1");
-    let id = tank_id(&h, "LF-N2-1");
+    let mut h = harness(common::demo_store());
+    select(&mut h, "ASB-N2-1");
+    let id = tank_id(&h, "ASB-N2-1");
     tab(&mut h, "Readings");
-    let last = h
-        .state()
-        .repository()
-        .readings(id, None)
-        .expect("readings")
-        .last()
-        .cloned()
-        .expect("reading");
-    h.get_by_label(&units::Zone::UTC.text(last.entry.time.ms))
-        .click();
+    let last = newest(&h, id);
+    h.get_by_label(&shown(&h, id, last.entry.time.ms)).click();
     h.run();
     // Without a reason the delete button does nothing.
     h.get_by_label("Delete reading").click();
@@ -411,7 +430,7 @@ fn a_deleted_reading_leaves_the_log_and_keeps_its_history() {
             .readings(id, None)
             .expect("readings")
             .len(),
-        4
+        demo_readings_of("ASB-N2-1")
     );
     type_into(
         &mut h,
@@ -426,7 +445,7 @@ fn a_deleted_reading_leaves_the_log_and_keeps_its_history() {
             .readings(id, None)
             .expect("readings")
             .len(),
-        3
+        demo_readings_of("ASB-N2-1") - 1
     );
     let revs = h
         .state()
@@ -436,18 +455,18 @@ fn a_deleted_reading_leaves_the_log_and_keeps_its_history() {
     assert_eq!(revs.len(), 1);
     assert_eq!(revs[0].action.as_str(), "delete");
     assert!(
-        h.query_by_label(&units::Zone::UTC.text(last.entry.time.ms))
+        h.query_by_label(&shown(&h, id, last.entry.time.ms))
             .is_none()
     );
     assert!(h.query_by_label_contains("Reading deleted").is_some());
 }
 
 /// The status bar shows the result of a verify run over the ledger's hash chain at start-up, and the
-/// "Verify history" button runs it again (the fixture is written only through the store, so it
+/// "Verify history" button runs it again (the demo is written only through the store, so it
 /// verifies: every record has its link).
 #[test]
 fn the_window_shows_the_history_check() {
-    let mut h = harness(common::small_fleet(10));
+    let mut h = harness(common::demo_store());
     h.run();
     let check = h
         .state()

@@ -241,39 +241,60 @@ pub struct LogRow {
 
 /// A record log: the header, then the lines (only those in view are laid out) inside a horizontal and a
 /// vertical scroll area named after `salt`. `line(i)` gives line i; returns the id of a clicked line.
+/// `selected` is the selected record's id and its line; when the selection changes to a line out of
+/// view (a reading opened from a balance, a time entered far back), the log scrolls to it.
 pub fn record_log(
     ui: &mut Ui,
     salt: &str,
     cols: &[Column],
     len: usize,
-    selected: Option<i64>,
+    selected: Option<(i64, Option<usize>)>,
     mut line: impl FnMut(usize) -> Option<LogRow>,
 ) -> Option<i64> {
     let mut clicked = None;
+    // the selection and the lines in view at the last frame
+    let memory = ui.scope_id().with(("record_log_view", salt));
+    let (was, in_view) = ui.data(|d| {
+        d.get_temp::<(Option<i64>, std::ops::Range<usize>)>(memory)
+            .unwrap_or_default()
+    });
+    let selected_id = selected.map(|s| s.0);
+    let scroll_to = selected
+        .and_then(|s| s.1)
+        .filter(|at| was != selected_id && !in_view.contains(at));
     egui::ScrollArea::horizontal()
         .id_salt(format!("{salt}_h"))
         .show(ui, |ui| {
             ui.vertical(|ui| {
                 ui.spacing_mut().item_spacing.y = 0.0;
                 header(ui, cols);
-                egui::ScrollArea::vertical()
+                let mut area = egui::ScrollArea::vertical()
                     .id_salt(format!("{salt}_v"))
-                    .auto_shrink([false, false])
-                    .show_rows(ui, ROW_HEIGHT, len, |ui, range| {
-                        for i in range {
-                            let Some(r) = line(i) else { continue };
-                            if row(
-                                ui,
-                                cols,
-                                &r.cells,
-                                selected == Some(r.id),
-                                i % 2 == 1,
-                                r.colour,
-                            ) {
-                                clicked = Some(r.id);
-                            }
+                    .auto_shrink([false, false]);
+                if let Some(at) = scroll_to {
+                    // the line a few lines below the top
+                    area = area.vertical_scroll_offset(
+                        (at.saturating_sub(3) as f32 * ROW_HEIGHT).max(0.0),
+                    );
+                }
+                area.show_rows(ui, ROW_HEIGHT, len, |ui, range| {
+                    // the first and last lines may be cut off: not counted as in view
+                    let shown = (range.start + 1)..range.end.saturating_sub(1);
+                    ui.data_mut(|d| d.insert_temp(memory, (selected_id, shown)));
+                    for i in range {
+                        let Some(r) = line(i) else { continue };
+                        if row(
+                            ui,
+                            cols,
+                            &r.cells,
+                            selected_id == Some(r.id),
+                            i % 2 == 1,
+                            r.colour,
+                        ) {
+                            clicked = Some(r.id);
                         }
-                    });
+                    }
+                });
             });
         });
     clicked

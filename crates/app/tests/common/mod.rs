@@ -219,20 +219,28 @@ pub fn add_history_every(
     }
 }
 
-/// A small fleet: two sites, three tanks, `days` of daily readings each ending a day ago.
-pub fn small_fleet(days: i64) -> Store {
+/// The demo fleet of `cryoledger demo` and the first start (demo-data/, its planted faults in
+/// demo-data/README.md), as the files hold it (not moved to today).
+pub fn demo_store() -> Store {
+    use store::{ImportOptions, ImportSource, ImportSources};
     let mut s = Store::open_in_memory().expect("store");
-    let end = app::fmt::now_ms() / DAY_MS * DAY_MS - DAY_MS + 8 * 3_600_000;
-    let specs = [
-        ("Lanternfell Foundry", "LF-N2-1", "nitrogen", "vertical"),
-        ("Lanternfell Foundry", "LF-AR-1", "argon", "horizontal"),
-        ("Copse Road Lab", "CR-O2-1", "oxygen", "vertical"),
-    ];
-    for (i, (site, name, fluid, o)) in specs.iter().enumerate() {
-        let id = s
-            .add_tank(&tank_fields(site, name, fluid, o))
-            .expect("add tank");
-        add_history(&mut s, id, end, days, &format!("T{i}"), 0);
-    }
+    s.import(
+        ImportSources {
+            tanks: Some(ImportSource::text(
+                "tanks.csv",
+                include_str!("../../../../demo-data/tanks.csv"),
+            )),
+            readings: Some(ImportSource::text(
+                "readings.csv",
+                include_str!("../../../../demo-data/readings.csv"),
+            )),
+            deliveries: Some(ImportSource::text(
+                "deliveries.csv",
+                include_str!("../../../../demo-data/deliveries.csv"),
+            )),
+        },
+        &ImportOptions::default(),
+    )
+    .expect("demo import");
     s
 }
