@@ -19,14 +19,16 @@ pub fn deliveries_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
             egui::ScrollArea::vertical().show(ui, |ui| form_ui(ui, view, out));
         });
     let mut cols = vec![
-        Column::text("Ticket", 84.0),
-        Column::text("Start (site)", 150.0),
-        Column::num("Minutes", 62.0),
-        Column::num("Billed", 90.0),
-        Column::num("Supply", 80.0),
-        Column::text("Vehicle", 64.0),
-        Column::text("Verdict", 90.0),
-        Column::num("Residual (%)", 84.0),
+        // the verdict and residual stay in view beside the form at 1360 px; the carrier takes what
+        // is left (a horizontal scroll shows the rest)
+        Column::text("Ticket", 78.0),
+        Column::text("Start (site)", 144.0),
+        Column::num("Minutes", 54.0),
+        Column::num("Billed", 82.0),
+        Column::num("Supply", 70.0),
+        Column::text("Vehicle", 60.0),
+        Column::text("Verdict", 76.0),
+        Column::num("Residual (%)", 80.0),
     ];
     let used: f32 = cols.iter().map(|c| c.width).sum();
     cols.push(Column::text(
