@@ -284,9 +284,13 @@ impl Repository for Store {
                 r.get::<_, f64>(2)?,
             ))
         })?;
+        // each point to its tank through a map (a search per point was quadratic in a fleet with
+        // many strapping tables)
+        let at: std::collections::HashMap<i64, usize> =
+            tanks.iter().enumerate().map(|(i, t)| (t.id.0, i)).collect();
         for p in points {
             let (id, l, v) = p?;
-            if let Some(t) = tanks.iter_mut().find(|t| t.id == id) {
+            if let Some(t) = at.get(&id.0).and_then(|&i| tanks.get_mut(i)) {
                 t.spec.strapping.push((l, v));
             }
         }
