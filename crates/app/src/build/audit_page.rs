@@ -296,25 +296,17 @@ pub fn audit_view(
         findings,
         stopped: false,
     };
-    // the open balance stays open when its ticket is still there
-    let open = old
-        .selected
-        .and_then(|i| old.rows.get(i))
-        .map(|r| r.ticket.clone())
-        .or_else(|| old.open_ticket.clone());
-    v.selected = open.and_then(|t| v.rows.iter().position(|r| r.ticket == t));
-    let gauge = old
-        .gauge_open
-        .and_then(|i| old.gauges.get(i))
-        .map(|g| g.tank.clone())
-        .or_else(|| old.open_gauge.clone());
-    v.gauge_open = gauge.and_then(|t| v.gauges.iter().position(|g| g.tank == t));
-    let vehicle = old
-        .vehicle_open
-        .and_then(|i| old.vehicles.get(i))
-        .map(|g| g.vehicle.clone())
-        .or_else(|| old.open_vehicle.clone());
-    v.vehicle_open = vehicle.and_then(|n| v.vehicles.iter().position(|g| g.vehicle == n));
+    // the open balance, gauge and vehicle stay open when they are still there
+    let keep = audit_settings(old);
+    v.selected = keep
+        .open_ticket
+        .and_then(|t| v.rows.iter().position(|r| r.ticket == t));
+    v.gauge_open = keep
+        .open_gauge
+        .and_then(|t| v.gauges.iter().position(|g| g.tank == t));
+    v.vehicle_open = keep
+        .open_vehicle
+        .and_then(|n| v.vehicles.iter().position(|g| g.vehicle == n));
     apply_filter(&mut v, units);
     v
 }

@@ -229,8 +229,8 @@ fn fills_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
         "audit_fills",
         &cols,
         a.visible.len(),
-        a.selected
-            .map(|i| (i as i64, a.visible.iter().position(|&v| v == i))),
+        a.selected.map(|i| i as i64),
+        |i| a.visible.iter().position(|&v| v as i64 == i),
         |k| {
             let i = *a.visible.get(k)?;
             let r = a.rows.get(i)?;

@@ -47,10 +47,8 @@ pub fn deliveries_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
         "deliveries",
         &cols,
         t.deliveries.len(),
-        view.delivery_editor
-            .form
-            .editing
-            .map(|id| (id, t.deliveries.iter().position(|d| d.id == id))),
+        view.delivery_editor.form.editing,
+        |id| t.deliveries.iter().position(|d| d.id == id),
         |i| {
             let d = t.deliveries.get(i)?;
             Some(LogRow {

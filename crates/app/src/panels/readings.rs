@@ -47,10 +47,8 @@ pub fn readings_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
         "readings",
         &cols,
         t.readings.len(),
-        view.reading_editor
-            .form
-            .editing
-            .map(|id| (id, t.readings.iter().position(|r| r.id == id))),
+        view.reading_editor.form.editing,
+        |id| t.readings.iter().position(|r| r.id == id),
         |i| {
             let r = t.readings.get(i)?;
             let dp = r.dp_text.split(' ').next().unwrap_or("").to_owned();

@@ -241,14 +241,16 @@ pub struct LogRow {
 
 /// A record log: the header, then the lines (only those in view are laid out) inside a horizontal and a
 /// vertical scroll area named after `salt`. `line(i)` gives line i; returns the id of a clicked line.
-/// `selected` is the selected record's id and its line; when the selection changes to a line out of
-/// view (a reading opened from a balance, a time entered far back), the log scrolls to it.
+/// `selected` is the selected record's id; when the selection changes to a line out of view (a
+/// reading opened from a balance, a time entered far back), `line_of` finds its line (only then) and
+/// the log scrolls to it.
 pub fn record_log(
     ui: &mut Ui,
     salt: &str,
     cols: &[Column],
     len: usize,
-    selected: Option<(i64, Option<usize>)>,
+    selected: Option<i64>,
+    line_of: impl FnOnce(i64) -> Option<usize>,
     mut line: impl FnMut(usize) -> Option<LogRow>,
 ) -> Option<i64> {
     let mut clicked = None;
@@ -258,10 +260,10 @@ pub fn record_log(
         d.get_temp::<(Option<i64>, std::ops::Range<usize>)>(memory)
             .unwrap_or_default()
     });
-    let selected_id = selected.map(|s| s.0);
     let scroll_to = selected
-        .and_then(|s| s.1)
-        .filter(|at| was != selected_id && !in_view.contains(at));
+        .filter(|_| was != selected)
+        .and_then(line_of)
+        .filter(|at| !in_view.contains(at));
     egui::ScrollArea::horizontal()
         .id_salt(format!("{salt}_h"))
         .show(ui, |ui| {
@@ -280,14 +282,14 @@ pub fn record_log(
                 area.show_rows(ui, ROW_HEIGHT, len, |ui, range| {
                     // the first and last lines may be cut off: not counted as in view
                     let shown = (range.start + 1)..range.end.saturating_sub(1);
-                    ui.data_mut(|d| d.insert_temp(memory, (selected_id, shown)));
+                    ui.data_mut(|d| d.insert_temp(memory, (selected, shown)));
                     for i in range {
                         let Some(r) = line(i) else { continue };
                         if row(
                             ui,
                             cols,
                             &r.cells,
-                            selected_id == Some(r.id),
+                            selected == Some(r.id),
                             i % 2 == 1,
                             r.colour,
                         ) {
