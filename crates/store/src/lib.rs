@@ -24,12 +24,17 @@
 //! ```
 #![deny(missing_docs)]
 
+mod cell;
+mod chain;
 mod check;
 mod csv_format;
+mod import;
+mod pg;
 mod records;
 mod repository;
 mod sqlite;
 
+pub use chain::{Tampering, Verification};
 pub use check::{
     DeliveryFields, FieldError, PLAUSIBLE_QUANTITY_KG, ReadingFields, TankFields, format_strapping,
     parse_strapping,
@@ -38,9 +43,9 @@ pub use csv_format::{
     DELIVERY_HEADER, ImportErrors, ImportFiles, ImportOptions, ImportSource, ImportSources,
     ImportSummary, READING_HEADER, ReadingCheck, RowError, TANK_HEADER,
 };
+pub use pg::{PG_MIGRATION_FILES, PgStore, describe_target};
 pub use records::*;
 pub use repository::{RecordKind, Repository};
-pub use sqlite::chain::{Tampering, Verification};
 pub use sqlite::{MIGRATION_FILES, Store};
 
 /// The database driver's own error, kept as its message (callers never see the driver's type).
@@ -63,6 +68,20 @@ impl From<rusqlite::Error> for StoreError {
                 message: e.to_string(),
             }),
         }
+    }
+}
+
+impl From<postgres::Error> for StoreError {
+    fn from(e: postgres::Error) -> Self {
+        // the server's own words (its message and detail) when it sent any
+        let message = match e.as_db_error() {
+            Some(db) => match db.detail() {
+                Some(detail) => format!("{}: {detail}", db.message()),
+                None => db.message().to_owned(),
+            },
+            None => e.to_string(),
+        };
+        StoreError::Database(DriverError { message })
     }
 }
 
@@ -144,6 +163,20 @@ pub enum StoreError {
     /// An import was refused; nothing was written.
     #[error("{0}")]
     Import(ImportErrors),
+    /// The PostgreSQL server could not be reached or refused the connection.
+    #[error("cannot open the ledger at {target}: {reason}")]
+    Connect {
+        /// The server and database (never the password).
+        target: String,
+        /// What went wrong and what to check.
+        reason: String,
+    },
+    /// The operation does not apply to this kind of ledger.
+    #[error("{0}")]
+    Unsupported(String),
+    /// A record was changed by someone else since it was opened; nothing was written.
+    #[error("{0}")]
+    Conflict(String),
     /// A record could not be encoded for the history.
     #[error("cannot encode the earlier version: {0}")]
     Encode(String),

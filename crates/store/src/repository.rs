@@ -5,9 +5,9 @@
 use std::io::Write;
 
 use crate::StoreError;
+use crate::chain::Verification;
 use crate::csv_format::{ImportOptions, ImportSources, ImportSummary};
 use crate::records::*;
-use crate::sqlite::chain::Verification;
 
 /// The kinds of record the CSV formats carry.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]

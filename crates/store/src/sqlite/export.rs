@@ -2,6 +2,7 @@
 
 use super::Store;
 use crate::StoreError;
+use crate::cell::Cells;
 use crate::check::format_strapping;
 use crate::csv_format::*;
 use crate::records::{Site, SiteId, TankId};
@@ -11,7 +12,7 @@ use std::io::Write;
 use units::Unit;
 
 /// Flush a CSV writer; a failure names the output.
-fn finish(mut w: csv::Writer<&mut dyn Write>) -> Result<(), StoreError> {
+pub(crate) fn finish(mut w: csv::Writer<&mut dyn Write>) -> Result<(), StoreError> {
     w.flush().map_err(|source| StoreError::Io {
         path: "output".into(),
         source,
@@ -19,7 +20,7 @@ fn finish(mut w: csv::Writer<&mut dyn Write>) -> Result<(), StoreError> {
 }
 
 /// Write all live tanks in the tanks CSV format.
-pub(crate) fn tanks(store: &Store, out: &mut dyn Write) -> Result<(), StoreError> {
+pub(crate) fn tanks(store: &dyn Repository, out: &mut dyn Write) -> Result<(), StoreError> {
     let sites: HashMap<SiteId, Site> = store.sites()?.into_iter().map(|s| (s.id, s)).collect();
     let mut w = csv::Writer::from_writer(out);
     w.write_record(TANK_HEADER)?;
@@ -61,29 +62,43 @@ pub(crate) fn tanks(store: &Store, out: &mut dyn Write) -> Result<(), StoreError
 pub(crate) fn readings(store: &Store, out: &mut dyn Write) -> Result<(), StoreError> {
     let mut w = csv::Writer::from_writer(out);
     w.write_record(READING_HEADER)?;
-    let mut st = store.conn.prepare(
-        "SELECT t.name, r.time_text, r.dp_value, r.dp_unit, r.pressure_value, r.pressure_unit, \
-             r.liquid_temperature_k, r.note FROM readings r JOIN tanks t ON t.id = r.tank_id \
-             WHERE r.deleted_at IS NULL ORDER BY r.id",
-    )?;
+    let mut st = store.conn.prepare(READING_EXPORT_SQL)?;
     let mut rows = st.query([])?;
     while let Some(r) = rows.next()? {
-        w.write_record([
-            r.get::<_, String>(0)?,
-            r.get::<_, String>(1)?,
-            num(r.get(2)?),
-            r.get::<_, String>(3)?,
-            num(r.get(4)?),
-            r.get::<_, String>(5)?,
-            opt(r.get(6)?),
-            r.get::<_, Option<String>>(7)?.unwrap_or_default(),
-        ])?;
+        reading_record(&mut w, r)?;
     }
     finish(w)
 }
 
+/// One reading's CSV record from a row of (tank name, time text, dp value, dp unit, pressure value,
+/// pressure unit, liquid temperature, note), whichever database it came from.
+pub(crate) fn reading_record<R: Cells>(
+    w: &mut csv::Writer<&mut dyn Write>,
+    r: &R,
+) -> Result<(), StoreError>
+where
+    StoreError: From<R::Error>,
+{
+    w.write_record([
+        r.text(0)?,
+        r.text(1)?,
+        num(r.real(2)?),
+        r.text(3)?,
+        num(r.real(4)?),
+        r.text(5)?,
+        opt(r.opt_real(6)?),
+        r.opt_text(7)?.unwrap_or_default(),
+    ])?;
+    Ok(())
+}
+
+/// The query of [`reading_record`]'s rows, in the order the readings were written.
+pub(crate) const READING_EXPORT_SQL: &str = "SELECT t.name, r.time_text, r.dp_value, r.dp_unit, \
+    r.pressure_value, r.pressure_unit, r.liquid_temperature_k, r.note FROM readings r \
+    JOIN tanks t ON t.id = r.tank_id WHERE r.deleted_at IS NULL ORDER BY r.id";
+
 /// Write all live deliveries in the deliveries CSV format.
-pub(crate) fn deliveries(store: &Store, out: &mut dyn Write) -> Result<(), StoreError> {
+pub(crate) fn deliveries(store: &dyn Repository, out: &mut dyn Write) -> Result<(), StoreError> {
     let names: HashMap<TankId, String> = store
         .tanks()?
         .into_iter()
@@ -127,7 +142,10 @@ pub(crate) fn dump(store: &Store) -> Result<String, StoreError> {
         if !sql.starts_with("CREATE TABLE") {
             continue;
         }
-        let mut rows = store.conn.prepare(&format!("SELECT * FROM \"{name}\""))?;
+        // in key order (the first columns), not storage order, so that a copied ledger dumps alike
+        let mut rows = store
+            .conn
+            .prepare(&format!("SELECT * FROM \"{name}\" ORDER BY 1, 2"))?;
         let n = rows.column_count();
         let mut q = rows.query([])?;
         while let Some(r) = q.next()? {

@@ -1,13 +1,14 @@
 //! The SQLite ledger: opening, migrations, and the [`Repository`] in SQL.
 
 pub(crate) mod chain;
-mod export;
+pub(crate) mod export;
 mod import;
 pub(crate) mod rows;
 
 use crate::StoreError;
 use crate::check::FieldError;
 use crate::csv_format::{ImportOptions, ImportSources, ImportSummary};
+use crate::import::SiteError;
 use crate::records::*;
 use crate::repository::{RecordKind, Repository};
 use chain::{Action, ChainWriter, Kind};
@@ -124,7 +125,7 @@ fn chain_site(
     let site: Site = conn.query_row(
         &format!("SELECT {SITE_COLUMNS} FROM sites WHERE id = ?1"),
         [id.0],
-        site_from_row,
+        |r| site_from_row(r),
     )?;
     chain.append(conn, Kind::Site, id.0, action, |out| {
         chain::canonical_site(out, &site)
@@ -141,12 +142,6 @@ pub(crate) fn site_for(
         SiteError::Field(f) => invalid(f),
         SiteError::Store(e) => e,
     })
-}
-
-/// Why a site could not be found or made.
-pub(crate) enum SiteError {
-    Field(FieldError),
-    Store(StoreError),
 }
 
 /// [`site_for`] with the site's settings (the importer's).
@@ -177,7 +172,7 @@ impl Store {
         );
         let Some(mut t) = self
             .conn
-            .query_row(&sql, [value], tank_from_row)
+            .query_row(&sql, [value], |r| tank_from_row(r))
             .optional()?
         else {
             return Ok(None);
@@ -203,7 +198,7 @@ impl Repository for Store {
         let mut st = self.conn.prepare(&format!(
             "SELECT {SITE_COLUMNS} FROM sites WHERE deleted_at IS NULL ORDER BY name"
         ))?;
-        let rows = st.query_map([], site_from_row)?;
+        let rows = st.query_map([], |r| site_from_row(r))?;
         Ok(rows.collect::<Result<_, _>>()?)
     }
 
@@ -272,8 +267,9 @@ impl Repository for Store {
              WHERE t.deleted_at IS NULL ORDER BY s.name, t.name"
         );
         let mut st = self.conn.prepare(&sql)?;
-        let mut tanks: Vec<TankRecord> =
-            st.query_map([], tank_from_row)?.collect::<Result<_, _>>()?;
+        let mut tanks: Vec<TankRecord> = st
+            .query_map([], |r| tank_from_row(r))?
+            .collect::<Result<_, _>>()?;
         let mut sp = self.conn.prepare(
             "SELECT tank_id, level_m, volume_m3 FROM strapping_points ORDER BY tank_id, level_m",
         )?;
@@ -365,7 +361,7 @@ impl Repository for Store {
              AND time_ms >= ?2 AND time_ms < ?3 ORDER BY time_ms"
         );
         let mut st = self.conn.prepare_cached(&sql)?;
-        let rows = st.query_map(params![tank.0, from, to], reading_from_row)?;
+        let rows = st.query_map(params![tank.0, from, to], |r| reading_from_row(r))?;
         Ok(rows.collect::<Result<_, _>>()?)
     }
 
@@ -376,14 +372,14 @@ impl Repository for Store {
         );
         Ok(self
             .conn
-            .query_row(&sql, [tank.0], reading_from_row)
+            .query_row(&sql, [tank.0], |r| reading_from_row(r))
             .optional()?)
     }
 
     fn reading(&self, id: ReadingId) -> Result<Reading, StoreError> {
         let sql = format!("SELECT {READING_COLUMNS} FROM readings WHERE id = ?1");
         self.conn
-            .query_row(&sql, [id.0], reading_from_row)
+            .query_row(&sql, [id.0], |r| reading_from_row(r))
             .optional()?
             .ok_or_else(|| Self::not_found("reading", id))
     }
@@ -460,13 +456,13 @@ impl Repository for Store {
             Some(id) => {
                 let sql = format!("{base} AND d.tank_id = ?1 ORDER BY d.start_ms, d.ticket");
                 let mut st = self.conn.prepare_cached(&sql)?;
-                st.query_map([id.0], delivery_from_row)?
+                st.query_map([id.0], |r| delivery_from_row(r))?
                     .collect::<Result<_, _>>()?
             }
             None => {
                 let sql = format!("{base} ORDER BY d.start_ms, d.ticket");
                 let mut st = self.conn.prepare_cached(&sql)?;
-                st.query_map([], delivery_from_row)?
+                st.query_map([], |r| delivery_from_row(r))?
                     .collect::<Result<_, _>>()?
             }
         };
@@ -479,7 +475,7 @@ impl Repository for Store {
              JOIN vehicles v ON v.id = d.vehicle_id WHERE d.id = ?1"
         );
         self.conn
-            .query_row(&sql, [id.0], delivery_from_row)
+            .query_row(&sql, [id.0], |r| delivery_from_row(r))
             .optional()?
             .ok_or_else(|| Self::not_found("delivery", id))
     }
@@ -584,7 +580,7 @@ impl Repository for Store {
         export::dump(self)
     }
 
-    fn verify(&self) -> Result<chain::Verification, StoreError> {
+    fn verify(&self) -> Result<crate::chain::Verification, StoreError> {
         chain::verify(&self.conn)
     }
 

@@ -3,44 +3,35 @@
 //! (inside its transaction) and the single-record methods.
 
 use crate::StoreError;
+use crate::cell::{Cell, Cells};
 use crate::check::FieldError;
 use crate::records::*;
-use rusqlite::types::Value;
-use rusqlite::{Connection, OptionalExtension, Row, params, params_from_iter};
+use rusqlite::{Connection, OptionalExtension, params, params_from_iter};
 use units::{DpUnit, Entered, QuantityUnit, TankPressureUnit, Unit};
 
 pub(crate) fn now_text() -> String {
     units::rfc3339_from_ms(units::now_ms())
 }
 
-fn conversion(idx: usize, e: impl std::fmt::Display) -> rusqlite::Error {
-    rusqlite::Error::FromSqlConversionFailure(
-        idx,
-        rusqlite::types::Type::Text,
-        Box::<dyn std::error::Error + Send + Sync>::from(e.to_string()),
-    )
-}
-
-fn parse_text<T: std::str::FromStr>(r: &Row<'_>, idx: usize) -> rusqlite::Result<T>
+fn parse_text<R: Cells, T: std::str::FromStr>(r: &R, idx: usize) -> Result<T, R::Error>
 where
     T::Err: std::fmt::Display,
 {
-    r.get::<_, String>(idx)?
+    r.text(idx)?
         .parse::<T>()
-        .map_err(|e| conversion(idx, e))
+        .map_err(|e| R::bad(idx, e.to_string()))
 }
 
-fn entered_pressure(
-    r: &Row<'_>,
+fn entered_pressure<R: Cells>(
+    r: &R,
     idx: usize,
-) -> rusqlite::Result<Option<Entered<TankPressureUnit>>> {
-    match (
-        r.get::<_, Option<f64>>(idx)?,
-        r.get::<_, Option<String>>(idx + 1)?,
-    ) {
+) -> Result<Option<Entered<TankPressureUnit>>, R::Error> {
+    match (r.opt_real(idx)?, r.opt_text(idx + 1)?) {
         (Some(value), Some(u)) => Ok(Some(Entered {
             value,
-            unit: u.parse().map_err(|e| conversion(idx + 1, e))?,
+            unit: u
+                .parse::<TankPressureUnit>()
+                .map_err(|e| R::bad(idx + 1, e.to_string()))?,
         })),
         _ => Ok(None),
     }
@@ -57,9 +48,20 @@ pub(crate) struct Columns {
 }
 
 impl Columns {
-    /// `INSERT INTO table (write...) VALUES (?1, ...)`, with `extra` leading columns (e.g. tank_id).
+    /// `INSERT INTO table (write...) VALUES (?1, ...)`.
     pub fn insert_sql(&self) -> String {
-        let places: Vec<String> = (1..=self.write.len()).map(|i| format!("?{i}")).collect();
+        self.insert_sql_marked('?')
+    }
+
+    /// [`Columns::insert_sql`] with PostgreSQL's parameter marks (`$1, ...`).
+    pub fn insert_sql_pg(&self) -> String {
+        self.insert_sql_marked('$')
+    }
+
+    fn insert_sql_marked(&self, mark: char) -> String {
+        let places: Vec<String> = (1..=self.write.len())
+            .map(|i| format!("{mark}{i}"))
+            .collect();
         format!(
             "INSERT INTO {} ({}) VALUES ({})",
             self.table,
@@ -70,14 +72,23 @@ impl Columns {
 
     /// `UPDATE table SET write... WHERE id = ?N`, the id last.
     pub fn update_sql(&self) -> String {
+        self.update_sql_marked('?')
+    }
+
+    /// [`Columns::update_sql`] with PostgreSQL's parameter marks.
+    pub fn update_sql_pg(&self) -> String {
+        self.update_sql_marked('$')
+    }
+
+    fn update_sql_marked(&self, mark: char) -> String {
         let sets: Vec<String> = self
             .write
             .iter()
             .enumerate()
-            .map(|(i, c)| format!("{c} = ?{}", i + 1))
+            .map(|(i, c)| format!("{c} = {mark}{}", i + 1))
             .collect();
         format!(
-            "UPDATE {} SET {} WHERE id = ?{}",
+            "UPDATE {} SET {} WHERE id = {mark}{}",
             self.table,
             sets.join(", "),
             self.write.len() + 1
@@ -107,7 +118,7 @@ impl Columns {
 }
 
 /// Is this error a UNIQUE constraint failure?
-fn is_unique_violation(e: &rusqlite::Error) -> bool {
+pub(crate) fn is_unique_violation(e: &rusqlite::Error) -> bool {
     matches!(e, rusqlite::Error::SqliteFailure(f, _)
         if f.extended_code == rusqlite::ffi::SQLITE_CONSTRAINT_UNIQUE)
 }
@@ -122,31 +133,31 @@ pub(crate) const TANK_COLUMNS: &str = "t.id, t.site_id, s.name, s.elevation_m, s
 /// How many columns [`TANK_COLUMNS`] selects (a query's own columns follow them).
 pub(crate) const TANK_COLUMN_COUNT: usize = 22;
 
-pub(crate) fn tank_from_row(r: &Row<'_>) -> rusqlite::Result<TankRecord> {
-    let elevation: Option<f64> = r.get(3)?;
-    let barometer_kpa: Option<f64> = r.get(4)?;
+pub(crate) fn tank_from_row<R: Cells>(r: &R) -> Result<TankRecord, R::Error> {
+    let elevation = r.opt_real(3)?;
+    let barometer_kpa = r.opt_real(4)?;
     Ok(TankRecord {
-        id: TankId(r.get(0)?),
-        site_id: SiteId(r.get(1)?),
+        id: TankId(r.int(0)?),
+        site_id: SiteId(r.int(1)?),
         barometer_pa: barometer_pa(barometer_kpa.map(|k| k * 1e3), elevation),
-        time_zone: r.get(21)?,
+        time_zone: r.opt_text(21)?,
         spec: TankSpec {
-            site: r.get(2)?,
-            name: r.get(5)?,
+            site: r.text(2)?,
+            name: r.text(5)?,
             fluid: parse_text(r, 6)?,
             orientation: parse_text(r, 7)?,
-            diameter_m: r.get(8)?,
-            length_m: r.get(9)?,
+            diameter_m: r.real(8)?,
+            length_m: r.real(9)?,
             heads: parse_text(r, 10)?,
-            crown_ratio: r.get(11)?,
-            knuckle_ratio: r.get(12)?,
-            line_temperature_c: r.get(13)?,
-            dp_unit: parse_text::<DpUnit>(r, 14)?,
-            gauge_span: r.get(15)?,
-            gauge_accuracy_percent: r.get(16)?,
+            crown_ratio: r.opt_real(11)?,
+            knuckle_ratio: r.opt_real(12)?,
+            line_temperature_c: r.real(13)?,
+            dp_unit: parse_text::<_, DpUnit>(r, 14)?,
+            gauge_span: r.opt_real(15)?,
+            gauge_accuracy_percent: r.opt_real(16)?,
             relief_pressure: entered_pressure(r, 17)?,
-            reorder_percent: r.get(19)?,
-            ner_percent_per_day: r.get(20)?,
+            reorder_percent: r.opt_real(19)?,
+            ner_percent_per_day: r.opt_real(20)?,
             strapping: Vec::new(),
         },
     })
@@ -181,7 +192,7 @@ pub(crate) const TANKS: Columns = Columns {
 };
 
 /// The values of [`TANKS`] for a tank at site `site_id`.
-pub(crate) fn tank_values(site_id: SiteId, t: &TankSpec) -> Vec<Value> {
+pub(crate) fn tank_values(site_id: SiteId, t: &TankSpec) -> Vec<Cell> {
     vec![
         site_id.0.into(),
         t.name.clone().into(),
@@ -199,7 +210,7 @@ pub(crate) fn tank_values(site_id: SiteId, t: &TankSpec) -> Vec<Value> {
         t.gauge_span_pa().into(),
         t.gauge_accuracy_percent.into(),
         t.relief_pressure.map(|p| p.value).into(),
-        t.relief_pressure.map(|p| p.unit.symbol().to_owned()).into(),
+        t.relief_pressure.map(|p| p.unit.symbol()).into(),
         t.relief_pressure.map(|p| p.si_value()).into(),
         t.reorder_percent.into(),
         t.ner_percent_per_day.into(),
@@ -228,9 +239,7 @@ pub(crate) fn update_tank(
     site_id: SiteId,
     t: &TankSpec,
 ) -> Result<(), rusqlite::Error> {
-    let values = tank_values(site_id, t)
-        .into_iter()
-        .chain([Value::from(id.0)]);
+    let values = tank_values(site_id, t).into_iter().chain([Cell::Int(id.0)]);
     conn.prepare_cached(&TANKS.update_sql())?
         .execute(params_from_iter(values))?;
     write_strapping(conn, id, &t.strapping)
@@ -253,13 +262,13 @@ fn write_strapping(conn: &Connection, tank: TankId, points: &[(f64, f64)]) -> ru
 pub(crate) const SITE_COLUMNS: &str = "id, name, elevation_m, barometer_kpa, time_zone";
 
 /// A site from a row of [`SITE_COLUMNS`].
-pub(crate) fn site_from_row(r: &Row<'_>) -> rusqlite::Result<Site> {
+pub(crate) fn site_from_row<R: Cells>(r: &R) -> Result<Site, R::Error> {
     Ok(Site {
-        id: SiteId(r.get(0)?),
-        name: r.get(1)?,
-        elevation_m: r.get(2)?,
-        barometer_kpa: r.get(3)?,
-        time_zone: r.get(4)?,
+        id: SiteId(r.int(0)?),
+        name: r.text(1)?,
+        elevation_m: r.opt_real(2)?,
+        barometer_kpa: r.opt_real(3)?,
+        time_zone: r.opt_text(4)?,
     })
 }
 
@@ -293,29 +302,7 @@ pub(crate) fn site_id_for(
         .map_err(|e| FieldError::new("site", e.to_string()))?;
     match existing {
         Some((id, e0, b0, z0)) => {
-            if time_zone.is_some() && *time_zone != z0 {
-                return Err(FieldError::new(
-                    "time_zone",
-                    format!(
-                        "site '{name}' already has time zone {}; edit the site instead",
-                        z0.as_deref().unwrap_or("none (UTC)")
-                    ),
-                ));
-            }
-            if elevation_m.is_some() && elevation_m != e0 {
-                return Err(FieldError::new(
-                    "elevation_m",
-                    format!("site '{name}' already has elevation {e0:?} m; edit the site instead"),
-                ));
-            }
-            if barometer_kpa.is_some() && barometer_kpa != b0 {
-                return Err(FieldError::new(
-                    "barometer_kpa",
-                    format!(
-                        "site '{name}' already has barometer {b0:?} kPa; edit the site instead"
-                    ),
-                ));
-            }
+            same_site_settings(name, settings, e0, b0, z0.as_deref())?;
             Ok((SiteId(id), false))
         }
         None => {
@@ -336,30 +323,67 @@ pub(crate) fn site_id_for(
     }
 }
 
+/// A row naming an existing site may repeat its settings, never change them (edit the site for that).
+pub(crate) fn same_site_settings(
+    name: &str,
+    settings: &SiteSettings,
+    e0: Option<f64>,
+    b0: Option<f64>,
+    z0: Option<&str>,
+) -> Result<(), FieldError> {
+    let SiteSettings {
+        elevation_m,
+        barometer_kpa,
+        time_zone,
+    } = settings;
+    if time_zone.is_some() && time_zone.as_deref() != z0 {
+        return Err(FieldError::new(
+            "time_zone",
+            format!(
+                "site '{name}' already has time zone {}; edit the site instead",
+                z0.unwrap_or("none (UTC)")
+            ),
+        ));
+    }
+    if elevation_m.is_some() && *elevation_m != e0 {
+        return Err(FieldError::new(
+            "elevation_m",
+            format!("site '{name}' already has elevation {e0:?} m; edit the site instead"),
+        ));
+    }
+    if barometer_kpa.is_some() && *barometer_kpa != b0 {
+        return Err(FieldError::new(
+            "barometer_kpa",
+            format!("site '{name}' already has barometer {b0:?} kPa; edit the site instead"),
+        ));
+    }
+    Ok(())
+}
+
 // ---- readings ----
 
 pub(crate) const READING_COLUMNS: &str = "id, tank_id, time_text, time_ms, dp_value, dp_unit, pressure_value, \
     pressure_unit, liquid_temperature_k, note";
 
-pub(crate) fn reading_from_row(r: &Row<'_>) -> rusqlite::Result<Reading> {
+pub(crate) fn reading_from_row<R: Cells>(r: &R) -> Result<Reading, R::Error> {
     Ok(Reading {
-        id: ReadingId(r.get(0)?),
-        tank_id: TankId(r.get(1)?),
+        id: ReadingId(r.int(0)?),
+        tank_id: TankId(r.int(1)?),
         entry: ReadingEntry {
             time: Stamp {
-                text: r.get(2)?,
-                ms: r.get(3)?,
+                text: r.text(2)?,
+                ms: r.int(3)?,
             },
             dp: Entered {
-                value: r.get(4)?,
-                unit: parse_text::<DpUnit>(r, 5)?,
+                value: r.real(4)?,
+                unit: parse_text::<_, DpUnit>(r, 5)?,
             },
             pressure: Entered {
-                value: r.get(6)?,
-                unit: parse_text::<TankPressureUnit>(r, 7)?,
+                value: r.real(6)?,
+                unit: parse_text::<_, TankPressureUnit>(r, 7)?,
             },
-            liquid_temperature_k: r.get(8)?,
-            note: r.get(9)?,
+            liquid_temperature_k: r.opt_real(8)?,
+            note: r.opt_text(9)?,
         },
     })
 }
@@ -424,26 +448,26 @@ pub(crate) fn execute_reading(
 pub(crate) const DELIVERY_COLUMNS: &str = "d.id, d.tank_id, d.ticket, d.start_text, d.start_ms, d.end_text, d.end_ms, \
     d.quantity_value, d.quantity_unit, c.name, v.name, d.supply_pressure_value, d.supply_pressure_unit";
 
-pub(crate) fn delivery_from_row(r: &Row<'_>) -> rusqlite::Result<Delivery> {
+pub(crate) fn delivery_from_row<R: Cells>(r: &R) -> Result<Delivery, R::Error> {
     Ok(Delivery {
-        id: DeliveryId(r.get(0)?),
-        tank_id: TankId(r.get(1)?),
+        id: DeliveryId(r.int(0)?),
+        tank_id: TankId(r.int(1)?),
         entry: DeliveryEntry {
-            ticket: r.get(2)?,
+            ticket: r.text(2)?,
             start: Stamp {
-                text: r.get(3)?,
-                ms: r.get(4)?,
+                text: r.text(3)?,
+                ms: r.int(4)?,
             },
             end: Stamp {
-                text: r.get(5)?,
-                ms: r.get(6)?,
+                text: r.text(5)?,
+                ms: r.int(6)?,
             },
             quantity: Entered {
-                value: r.get(7)?,
-                unit: parse_text::<QuantityUnit>(r, 8)?,
+                value: r.real(7)?,
+                unit: parse_text::<_, QuantityUnit>(r, 8)?,
             },
-            carrier: r.get(9)?,
-            vehicle: r.get(10)?,
+            carrier: r.text(9)?,
+            vehicle: r.text(10)?,
             supply_pressure: entered_pressure(r, 11)?,
         },
     })
@@ -475,6 +499,48 @@ pub(crate) fn duplicate_delivery(d: &DeliveryEntry) -> String {
     format!("ticket '{}' is already recorded", d.ticket)
 }
 
+/// The values of [`DELIVERIES`].
+pub(crate) fn delivery_values(
+    tank: TankId,
+    carrier_id: i64,
+    vehicle_id: i64,
+    d: &DeliveryEntry,
+) -> Vec<Cell> {
+    vec![
+        tank.0.into(),
+        d.ticket.as_str().into(),
+        d.start.text.as_str().into(),
+        d.start.ms.into(),
+        d.end.text.as_str().into(),
+        d.end.ms.into(),
+        d.quantity.value.into(),
+        d.quantity.unit.symbol().into(),
+        d.quantity.si_value().into(),
+        carrier_id.into(),
+        vehicle_id.into(),
+        d.supply_pressure.map(|p| p.value).into(),
+        d.supply_pressure.map(|p| p.unit.symbol()).into(),
+        d.supply_pressure.map(|p| p.si_value()).into(),
+    ]
+}
+
+/// The values of [`READINGS`].
+pub(crate) fn reading_values(tank: TankId, r: &ReadingEntry) -> Vec<Cell> {
+    vec![
+        tank.0.into(),
+        r.time.text.as_str().into(),
+        r.time.ms.into(),
+        r.dp.value.into(),
+        r.dp.unit.symbol().into(),
+        r.dp.si_value().into(),
+        r.pressure.value.into(),
+        r.pressure.unit.symbol().into(),
+        r.pressure.si_value().into(),
+        r.liquid_temperature_k.into(),
+        r.note.as_deref().into(),
+    ]
+}
+
 /// Insert (`id` None) or update a delivery; its carrier and vehicle are found or created first.
 pub(crate) fn write_delivery(
     conn: &Connection,
@@ -484,26 +550,11 @@ pub(crate) fn write_delivery(
 ) -> Result<DeliveryId, StoreError> {
     let (carrier_id, vehicle_id) =
         vehicle_ids(conn, &d.carrier, &d.vehicle).map_err(|e| StoreError::Invalid(vec![e]))?;
-    let mut values: Vec<Value> = vec![
-        tank.0.into(),
-        d.ticket.clone().into(),
-        d.start.text.clone().into(),
-        d.start.ms.into(),
-        d.end.text.clone().into(),
-        d.end.ms.into(),
-        d.quantity.value.into(),
-        d.quantity.unit.symbol().to_owned().into(),
-        d.quantity.si_value().into(),
-        carrier_id.into(),
-        vehicle_id.into(),
-        d.supply_pressure.map(|p| p.value).into(),
-        d.supply_pressure.map(|p| p.unit.symbol().to_owned()).into(),
-        d.supply_pressure.map(|p| p.si_value()).into(),
-    ];
+    let mut values = delivery_values(tank, carrier_id, vehicle_id, d);
     let sql = match id {
         None => DELIVERIES.insert_sql(),
         Some(id) => {
-            values.push(id.0.into());
+            values.push(Cell::Int(id.0));
             DELIVERIES.update_sql()
         }
     };
@@ -539,10 +590,7 @@ fn vehicle_ids(conn: &Connection, carrier: &str, vehicle: &str) -> Result<(i64, 
         .map_err(sql_err)?;
     match vehicle_row {
         Some((vid, cid)) if cid == carrier_id => Ok((carrier_id, vid)),
-        Some(_) => Err(FieldError::new(
-            "vehicle",
-            format!("vehicle '{vehicle}' belongs to another carrier, not '{carrier}'"),
-        )),
+        Some(_) => Err(other_carrier(vehicle, carrier)),
         None => {
             conn.execute(
                 "INSERT INTO vehicles (carrier_id, name) VALUES (?1, ?2)",
@@ -552,6 +600,14 @@ fn vehicle_ids(conn: &Connection, carrier: &str, vehicle: &str) -> Result<(i64, 
             Ok((carrier_id, conn.last_insert_rowid()))
         }
     }
+}
+
+/// A delivery naming a known vehicle with another carrier.
+pub(crate) fn other_carrier(vehicle: &str, carrier: &str) -> FieldError {
+    FieldError::new(
+        "vehicle",
+        format!("vehicle '{vehicle}' belongs to another carrier, not '{carrier}'"),
+    )
 }
 
 // ---- history ----
@@ -574,6 +630,21 @@ pub(crate) fn record_revision(
     reason: &str,
     before: &EarlierVersion,
 ) -> Result<(), StoreError> {
+    let (reason, json) = revision_text(reason, before)?;
+    let (table, row) = table_row(record);
+    conn.execute(
+        "INSERT INTO revisions (table_name, row_id, action, revised_at, reason, old_row) \
+         VALUES (?1, ?2, ?3, ?4, ?5, ?6)",
+        params![table, row, action.as_str(), now_text(), reason, json],
+    )?;
+    Ok(())
+}
+
+/// A revision's reason (refused when empty) and its earlier version as JSON.
+pub(crate) fn revision_text<'r>(
+    reason: &'r str,
+    before: &EarlierVersion,
+) -> Result<(&'r str, String), StoreError> {
     let reason = reason.trim();
     if reason.is_empty() {
         return Err(StoreError::Invalid(vec![FieldError::new(
@@ -588,13 +659,7 @@ pub(crate) fn record_revision(
         EarlierVersion::Delivery(d) => serde_json::to_string(d),
     }
     .map_err(|e| StoreError::Encode(e.to_string()))?;
-    let (table, row) = table_row(record);
-    conn.execute(
-        "INSERT INTO revisions (table_name, row_id, action, revised_at, reason, old_row) \
-         VALUES (?1, ?2, ?3, ?4, ?5, ?6)",
-        params![table, row, action.as_str(), now_text(), reason, json],
-    )?;
-    Ok(())
+    Ok((reason, json))
 }
 
 /// Decode a stored earlier version of a record.
