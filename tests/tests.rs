@@ -48,3 +48,7 @@ mod history;
 /// `report`: self-contained HTML whose figures equal the audit's JSON; statements as HTML and CSV.
 #[path = "e2e/reports.rs"]
 mod reports;
+
+/// The command line on a PostgreSQL ledger: `--db postgres://...`, `copy` both ways, clear errors.
+#[path = "e2e/postgres.rs"]
+mod postgres;

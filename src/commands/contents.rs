@@ -6,9 +6,7 @@ use anyhow::{Result, anyhow};
 use clap::Args;
 use fluids::{FluidId, fluid};
 use serde::Serialize;
-use std::path::PathBuf;
 use std::process::ExitCode;
-use store::Repository;
 use tank::{
     AccuracyBasis, ChartComparison, Conditions, Contents, ContentsOptions, Cylinder, Gauge,
     GaugeAccuracy, HeadShape, LiquidState, Orientation, SafeFill, UncertaintyInputs,
@@ -22,9 +20,9 @@ pub struct ContentsArgs {
     /// Take the vessel, gauge and site barometer of this stored tank (with --db)
     #[arg(long, requires = "db", conflicts_with_all = ["fluid", "orientation", "diameter", "length", "heads"])]
     pub tank: Option<String>,
-    /// Database holding --tank
-    #[arg(long, value_name = "PATH", requires = "tank")]
-    pub db: Option<PathBuf>,
+    /// Ledger holding --tank: a SQLite file or postgres://USER@HOST/DATABASE
+    #[arg(long, value_name = "PATH|URL", requires = "tank")]
+    pub db: Option<store::Location>,
     /// nitrogen, oxygen, argon, carbon-dioxide, methane, hydrogen or parahydrogen (or N2, O2, ...)
     #[arg(long, required_unless_present = "tank")]
     pub fluid: Option<FluidId>,

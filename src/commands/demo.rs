@@ -6,8 +6,7 @@ use std::process::ExitCode;
 use anyhow::{Context, Result};
 use clap::Args;
 use store::{
-    ImportOptions, ImportSource, ImportSources, ImportSummary, ReadingEntry, Repository, Store,
-    TankRecord,
+    ImportOptions, ImportSource, ImportSources, ImportSummary, Location, ReadingEntry, TankRecord,
 };
 
 /// The demo scenario's tanks (generated; see demo-data/README.md).
@@ -20,10 +19,10 @@ pub const DELIVERIES_CSV: &str = include_str!("../../demo-data/deliveries.csv");
 /// Arguments of `demo`.
 #[derive(Args)]
 pub struct DemoArgs {
-    /// Database file to write the demo into (default: cryoledger.db in your data directory); it must
-    /// not hold any of the demo's tanks yet
-    #[arg(long, value_name = "PATH")]
-    pub db: Option<PathBuf>,
+    /// Ledger to write the demo into, a SQLite file or postgres://USER@HOST/DATABASE (default:
+    /// cryoledger.db in your data directory); it must not hold any of the demo's tanks yet
+    #[arg(long, value_name = "PATH|URL")]
+    pub db: Option<Location>,
     /// Keep the scenario's own dates (2026) instead of moving them so that the latest readings are
     /// from today
     #[arg(long)]
@@ -32,7 +31,7 @@ pub struct DemoArgs {
 
 /// Import the embedded demo CSVs into the database at `db` (created if missing), all or nothing; a
 /// database this created is removed again when the import fails.
-pub fn write_demo(db: &Path) -> Result<ImportSummary> {
+pub fn write_demo(db: &Location) -> Result<ImportSummary> {
     write_demo_dated(db, true)
 }
 
@@ -112,13 +111,17 @@ fn shift_times(text: &str, columns: &[&str], days: i64) -> Result<String> {
 
 /// [`write_demo`], with the scenario's dates moved so that the latest readings are from today
 /// (`move_dates`) or as written.
-pub fn write_demo_dated(db: &Path, move_dates: bool) -> Result<ImportSummary> {
-    if let Some(dir) = db.parent().filter(|d| !d.as_os_str().is_empty()) {
+pub fn write_demo_dated(db: &Location, move_dates: bool) -> Result<ImportSummary> {
+    if let Some(dir) = db
+        .file()
+        .and_then(Path::parent)
+        .filter(|d| !d.as_os_str().is_empty())
+    {
         std::fs::create_dir_all(dir).with_context(|| format!("creating {}", dir.display()))?;
     }
-    let created = super::Created::database(db);
+    let created = super::Created::ledger(db);
     let result = (|| -> Result<ImportSummary> {
-        let mut store = Store::open(db).with_context(|| format!("opening {}", db.display()))?;
+        let mut store = super::open(db)?;
         let checker = evaluate::ReadingChecker::new();
         let check = |t: &TankRecord, r: &ReadingEntry| checker.check(t, r);
         let opts = ImportOptions {
@@ -137,7 +140,7 @@ pub fn write_demo_dated(db: &Path, move_dates: bool) -> Result<ImportSummary> {
         };
         store
             .import(sources, &opts)
-            .with_context(|| format!("writing the demo into {}", db.display()))
+            .with_context(|| format!("writing the demo into {db}"))
     })();
     if result.is_err() {
         created.remove();
@@ -148,16 +151,13 @@ pub fn write_demo_dated(db: &Path, move_dates: bool) -> Result<ImportSummary> {
 /// Run `demo`.
 pub fn run(a: DemoArgs, default_db: impl FnOnce() -> Result<PathBuf>) -> Result<ExitCode> {
     let db = match a.db {
-        Some(p) => p,
-        None => default_db()?,
+        Some(l) => l,
+        None => Location::File(default_db()?),
     };
     let s = write_demo_dated(&db, !a.keep_dates)?;
     println!(
         "wrote the demo fleet into {}: {} tanks, {} readings, {} deliveries",
-        db.display(),
-        s.tanks,
-        s.readings,
-        s.deliveries
+        db, s.tanks, s.readings, s.deliveries
     );
     Ok(ExitCode::SUCCESS)
 }

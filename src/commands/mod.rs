@@ -2,6 +2,7 @@
 
 pub mod audit;
 pub mod contents;
+pub mod copy;
 pub mod demo;
 pub mod fluids;
 pub mod history;
@@ -13,6 +14,7 @@ use std::path::{Path, PathBuf};
 
 use anyhow::{Context, Result};
 use clap::ValueEnum;
+use store::Location;
 
 /// Output format of the computing subcommands.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum, Default)]
@@ -24,12 +26,23 @@ pub enum Format {
     Json,
 }
 
-/// Open an existing database (the headless commands never create one by accident).
-pub fn open_existing(db: &Path) -> Result<store::Store> {
-    if !db.exists() {
-        anyhow::bail!("{}: no such database", db.display());
+/// Open an existing ledger, a SQLite file or a PostgreSQL database (the headless commands never
+/// create a file by accident).
+pub fn open_existing(db: &Location) -> Result<Box<dyn store::Repository + Send>> {
+    if let Some(p) = db.file()
+        && !p.exists()
+    {
+        anyhow::bail!("{}: no such database", p.display());
     }
-    store::Store::open(db).with_context(|| format!("opening {}", db.display()))
+    open(db)
+}
+
+/// Open (or create) a ledger; a server that cannot be reached says so in its own words.
+pub fn open(db: &Location) -> Result<Box<dyn store::Repository + Send>> {
+    db.open().map_err(|e| match e {
+        e @ store::StoreError::Connect { .. } => anyhow::Error::new(e),
+        e => anyhow::Error::new(e).context(format!("opening {db}")),
+    })
 }
 
 /// A file a command is about to create, removed again when the command fails (a failed command leaves
@@ -61,6 +74,15 @@ impl Created {
             }
         }
         c
+    }
+
+    /// [`Created::database`] for a SQLite ledger; nothing for a server's (its database outlives a
+    /// failed command, and a failed import leaves it as it was).
+    pub fn ledger(db: &Location) -> Self {
+        match db.file() {
+            Some(p) => Self::database(p),
+            None => Self { paths: Vec::new() },
+        }
     }
 
     /// Remove what was created.

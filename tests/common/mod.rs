@@ -82,3 +82,7 @@ pub fn audit_json(db: &Path, args: &[&str]) -> serde_json::Value {
     expect_success(&out);
     serde_json::from_slice(&out.stdout).unwrap()
 }
+
+/// PostgreSQL for the end-to-end tests: the store's harness, shared by path.
+#[path = "../../crates/store/tests/common/pg.rs"]
+pub mod pg;

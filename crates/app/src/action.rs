@@ -9,7 +9,7 @@ use crate::{AppError, describe};
 use std::sync::Arc;
 use std::sync::atomic::{AtomicBool, AtomicUsize, Ordering};
 use std::sync::mpsc::{Receiver, TryRecvError};
-use store::{Repository, Store, TankId};
+use store::{Repository, TankId};
 
 mod import;
 mod intent;
@@ -27,8 +27,8 @@ struct FleetJob {
 
 /// The store, the view state built from it, and background work.
 pub struct Core {
-    /// The open store: private, so that [`Core::handle`] is the only code that can write to it.
-    store: Store,
+    /// The open ledger: private, so that [`Core::handle`] is the only code that can write to it.
+    store: Box<dyn Repository + Send>,
     /// The latest fleet audit (the fleet list and the tank page's open findings come from it).
     fleet_audit: Option<Arc<audit::FleetAudit>>,
     /// What the panels draw.
@@ -38,16 +38,21 @@ pub struct Core {
     /// The first fleet summary waits for the first frame, so a page opened at start-up is built
     /// without competing with it.
     summary_pending: bool,
-    /// The database file, when there is one: the fleet summary then reads through its own connection
-    /// on its thread, so the window never waits for a large fleet.
-    db_path: Option<std::path::PathBuf>,
+    /// Where the ledger lives, when another connection can reach it (a file or a server, not memory):
+    /// the fleet summary then reads through its own connection on its thread, so the window never
+    /// waits for a large fleet.
+    location: Option<store::Location>,
 }
 
 impl Core {
     /// A core on an open store; the fleet summary starts in the background on the first frame (or
     /// [`Core::wait_for_background`]). With `db_path` (the store's file) the summary also reads on its
     /// own thread.
-    pub fn new(store: Store, units: UnitSystem, db_path: Option<std::path::PathBuf>) -> Self {
+    pub fn new(
+        store: Box<dyn Repository + Send>,
+        units: UnitSystem,
+        location: Option<store::Location>,
+    ) -> Self {
         let mut core = Self {
             store,
             fleet_audit: None,
@@ -58,7 +63,7 @@ impl Core {
             job: None,
             import_job: None,
             summary_pending: true,
-            db_path: db_path.filter(|p| p.is_file()),
+            location: location.filter(|l| l.file().is_none_or(std::path::Path::is_file)),
         };
         core.view.cautions = build::cautions().to_vec();
         core.view.reading_editor.form = build::new_reading_form(None, units);
@@ -73,7 +78,7 @@ impl Core {
 
     /// The open store, to read (tests, start-up options); only [`Core::handle`] writes.
     pub fn repository(&self) -> &dyn Repository {
-        &self.store
+        self.store.as_ref()
     }
 
     /// Start (or restart) the fleet summary: the bridge's fleet audit and each tank's line, on a named
@@ -101,17 +106,18 @@ impl Core {
         };
         // the audit page is built on the summary's thread from the page's settings now
         let page = Some((build::audit_settings(&self.view.audit), self.view.units));
-        let Some(path) = self.db_path.clone() else {
+        let Some(location) = self.location.clone() else {
             self.view.fleet.as_of_ms = now;
-            let result = build::fleet_summary(&self.store, now, &mut progress, &cancel, None);
+            let result =
+                build::fleet_summary(self.store.as_ref(), now, &mut progress, &cancel, None);
             return self.install_fleet(result);
         };
         let spawned = std::thread::Builder::new()
             .name("fleet-summary".into())
             .spawn(move || {
-                let result = Store::open(&path)
-                    .map_err(AppError::from)
-                    .and_then(|s| build::fleet_summary(&s, now, &mut progress, &cancel, page));
+                let result = location.open().map_err(AppError::from).and_then(|s| {
+                    build::fleet_summary(s.as_ref(), now, &mut progress, &cancel, page)
+                });
                 // The receiver may be gone when a newer summary replaced this one.
                 let _ = tx.send(result);
             });
@@ -232,7 +238,7 @@ impl Core {
                 // the open tank page's findings, verdicts and marks come from the fleet audit; its
                 // readings need no new evaluation
                 if let (Some(tv), Some(fa)) = (self.view.tank.as_mut(), self.fleet_audit.as_deref())
-                    && let Err(e) = build::apply_fleet_audit(tv, &self.store, fa)
+                    && let Err(e) = build::apply_fleet_audit(tv, self.store.as_ref(), fa)
                 {
                     self.view.error = Some(e.to_string());
                 }
@@ -268,7 +274,7 @@ impl Core {
             .map(|t| t.trend.quantity)
             .unwrap_or_default();
         let fleet_audit = self.fleet_audit.as_deref();
-        match build::tank_view(&self.store, id, self.view.units, q, fleet_audit) {
+        match build::tank_view(self.store.as_ref(), id, self.view.units, q, fleet_audit) {
             Ok(mut tv) => {
                 if let Some(old) = &self.view.tank
                     && old.id == id
@@ -298,7 +304,7 @@ impl Core {
 
     /// Show the history of the record a form edits (none for a new record).
     fn load_history<F: Flow>(&mut self, id: Option<i64>) {
-        let rows = match id.map(|id| build::history(&self.store, F::record(id))) {
+        let rows = match id.map(|id| build::history(self.store.as_ref(), F::record(id))) {
             Some(Ok(rows)) => rows,
             Some(Err(e)) => {
                 self.fail(e);
@@ -312,7 +318,7 @@ impl Core {
     /// Load a stored record into its form (None: a blank form).
     fn select<F: Flow>(&mut self, id: Option<i64>) {
         let form = match id {
-            Some(id) => match F::load(&self.store, id) {
+            Some(id) => match F::load(self.store.as_ref(), id) {
                 Ok(f) => f,
                 Err(e) => return self.fail(e),
             },
@@ -340,7 +346,7 @@ impl Core {
                 F::NOUN
             ));
         }
-        match F::delete(&mut self.store, id, &reason) {
+        match F::delete(self.store.as_mut(), id, &reason) {
             Ok(()) => {
                 self.after_change::<F>(None);
                 self.saved(format!(
@@ -367,9 +373,9 @@ impl Core {
         };
         let form = editor.form.clone();
         let result = match F::editing(&form) {
-            Some(id) => F::edit(&mut self.store, id, &entry, F::reason(&form).trim())
+            Some(id) => F::edit(self.store.as_mut(), id, &entry, F::reason(&form).trim())
                 .map(|()| (Some(id), format!("{} changed.", F::label(&entry)))),
-            None => F::add(&mut self.store, t.id, &entry)
+            None => F::add(self.store.as_mut(), t.id, &entry)
                 .map(|()| (None, format!("{} saved.", F::label(&entry)))),
         };
         match result {
@@ -391,7 +397,7 @@ impl Core {
         let t = self.store_tank();
         let units = self.view.units;
         let form = keep
-            .and_then(|id| F::load(&self.store, id).ok())
+            .and_then(|id| F::load(self.store.as_ref(), id).ok())
             .unwrap_or_else(|| F::blank(t.as_ref(), units));
         let editor = F::editor(&mut self.view);
         editor.form = form;
@@ -515,7 +521,7 @@ impl Core {
                 self.view.page = Page::Setup;
                 self.view.setup_tried = false;
                 self.view.setup_form = match id {
-                    Some(id) => match build::setup_form_for(&self.store, id) {
+                    Some(id) => match build::setup_form_for(self.store.as_ref(), id) {
                         Ok(f) => f,
                         Err(e) => return self.fail(e),
                     },
@@ -643,7 +649,7 @@ impl Core {
                 }
                 self.handle(Action::SelectTank(id));
                 self.view.page = Page::Setup;
-                self.view.setup_form = build::setup_form_for(&self.store, id)
+                self.view.setup_form = build::setup_form_for(self.store.as_ref(), id)
                     .unwrap_or_else(|_| self.view.setup_form.clone());
                 self.recheck_setup();
                 self.saved(format!("Tank {} saved.", spec.name));

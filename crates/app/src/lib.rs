@@ -28,9 +28,7 @@ pub mod view;
 use action::{Action, Core};
 use fmt::UnitSystem;
 use serde::{Deserialize, Serialize};
-use std::path::PathBuf;
 use std::time::Instant;
-use store::Store;
 use view::{AuditSection, Page, TankTab, ViewState};
 
 /// Why something the window asked for failed.
@@ -89,7 +87,7 @@ const SETTINGS_KEY: &str = "cryoledger-settings";
 /// The application: the core (store, view state, background work) and the queue of user intents.
 pub struct CryoApp {
     core: Core,
-    db_path: PathBuf,
+    location: store::Location,
     actions: Vec<Action>,
     frame_ms: f64,
     last_frame_ms: f64,
@@ -98,16 +96,24 @@ pub struct CryoApp {
 }
 
 impl CryoApp {
-    /// An app on an open store, with default settings.
-    pub fn new(store: Store, db_path: PathBuf) -> Self {
-        Self::with_settings(store, db_path, Settings::default())
+    /// An app on an open ledger (at `location`: a file, a server, or a name such as `:memory:`), with
+    /// default settings.
+    pub fn new(
+        store: impl store::Repository + Send + 'static,
+        location: impl Into<store::Location>,
+    ) -> Self {
+        Self::with_settings(Box::new(store), location.into(), Settings::default())
     }
 
-    /// An app on an open store with remembered settings.
-    pub fn with_settings(store: Store, db_path: PathBuf, settings: Settings) -> Self {
+    /// An app on an open ledger with remembered settings.
+    pub fn with_settings(
+        store: Box<dyn store::Repository + Send>,
+        location: store::Location,
+        settings: Settings,
+    ) -> Self {
         Self {
-            core: Core::new(store, settings.units, Some(db_path.clone())),
-            db_path,
+            core: Core::new(store, settings.units, Some(location.clone())),
+            location,
             actions: Vec::new(),
             frame_ms: 0.0,
             last_frame_ms: 0.0,
@@ -149,9 +155,9 @@ impl CryoApp {
         self.core.wait_for_background();
     }
 
-    /// The database this app shows.
-    pub fn db_path(&self) -> &std::path::Path {
-        &self.db_path
+    /// The ledger this app shows.
+    pub fn location(&self) -> &store::Location {
+        &self.location
     }
 
     /// The settings to remember.
@@ -327,9 +333,12 @@ impl CryoApp {
     }
 }
 
-/// Open the window on the database at `db_path`.
-pub fn run_native(store: Store, db_path: PathBuf) -> eframe::Result {
-    let title = format!("cryoledger — {}", db_path.display());
+/// Open the window on the ledger at `location`.
+pub fn run_native(
+    store: Box<dyn store::Repository + Send>,
+    location: store::Location,
+) -> eframe::Result {
+    let title = format!("cryoledger — {location}");
     let options = eframe::NativeOptions {
         viewport: egui::ViewportBuilder::default()
             .with_title(title)
@@ -351,7 +360,7 @@ pub fn run_native(store: Store, db_path: PathBuf) -> eframe::Result {
                 _ => {}
             }
             style::apply(&cc.egui_ctx);
-            let mut app = CryoApp::with_settings(store, db_path, settings);
+            let mut app = CryoApp::with_settings(store, location, settings);
             match std::env::var("CRYOLEDGER_OPEN") {
                 Ok(spec) if !spec.is_empty() => app.open_on(&spec),
                 // A first start shows a living tank as soon as the fleet summary is in.

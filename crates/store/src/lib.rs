@@ -27,8 +27,10 @@
 mod cell;
 mod chain;
 mod check;
+mod copy;
 mod csv_format;
 mod import;
+mod location;
 mod pg;
 mod records;
 mod repository;
@@ -39,10 +41,12 @@ pub use check::{
     DeliveryFields, FieldError, PLAUSIBLE_QUANTITY_KG, ReadingFields, TankFields, format_strapping,
     parse_strapping,
 };
+pub use copy::{CopySummary, copy_ledger};
 pub use csv_format::{
     DELIVERY_HEADER, ImportErrors, ImportFiles, ImportOptions, ImportSource, ImportSources,
     ImportSummary, READING_HEADER, ReadingCheck, RowError, TANK_HEADER,
 };
+pub use location::Location;
 pub use pg::{PG_MIGRATION_FILES, PgStore, describe_target};
 pub use records::*;
 pub use repository::{RecordKind, Repository};

@@ -3,13 +3,11 @@
 //! class and nullability. Both are built from their migration files; SQLite's column list is read
 //! with `PRAGMA table_info`, PostgreSQL's from `information_schema.columns` (SQL standard).
 //!
-//! The server: `CRYOLEDGER_PG` (a libpq connection string or URL) if set, else this project's
-//! machines' server at 127.0.0.1:5432 (trust authentication, database `test`; see
-//! ../shared/design/testing.md). Each run works in a schema of its own and drops it. Without a server
-//! the test says it was skipped and passes, unless `CRYOLEDGER_REQUIRE_PG=1` (as `.ci/run` sets),
-//! which makes a missing server a failure.
+//! The server and the skipping rule are `common::pg`'s; the test works in a database of its own.
 
 #![allow(clippy::expect_used, clippy::unwrap_used)] // a failure to set up is a test failure
+
+mod common;
 
 use std::collections::BTreeMap;
 
@@ -100,44 +98,18 @@ fn postgres_columns(pg: &mut postgres::Client, schema: &str) -> Columns {
     out
 }
 
-/// A client of the test server, or why there is none.
-fn connect() -> Result<postgres::Client, String> {
-    let url = std::env::var("CRYOLEDGER_PG")
-        .unwrap_or_else(|_| "host=127.0.0.1 port=5432 user=postgres dbname=test".into());
-    postgres::Client::connect(&url, postgres::NoTls).map_err(|e| format!("{url}: {e}"))
-}
-
 #[test]
 fn the_postgres_schema_holds_the_same_records_as_the_sqlite_one() {
-    let mut pg = match connect() {
-        Ok(c) => c,
-        Err(why) => {
-            assert!(
-                std::env::var("CRYOLEDGER_REQUIRE_PG").as_deref() != Ok("1"),
-                "PostgreSQL is required (CRYOLEDGER_REQUIRE_PG=1) and could not be reached: {why}"
-            );
-            eprintln!("PostgreSQL tests skipped: no server ({why}); set CRYOLEDGER_PG to run them");
-            return;
-        }
+    let Some(server) = common::server_or_skip() else {
+        return;
     };
-    let schema = format!(
-        "cryoledger_schema_test_{}_{}",
-        std::process::id(),
-        std::time::SystemTime::now()
-            .duration_since(std::time::UNIX_EPOCH)
-            .unwrap()
-            .subsec_nanos()
-    );
-    pg.batch_execute(&format!(
-        "CREATE SCHEMA {schema}; SET search_path TO {schema}"
-    ))
-    .unwrap();
-    let applied: Result<(), postgres::Error> =
-        POSTGRES.iter().try_for_each(|m| pg.batch_execute(m));
-    let pg_cols = postgres_columns(&mut pg, &schema);
-    pg.batch_execute(&format!("DROP SCHEMA {schema} CASCADE"))
-        .unwrap();
-    applied.expect("the PostgreSQL migrations apply");
+    let db = common::PgDatabase::new(&server);
+    let mut pg = postgres::Client::connect(&db.url(), postgres::NoTls).unwrap();
+    POSTGRES
+        .iter()
+        .try_for_each(|m| pg.batch_execute(m))
+        .expect("the PostgreSQL migrations apply");
+    let pg_cols = postgres_columns(&mut pg, "public");
 
     let lite = sqlite_columns();
     assert_eq!(

@@ -7,7 +7,6 @@ use crate::describe;
 use std::sync::Arc;
 use std::sync::atomic::Ordering;
 use std::sync::mpsc::Receiver;
-use store::{Repository, Store};
 
 /// An import running on its own thread and connection: bytes read of the files' total, and the result.
 pub(super) struct ImportJob {
@@ -58,7 +57,7 @@ impl Core {
         // a real import of a database file runs on its own thread and connection, its progress the
         // bytes read; a check, or a database in memory, runs here
         if !check_only
-            && let Some(path) = self.db_path.clone()
+            && let Some(location) = self.location.clone()
             && self.import_job.is_none()
         {
             let paths = self.view.import.paths.clone();
@@ -75,7 +74,7 @@ impl Core {
                 .name("import".into())
                 .spawn(move || {
                     let result = (|| {
-                        let mut store = Store::open(&path)?;
+                        let mut store = location.open()?;
                         let mut sources = build::import_sources(&paths)?;
                         for s in [
                             &mut sources.tanks,

@@ -4,7 +4,6 @@
 use super::{Core, ReportRequest};
 use crate::describe;
 use std::path::PathBuf;
-use store::Repository;
 
 /// A file to save to, chosen with the desktop's save dialog (the XDG desktop portal); None when
 /// cancelled or when the desktop offers no dialog.
@@ -70,24 +69,22 @@ impl Core {
         let opts = audit::AuditOptions::default();
         let now = crate::fmt::now_ms();
         let database = self
-            .db_path
+            .location
             .as_ref()
-            .and_then(|p| p.file_name())
-            .map_or_else(
-                || "a ledger in memory".to_string(),
-                |n| n.to_string_lossy().into_owned(),
-            );
+            .map_or_else(|| "a ledger in memory".to_string(), store::Location::name);
         let written = (|| -> Result<String, report::ReportError> {
-            let src = || report::Source::read(&self.store, &database, now);
+            let src = || report::Source::read(self.store.as_ref(), &database, now);
             Ok(match what {
-                ReportRequest::Fill(t) => report::fill_report(&self.store, &fa, &opts, &src()?, t)?,
+                ReportRequest::Fill(t) => {
+                    report::fill_report(self.store.as_ref(), &fa, &opts, &src()?, t)?
+                }
                 ReportRequest::Vehicle(v) => {
-                    report::vehicle_report(&self.store, &fa, &opts, &src()?, v, None, None)?
+                    report::vehicle_report(self.store.as_ref(), &fa, &opts, &src()?, v, None, None)?
                 }
                 ReportRequest::Statement(id) => {
                     let (from, to) = report::recent_months(now);
                     let s = report::statement(
-                        &self.store,
+                        self.store.as_ref(),
                         &fa,
                         &opts,
                         &report::Scope::Tank(tank_name(*id)),

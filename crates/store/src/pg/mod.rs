@@ -70,6 +70,11 @@ impl PgStore {
         &self.target
     }
 
+    /// The connection, for the crate's whole-ledger work (copy).
+    pub(crate) fn lock_client(&self) -> MutexGuard<'_, Client> {
+        self.client()
+    }
+
     fn client(&self) -> MutexGuard<'_, Client> {
         // a panic while holding the lock leaves the connection usable (no transaction survives it)
         self.client.lock().unwrap_or_else(PoisonError::into_inner)
@@ -153,6 +158,12 @@ fn migrate_locked(c: &mut Client) -> Result<(), StoreError> {
     Ok(())
 }
 
+/// Take the chain's lock for the rest of this transaction (every writer takes it first).
+pub(crate) fn lock_chain(tx: &mut impl GenericClient) -> Result<(), StoreError> {
+    tx.execute("SELECT pg_advisory_xact_lock($1)", &[&CHAIN_LOCK])?;
+    Ok(())
+}
+
 /// The chain's head inside one write transaction (which holds the chain's lock).
 pub(crate) struct PgChain {
     head: [u8; 32],
@@ -162,7 +173,7 @@ pub(crate) struct PgChain {
 
 impl PgChain {
     fn new(tx: &mut impl GenericClient) -> Result<Self, StoreError> {
-        tx.execute("SELECT pg_advisory_xact_lock($1)", &[&CHAIN_LOCK])?;
+        lock_chain(tx)?;
         let last = tx.query_opt("SELECT seq, link FROM chain ORDER BY seq DESC LIMIT 1", &[])?;
         let (seq, head) = match last {
             Some(r) => {

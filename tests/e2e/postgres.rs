@@ -1,0 +1,180 @@
+//! The command line on a PostgreSQL ledger: every command takes `--db postgres://...`; a ledger copied
+//! SQLite -> PostgreSQL -> SQLite dumps exactly as it began; the demo fleet's audit is the same JSON
+//! from both databases; a server that cannot be reached, a missing database or an unknown user is
+//! told as what to check, with exit status 1 and no panic. (Expected values: the other backend's own
+//! output, or the rule stated beside each check; common practice, no source.)
+
+use crate::common::pg::{PgDatabase, server_or_skip};
+use crate::common::*;
+use store::Repository;
+
+fn run(args: &[&str]) -> std::process::Output {
+    bin().args(args).output().unwrap()
+}
+
+/// A demo ledger with earlier versions in its history: one reading edited, one deleted, one site's
+/// time zone changed.
+fn demo_with_history(dir: &std::path::Path) -> std::path::PathBuf {
+    let db = demo_db(dir);
+    let mut s = store::Store::open(&db).unwrap();
+    let t = s.tanks().unwrap().remove(0);
+    let r = s.readings(t.id, None).unwrap();
+    let mut e = r[0].entry.clone();
+    e.dp.value += 1.0;
+    s.edit_reading(r[0].id, &e, "misread on the round").unwrap();
+    s.delete_reading(r[1].id, "entered twice").unwrap();
+    db
+}
+
+#[test]
+fn a_ledger_copied_to_postgres_and_back_dumps_exactly_as_it_began() {
+    let Some(server) = server_or_skip() else {
+        return;
+    };
+    let dir = tempfile::tempdir().unwrap();
+    let db = demo_with_history(dir.path());
+    let pg = PgDatabase::new(&server);
+    let url = pg.uri();
+    let out = run(&["copy", "--from", db.to_str().unwrap(), "--to", &url]);
+    expect_success(&out);
+    let said = String::from_utf8_lossy(&out.stdout);
+    assert!(said.contains("2 earlier versions"), "{said}");
+    let back = dir.path().join("back.db");
+    let out = run(&["copy", "--from", &url, "--to", back.to_str().unwrap()]);
+    expect_success(&out);
+    assert_eq!(dump(&back), dump(&db), "SQLite -> PostgreSQL -> SQLite");
+
+    // the server's ledger goes on: a new reading gets the next id after the copied ones
+    let mut s = store::PgStore::connect(&url).unwrap();
+    let t = s.tanks().unwrap().remove(0);
+    let mut e = s.latest_reading(t.id).unwrap().unwrap().entry;
+    e.time = store::Stamp::from_ms(e.time.ms + 3_600_000);
+    let id = s.add_reading(t.id, &e).unwrap();
+    let max: i64 = store::Store::open(&db)
+        .unwrap()
+        .tanks()
+        .unwrap()
+        .iter()
+        .map(|t| {
+            let s = store::Store::open(&db).unwrap();
+            s.readings(t.id, None)
+                .unwrap()
+                .iter()
+                .map(|r| r.id.0)
+                .max()
+                .unwrap_or(0)
+        })
+        .max()
+        .unwrap();
+    assert!(id.0 > max, "new id {} after the copied {}", id.0, max);
+    assert!(s.verify().unwrap().problems.is_empty());
+
+    // a copy into a ledger that holds records is refused, and writes nothing
+    let before = s.dump().unwrap();
+    let out = run(&["copy", "--from", db.to_str().unwrap(), "--to", &url]);
+    assert_eq!(out.status.code(), Some(1));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("already holds records"));
+    assert_eq!(s.dump().unwrap(), before);
+}
+
+#[test]
+fn the_demo_audit_is_the_same_json_from_both_databases() {
+    let Some(server) = server_or_skip() else {
+        return;
+    };
+    let dir = tempfile::tempdir().unwrap();
+    let pg = PgDatabase::new(&server);
+    let url = pg.uri();
+    // the demo written by the command into each (same dates), then audited by the command
+    let lite = dir.path().join("demo.db");
+    for db in [lite.to_str().unwrap(), url.as_str()] {
+        expect_success(&run(&["demo", "--keep-dates", "--db", db]));
+    }
+    let audit = |db: &str| {
+        let out = run(&["audit", "--format", "json", "--db", db]);
+        expect_success(&out);
+        out.stdout
+    };
+    let (a, b) = (audit(lite.to_str().unwrap()), audit(&url));
+    assert!(a.len() > 100_000, "a whole fleet's audit");
+    assert!(
+        a == b,
+        "the audit JSON differs between SQLite and PostgreSQL"
+    );
+    // and the other commands read the server's ledger too
+    for args in [
+        vec!["verify", "--db", url.as_str()],
+        vec!["export", "--db", url.as_str(), "--what", "readings"],
+        vec![
+            "contents",
+            "--db",
+            url.as_str(),
+            "--tank",
+            "ASB-N2-1",
+            "--dp",
+            "80 inH2O",
+            "--pressure",
+            "8 barg",
+        ],
+    ] {
+        expect_success(&run(&args));
+    }
+    let out = run(&[
+        "backup",
+        "--db",
+        &url,
+        "--out",
+        dir.path().join("b.db").to_str().unwrap(),
+    ]);
+    assert_eq!(out.status.code(), Some(1));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("cryoledger copy"));
+}
+
+#[test]
+fn an_unreachable_server_a_missing_database_and_an_unknown_user_are_told_plainly() {
+    // port 1 on loopback: nothing listens (no server needed for this case)
+    let cases: Vec<(String, &str)> = {
+        let mut v = vec![(
+            "postgres://postgres@127.0.0.1:1/fleet".to_owned(),
+            "no PostgreSQL server answers at 127.0.0.1:1",
+        )];
+        v.push((
+            "postgres://ops:secret@[::1".to_owned(),
+            "not a PostgreSQL URL",
+        ));
+        if let Some(server) = server_or_skip() {
+            let pg = PgDatabase::new(&server);
+            let url = pg.uri();
+            let user = server.get_user().unwrap_or("postgres").to_owned();
+            v.push((
+                url.replace(&pg.name, "no_such_ledger_db"),
+                "there is no database 'no_such_ledger_db'",
+            ));
+            v.push((
+                url.replacen(&format!("//{user}"), "//nobody_here", 1),
+                "does not let user 'nobody_here' in",
+            ));
+        }
+        v
+    };
+    for (url, says) in cases {
+        for cmd in [
+            &["audit", "--db"][..],
+            &["import", "--readings", "x.csv", "--db"][..],
+        ] {
+            let mut args: Vec<&str> = cmd.to_vec();
+            args.push(&url);
+            let out = run(&args);
+            let err = String::from_utf8_lossy(&out.stderr);
+            assert_eq!(out.status.code(), Some(1), "{url}: {err}");
+            assert!(!err.contains("panicked"), "{err}");
+            if cmd[0] == "audit" {
+                assert!(err.contains(says), "{url}: {err}");
+                assert!(
+                    !err.contains("secret"),
+                    "the password is never shown: {err}"
+                );
+            }
+        }
+    }
+}
