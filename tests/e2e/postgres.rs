@@ -21,8 +21,10 @@ fn demo_with_history(dir: &std::path::Path) -> std::path::PathBuf {
     let r = s.readings(t.id, None).unwrap();
     let mut e = r[0].entry.clone();
     e.dp.value += 1.0;
-    s.edit_reading(r[0].id, &e, "misread on the round").unwrap();
-    s.delete_reading(r[1].id, "entered twice").unwrap();
+    s.edit_reading(r[0].id, r[0].revision, &e, "misread on the round")
+        .unwrap();
+    s.delete_reading(r[1].id, r[1].revision, "entered twice")
+        .unwrap();
     db
 }
 

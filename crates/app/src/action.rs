@@ -374,7 +374,7 @@ impl Core {
         let form = editor.form.clone();
         let result = match F::editing(&form) {
             Some(id) => F::edit(self.store.as_mut(), id, &entry, F::reason(&form).trim())
-                .map(|()| (Some(id), format!("{} changed.", F::label(&entry)))),
+                .map(|()| (Some(id.0), format!("{} changed.", F::label(&entry)))),
             None => F::add(self.store.as_mut(), t.id, &entry)
                 .map(|()| (None, format!("{} saved.", F::label(&entry)))),
         };
@@ -617,7 +617,7 @@ impl Core {
                 } else {
                     reason.clone()
                 };
-                self.store.edit_site(s.id, &site, &why)
+                self.store.edit_site(s.id, s.revision, &site, &why)
             }
             Some(_) => Ok(()),
         };
@@ -627,7 +627,7 @@ impl Core {
         let result = match self.view.setup_form.editing {
             Some(id) => self
                 .store
-                .edit_tank(TankId(id), &spec, &reason)
+                .edit_tank(TankId(id), self.view.setup_form.opened, &spec, &reason)
                 .map(|()| id),
             None => self.store.add_tank(&spec).map(|id| id.0),
         };

@@ -20,8 +20,8 @@ pub trait Flow {
     const NOUN: &'static str;
     /// Its editor in the view state.
     fn editor(view: &mut ViewState) -> &mut Editor<Self::Form>;
-    /// The record the form edits, if any.
-    fn editing(form: &Self::Form) -> Option<i64>;
+    /// The record the form edits, if any, and the revision of it the form was filled from.
+    fn editing(form: &Self::Form) -> Option<(i64, i64)>;
     /// The reason typed for an edit or deletion.
     fn reason(form: &Self::Form) -> &str;
     /// A blank form for a tank.
@@ -36,15 +36,15 @@ pub trait Flow {
     ) -> (FormCheck, Option<Self::Entry>);
     /// Store a new record.
     fn add(repo: &mut dyn Repository, tank: TankId, e: &Self::Entry) -> Result<(), StoreError>;
-    /// Replace a stored record, with the reason.
+    /// Replace a stored record (as of revision `opened`), with the reason.
     fn edit(
         repo: &mut dyn Repository,
-        id: i64,
+        id: (i64, i64),
         e: &Self::Entry,
         reason: &str,
     ) -> Result<(), StoreError>;
-    /// Delete a stored record, with the reason.
-    fn delete(repo: &mut dyn Repository, id: i64, reason: &str) -> Result<(), StoreError>;
+    /// Delete a stored record (as of revision `opened`), with the reason.
+    fn delete(repo: &mut dyn Repository, id: (i64, i64), reason: &str) -> Result<(), StoreError>;
     /// The key of a stored record's history.
     fn record(id: i64) -> RecordRef;
     /// How a message names the record ("Reading of 2026-03-01T08:00:00Z").
@@ -61,8 +61,8 @@ impl Flow for ReadingFlow {
     fn editor(view: &mut ViewState) -> &mut Editor<ReadingForm> {
         &mut view.reading_editor
     }
-    fn editing(form: &ReadingForm) -> Option<i64> {
-        form.editing
+    fn editing(form: &ReadingForm) -> Option<(i64, i64)> {
+        form.editing.map(|id| (id, form.opened))
     }
     fn reason(form: &ReadingForm) -> &str {
         &form.reason
@@ -85,14 +85,18 @@ impl Flow for ReadingFlow {
     }
     fn edit(
         repo: &mut dyn Repository,
-        id: i64,
+        (id, opened): (i64, i64),
         e: &ReadingEntry,
         reason: &str,
     ) -> Result<(), StoreError> {
-        repo.edit_reading(ReadingId(id), e, reason)
+        repo.edit_reading(ReadingId(id), opened, e, reason)
     }
-    fn delete(repo: &mut dyn Repository, id: i64, reason: &str) -> Result<(), StoreError> {
-        repo.delete_reading(ReadingId(id), reason)
+    fn delete(
+        repo: &mut dyn Repository,
+        (id, opened): (i64, i64),
+        reason: &str,
+    ) -> Result<(), StoreError> {
+        repo.delete_reading(ReadingId(id), opened, reason)
     }
     fn record(id: i64) -> RecordRef {
         RecordRef::Reading(ReadingId(id))
@@ -112,8 +116,8 @@ impl Flow for DeliveryFlow {
     fn editor(view: &mut ViewState) -> &mut Editor<DeliveryForm> {
         &mut view.delivery_editor
     }
-    fn editing(form: &DeliveryForm) -> Option<i64> {
-        form.editing
+    fn editing(form: &DeliveryForm) -> Option<(i64, i64)> {
+        form.editing.map(|id| (id, form.opened))
     }
     fn reason(form: &DeliveryForm) -> &str {
         &form.reason
@@ -136,14 +140,18 @@ impl Flow for DeliveryFlow {
     }
     fn edit(
         repo: &mut dyn Repository,
-        id: i64,
+        (id, opened): (i64, i64),
         e: &DeliveryEntry,
         reason: &str,
     ) -> Result<(), StoreError> {
-        repo.edit_delivery(DeliveryId(id), e, reason)
+        repo.edit_delivery(DeliveryId(id), opened, e, reason)
     }
-    fn delete(repo: &mut dyn Repository, id: i64, reason: &str) -> Result<(), StoreError> {
-        repo.delete_delivery(DeliveryId(id), reason)
+    fn delete(
+        repo: &mut dyn Repository,
+        (id, opened): (i64, i64),
+        reason: &str,
+    ) -> Result<(), StoreError> {
+        repo.delete_delivery(DeliveryId(id), opened, reason)
     }
     fn record(id: i64) -> RecordRef {
         RecordRef::Delivery(DeliveryId(id))

@@ -411,6 +411,8 @@ pub struct Editor<F> {
 pub struct ReadingForm {
     /// The reading being edited, or None for a new reading.
     pub editing: Option<i64>,
+    /// The revision of it the form was filled from (an edit of a later one is refused).
+    pub opened: i64,
     /// When it was read, on the site's clock.
     pub time: LocalEntry,
     /// DP (a number, or a number and unit).
@@ -434,6 +436,8 @@ pub struct ReadingForm {
 pub struct DeliveryForm {
     /// The delivery being edited, or None for a new one.
     pub editing: Option<i64>,
+    /// The revision of it the form was filled from (an edit of a later one is refused).
+    pub opened: i64,
     /// Ticket number.
     pub ticket: String,
     /// Start of the fill, on the site's clock.
@@ -474,6 +478,8 @@ pub struct LocalEntry {
 pub struct SetupForm {
     /// The tank being edited, or None for a new one.
     pub editing: Option<i64>,
+    /// The revision of it the form was filled from (an edit of a later one is refused).
+    pub opened: i64,
     /// Site name.
     pub site: String,
     /// Site elevation, m (optional).

@@ -300,6 +300,51 @@ fn an_edited_reading_keeps_its_old_value_in_the_history() {
     );
 }
 
+/// Two people edit the same reading: the one who saves second made the change from a revision that
+/// has moved on; the window refuses it with both versions in the message, keeps what they typed in
+/// the form (nothing lost), and the other's value stays stored.
+#[test]
+fn an_edit_of_a_reading_someone_else_changed_meanwhile_is_refused_with_both_versions() {
+    let dir = tempfile::tempdir().expect("dir");
+    let db = dir.path().join("ledger.db");
+    let store = common::demo_into(store::Store::open(&db).expect("store"));
+    let mut app = CryoApp::new(store, db.clone());
+    app.wait_for_background();
+    let mut h = Harness::builder()
+        .with_size(egui::vec2(1360.0, 860.0))
+        .build_eframe(move |_cc| app);
+    h.run();
+    select(&mut h, "ASB-N2-1");
+    let id = tank_id(&h, "ASB-N2-1");
+    tab(&mut h, "Readings");
+    let first = newest(&h, id);
+    h.get_by_label(&shown(&h, id, first.entry.time.ms)).click();
+    h.run();
+    assert_eq!(h.state().view().reading_editor.form.opened, first.revision);
+    // someone else, on their own connection, changes it meanwhile
+    use store::Repository as _;
+    let mut other = store::Store::open(&db).expect("second connection");
+    let mut theirs = first.entry.clone();
+    theirs.dp.value = 77.25;
+    other
+        .edit_reading(first.id, first.revision, &theirs, "their correction")
+        .expect("their edit");
+    type_into(&mut h, "DP", "99.5");
+    type_into(&mut h, "Reason for the change", "my correction");
+    h.get_by_label("Save change").click();
+    h.run();
+    h.get_by_label_contains("was changed by someone else after you opened it");
+    h.get_by_label_contains("DP 77.25 inH2O");
+    h.get_by_label_contains("DP 99.5 inH2O");
+    let stored = h.state().repository().reading(first.id).expect("reading");
+    assert_eq!(stored.entry.dp.value, 77.25, "theirs stays");
+    assert_eq!(
+        h.state().view().reading_editor.form.dp,
+        "99.5",
+        "yours stays in the form"
+    );
+}
+
 #[test]
 fn tank_setup_creates_a_tank_with_a_live_full_tank_dp() {
     let mut h = harness(common::demo_store());

@@ -340,6 +340,7 @@ mod tests {
             elevation_m: None,
             barometer_kpa: Some(101.3),
             time_zone: None,
+            revision: 1,
         };
         let mut out = String::new();
         canonical_site(&mut out, &site);

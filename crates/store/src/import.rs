@@ -228,6 +228,7 @@ fn import_tanks(
                         barometer_pa,
                         time_zone: zone,
                         spec,
+                        revision: 1,
                     },
                 );
             }

@@ -178,9 +178,9 @@ pub enum StoreError {
     /// The operation does not apply to this kind of ledger.
     #[error("{0}")]
     Unsupported(String),
-    /// A record was changed by someone else since it was opened; nothing was written.
+    /// A record was changed by someone else after it was opened; nothing was written.
     #[error("{0}")]
-    Conflict(String),
+    Conflict(Box<Conflict>),
     /// A record could not be encoded for the history.
     #[error("cannot encode the earlier version: {0}")]
     Encode(String),

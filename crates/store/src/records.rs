@@ -86,6 +86,13 @@ pub struct Site {
     /// The site's time zone, an IANA name (None: times shown in UTC).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub time_zone: Option<String>,
+    /// Its revision: 1 when written, one more at each change.
+    #[serde(default = "first_revision")]
+    pub revision: i64,
+}
+
+fn first_revision() -> i64 {
+    1
 }
 
 /// What a site is set with: its barometer (elevation or an entered value) and its clock.
@@ -210,6 +217,8 @@ pub struct TankRecord {
     pub time_zone: Option<String>,
     /// The settings.
     pub spec: TankSpec,
+    /// Its revision: 1 when written, one more at each change.
+    pub revision: i64,
 }
 
 /// A reading as entered: one DP and pressure observation of a tank.
@@ -236,6 +245,8 @@ pub struct Reading {
     pub tank_id: TankId,
     /// What was entered.
     pub entry: ReadingEntry,
+    /// Its revision: 1 when written, one more at each change.
+    pub revision: i64,
 }
 
 /// A delivery as entered: one fill, with its ticket.
@@ -266,6 +277,8 @@ pub struct Delivery {
     pub tank_id: TankId,
     /// What was entered.
     pub entry: DeliveryEntry,
+    /// Its revision: 1 when written, one more at each change.
+    pub revision: i64,
 }
 
 /// A carrier's vehicle.
@@ -340,4 +353,106 @@ pub struct Revision {
     pub reason: String,
     /// The record before the change.
     pub before: EarlierVersion,
+}
+
+/// A change refused because someone else changed the record after it was opened: both versions, so
+/// that nothing is lost (the refused one is still in the caller's hands and shown here).
+#[derive(Debug, Clone, PartialEq)]
+pub struct Conflict {
+    /// Which record.
+    pub record: RecordRef,
+    /// The revision the change was made from.
+    pub opened: i64,
+    /// The record's revision now.
+    pub current: i64,
+    /// The stored version now (someone else's).
+    pub theirs: EarlierVersion,
+    /// The refused change (None: a deletion).
+    pub yours: Option<EarlierVersion>,
+}
+
+impl RecordRef {
+    /// "reading 12", "tank 3".
+    pub fn label(&self) -> String {
+        match self {
+            RecordRef::Site(id) => format!("site {id}"),
+            RecordRef::Tank(id) => format!("tank {id}"),
+            RecordRef::Reading(id) => format!("reading {id}"),
+            RecordRef::Delivery(id) => format!("delivery {id}"),
+        }
+    }
+}
+
+impl EarlierVersion {
+    /// The version in one line of its entered values.
+    pub fn summary(&self) -> String {
+        fn opt(v: Option<f64>, unit: &str) -> String {
+            v.map_or_else(|| "none".to_owned(), |v| format!("{v} {unit}"))
+        }
+        match self {
+            EarlierVersion::Site(s) => format!(
+                "{}: elevation {}, barometer {}, time zone {}",
+                s.name,
+                opt(s.elevation_m, "m"),
+                opt(s.barometer_kpa, "kPa"),
+                s.time_zone.as_deref().unwrap_or("none (UTC)")
+            ),
+            EarlierVersion::Tank(t) => format!(
+                "{} at {}: {}, {} {} m x {} m, {} heads, line {} C",
+                t.name,
+                t.site,
+                t.fluid.name(),
+                t.orientation.as_str(),
+                t.diameter_m,
+                t.length_m,
+                t.heads.as_str(),
+                t.line_temperature_c
+            ),
+            EarlierVersion::Reading(r) => {
+                let mut s = format!(
+                    "{}: DP {} {}, pressure {} {}",
+                    r.time.text,
+                    r.dp.value,
+                    units::Unit::symbol(r.dp.unit),
+                    r.pressure.value,
+                    units::Unit::symbol(r.pressure.unit)
+                );
+                if let Some(t) = r.liquid_temperature_k {
+                    s.push_str(&format!(", liquid {t} K"));
+                }
+                if let Some(n) = r.note.as_deref().filter(|n| !n.is_empty()) {
+                    s.push_str(&format!(", note \"{n}\""));
+                }
+                s
+            }
+            EarlierVersion::Delivery(d) => format!(
+                "ticket {}: {} to {}, {} {}, {} {}",
+                d.ticket,
+                d.start.text,
+                d.end.text,
+                d.quantity.value,
+                units::Unit::symbol(d.quantity.unit),
+                d.carrier,
+                d.vehicle
+            ),
+        }
+    }
+}
+
+impl fmt::Display for Conflict {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        write!(
+            f,
+            "{} was changed by someone else after you opened it (you opened revision {}, it is now at \
+             revision {}), so your change was not saved and theirs stays. Theirs: {}. Yours: {}. Open \
+             it again and make your change on the current version.",
+            self.record.label(),
+            self.opened,
+            self.current,
+            self.theirs.summary(),
+            self.yours
+                .as_ref()
+                .map_or_else(|| "delete it".to_owned(), EarlierVersion::summary)
+        )
+    }
 }

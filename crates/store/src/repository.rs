@@ -32,10 +32,13 @@ pub trait Repository {
     fn sites(&self) -> Result<Vec<Site>, StoreError>;
     /// Create a site; its name must be new.
     fn add_site(&mut self, name: &str, settings: &SiteSettings) -> Result<SiteId, StoreError>;
-    /// Change a site's settings (barometer, time zone), keeping the earlier version.
+    /// Change a site's settings (barometer, time zone), keeping the earlier version. `opened` is the revision the change was
+    /// made from: when someone else changed the site since, nothing is written and
+    /// [`StoreError::Conflict`] shows both versions (so for every edit and deletion below).
     fn edit_site(
         &mut self,
         id: SiteId,
+        opened: i64,
         settings: &SiteSettings,
         reason: &str,
     ) -> Result<(), StoreError>;
@@ -49,7 +52,13 @@ pub trait Repository {
     /// Create a tank (and its site if new).
     fn add_tank(&mut self, spec: &TankSpec) -> Result<TankId, StoreError>;
     /// Change a tank's settings, keeping the earlier version.
-    fn edit_tank(&mut self, id: TankId, spec: &TankSpec, reason: &str) -> Result<(), StoreError>;
+    fn edit_tank(
+        &mut self,
+        id: TankId,
+        opened: i64,
+        spec: &TankSpec,
+        reason: &str,
+    ) -> Result<(), StoreError>;
 
     /// Add one reading to a tank.
     fn add_reading(&mut self, tank: TankId, entry: &ReadingEntry) -> Result<ReadingId, StoreError>;
@@ -67,11 +76,17 @@ pub trait Repository {
     fn edit_reading(
         &mut self,
         id: ReadingId,
+        opened: i64,
         entry: &ReadingEntry,
         reason: &str,
     ) -> Result<(), StoreError>;
     /// Delete a reading: marked deleted, its values kept in the history with the reason.
-    fn delete_reading(&mut self, id: ReadingId, reason: &str) -> Result<(), StoreError>;
+    fn delete_reading(
+        &mut self,
+        id: ReadingId,
+        opened: i64,
+        reason: &str,
+    ) -> Result<(), StoreError>;
     /// Number of live readings, of one tank or all.
     fn reading_count(&self, tank: Option<TankId>) -> Result<i64, StoreError>;
 
@@ -89,11 +104,17 @@ pub trait Repository {
     fn edit_delivery(
         &mut self,
         id: DeliveryId,
+        opened: i64,
         entry: &DeliveryEntry,
         reason: &str,
     ) -> Result<(), StoreError>;
     /// Delete a delivery, keeping its values in the history with the reason.
-    fn delete_delivery(&mut self, id: DeliveryId, reason: &str) -> Result<(), StoreError>;
+    fn delete_delivery(
+        &mut self,
+        id: DeliveryId,
+        opened: i64,
+        reason: &str,
+    ) -> Result<(), StoreError>;
 
     /// All vehicles with their carriers, by name.
     fn vehicles(&self) -> Result<Vec<Vehicle>, StoreError>;

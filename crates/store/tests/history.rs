@@ -61,11 +61,12 @@ fn changes_outside_cryoledger_are_named() {
     }
     s.edit_reading(
         ids[1],
+        1,
         &reading(&s, 1_772_352_000_000 + 86_400_000, 61.0),
         "misread",
     )
     .unwrap();
-    s.delete_reading(ids[2], "entered twice").unwrap();
+    s.delete_reading(ids[2], 1, "entered twice").unwrap();
     let d = DeliveryFields {
         ticket: "K-1",
         start: "2026-03-02T10:00:00Z",
@@ -139,7 +140,7 @@ fn child_writer() {
         let r = reading(&s, ms, 40.0 + (i % 50) as f64);
         let id = s.add_reading(t.id, &r).unwrap();
         if i % 10 == 9 {
-            s.edit_reading(id, &reading(&s, ms, 39.5), "read again")
+            s.edit_reading(id, 1, &reading(&s, ms, 39.5), "read again")
                 .unwrap();
         }
         println!("saved {ms}");

@@ -56,10 +56,10 @@ ledger_tests! {
             .unwrap();
         // A reason is required.
         assert!(matches!(
-            s.edit_reading(id, &reading("2026-01-01T00:00:00Z", "101"), "  "),
+            s.edit_reading(id, 1, &reading("2026-01-01T00:00:00Z", "101"), "  "),
             Err(StoreError::Invalid(_))
         ));
-        s.edit_reading(id, &reading("2026-01-01T00:00:00Z", "110.5"), "typo in DP")
+        s.edit_reading(id, 1, &reading("2026-01-01T00:00:00Z", "110.5"), "typo in DP")
             .unwrap();
         assert_eq!(s.reading(id).unwrap().entry.dp.value, 110.5);
         let h = s.history(RecordRef::Reading(id)).unwrap();
@@ -71,7 +71,7 @@ ledger_tests! {
             "{:?}",
             h[0].before
         );
-        s.delete_reading(id, "duplicate of the morning round")
+        s.delete_reading(id, 2, "duplicate of the morning round")
             .unwrap();
         assert_eq!(s.readings(t, None).unwrap().len(), 0);
         assert_eq!(
@@ -95,7 +95,7 @@ ledger_tests! {
         let t = s.add_tank(&nitrogen_tank()).unwrap();
         let mut spec = nitrogen_tank();
         spec.diameter_m = 2.2;
-        s.edit_tank(t, &spec, "measured on site").unwrap();
+        s.edit_tank(t, 1, &spec, "measured on site").unwrap();
         assert_eq!(s.tank(t).unwrap().spec.diameter_m, 2.2);
         // every column an edit writes comes back as written (definition: a store returns what it stored)
         let full = TankFields {
@@ -120,9 +120,9 @@ ledger_tests! {
         }
         .check()
         .unwrap();
-        s.edit_tank(t, &full, "rebuilt").unwrap();
+        s.edit_tank(t, 2, &full, "rebuilt").unwrap();
         assert_eq!(s.tank(t).unwrap().spec, full);
-        s.edit_tank(t, &spec, "put back").unwrap();
+        s.edit_tank(t, 3, &spec, "put back").unwrap();
         assert!(matches!(&s.history(RecordRef::Tank(t)).unwrap()[0].before,
                 EarlierVersion::Tank(old) if old.diameter_m == 2.0));
         let d = DeliveryFields {
@@ -144,10 +144,10 @@ ledger_tests! {
         );
         let mut d2 = d.clone();
         d2.quantity.value = 2450.0;
-        s.edit_delivery(id, &d2, "corrected from the scale ticket")
+        s.edit_delivery(id, 1, &d2, "corrected from the scale ticket")
             .unwrap();
         assert_eq!(s.delivery(id).unwrap().entry.quantity.value, 2450.0);
-        s.delete_delivery(id, "entered on the wrong tank").unwrap();
+        s.delete_delivery(id, 2, "entered on the wrong tank").unwrap();
         assert!(s.deliveries(Some(t)).unwrap().is_empty());
         assert_eq!(s.history(RecordRef::Delivery(id)).unwrap().len(), 2);
     }
@@ -195,6 +195,7 @@ ledger_tests! {
         // changed with a reason: the earlier version kept, the chain still verifies
         s.edit_site(
             site.id,
+            site.revision,
             &SiteSettings {
                 time_zone: Some("America/Chicago".into()),
                 ..SiteSettings::of(&site)
@@ -214,6 +215,7 @@ ledger_tests! {
         // a name that is not a zone: refused, nothing changed
         let refused = s.edit_site(
             site.id,
+            site.revision + 1,
             &SiteSettings {
                 time_zone: Some("Europe/Atlantis".into()),
                 ..SiteSettings::default()
@@ -396,13 +398,50 @@ ledger_tests! {
         import_text(s.as_mut(), Some(TANKS), Some(READINGS), Some(DELIVERIES)).unwrap();
         let b2 = s.tank_by_name("b-2").unwrap();
         let r = s.readings(b2.id, None).unwrap();
-        s.edit_reading(r[0].id, &reading("2026-01-01T08:00:00Z", "81"), "misread").unwrap();
-        s.delete_reading(r[1].id, "entered twice").unwrap();
+        s.edit_reading(r[0].id, r[0].revision, &reading("2026-01-01T08:00:00Z", "81"), "misread").unwrap();
+        s.delete_reading(r[1].id, r[1].revision, "entered twice").unwrap();
         let v = s.verify().unwrap();
         assert!(v.problems.is_empty(), "{:?}", v.problems);
         assert_eq!(v.links, 3 + 3 + 4 + 2 + 2);
         assert_eq!(v.records, 3 + 3 + 4 + 2);
         assert_eq!(v.head.len(), 64);
         assert_eq!(s.schema_version().unwrap(), MIGRATION_FILES.len() as i64);
+    }
+
+    /// Every record carries its revision (1 when written, one more at each change); a change made from
+    /// a revision the record has moved on from is refused with both versions in the message, and
+    /// nothing is written: not the edit, not its history, not a chain link (a lost update otherwise).
+    fn a_change_from_an_old_revision_is_refused_with_both_versions(l: &Ledgers) {
+        let mut s = l.fresh();
+        let t = s.add_tank(&nitrogen_tank()).unwrap();
+        let id = s.add_reading(t, &reading("2026-01-01T00:00:00Z", "100")).unwrap();
+        assert_eq!(s.reading(id).unwrap().revision, 1);
+        assert_eq!(s.tank(t).unwrap().revision, 1);
+        // theirs: made from revision 1
+        s.edit_reading(id, 1, &reading("2026-01-01T00:00:00Z", "101"), "theirs").unwrap();
+        assert_eq!(s.reading(id).unwrap().revision, 2);
+        let before = s.dump().unwrap();
+        // yours: also made from revision 1
+        let e = s
+            .edit_reading(id, 1, &reading("2026-01-01T00:00:00Z", "99.5"), "yours")
+            .unwrap_err();
+        let StoreError::Conflict(c) = &e else { panic!("{e:?}") };
+        assert_eq!((c.opened, c.current), (1, 2));
+        let text = e.to_string();
+        assert!(text.contains("DP 101 inH2O") && text.contains("DP 99.5 inH2O"), "{text}");
+        assert!(text.contains("revision 1") && text.contains("revision 2"), "{text}");
+        assert_eq!(s.dump().unwrap(), before);
+        // a stale deletion is refused the same way; a delivery and a tank too
+        assert!(matches!(s.delete_reading(id, 1, "gone"), Err(StoreError::Conflict(_))));
+        let mut spec = nitrogen_tank();
+        spec.length_m = 6.0;
+        s.edit_tank(t, 1, &spec, "longer").unwrap();
+        assert!(matches!(s.edit_tank(t, 1, &nitrogen_tank(), "back"), Err(StoreError::Conflict(_))));
+        assert_eq!(s.tank(t).unwrap().spec.length_m, 6.0);
+        // the current revision goes through
+        s.edit_reading(id, 2, &reading("2026-01-01T00:00:00Z", "99.5"), "yours, again").unwrap();
+        assert_eq!(s.reading(id).unwrap().entry.dp.value, 99.5);
+        assert_eq!(s.history(RecordRef::Reading(id)).unwrap().len(), 2);
+        assert!(s.verify().unwrap().problems.is_empty());
     }
 }

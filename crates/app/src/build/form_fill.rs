@@ -9,6 +9,7 @@ pub fn setup_form_for(repo: &dyn Repository, id: i64) -> Result<SetupForm, Store
     let o = |v: Option<f64>| v.map(|x| x.to_string()).unwrap_or_default();
     Ok(SetupForm {
         editing: Some(id),
+        opened: t.revision,
         site: s.site.clone(),
         elevation_m: o(site.as_ref().and_then(|s| s.elevation_m)),
         barometer_kpa: o(site.as_ref().and_then(|s| s.barometer_kpa)),
@@ -62,6 +63,7 @@ pub fn reading_form_for(repo: &dyn Repository, id: i64) -> Result<ReadingForm, S
     let zone = store::zone_of(repo.tank(r.tank_id)?.time_zone.as_deref());
     Ok(ReadingForm {
         editing: Some(id),
+        opened: r.revision,
         time: local_entry(zone, r.entry.time.ms),
         dp: r.entry.dp.value.to_string(),
         dp_unit: r.entry.dp.unit.symbol().to_owned(),
@@ -97,6 +99,7 @@ pub fn delivery_form_for(repo: &dyn Repository, id: i64) -> Result<DeliveryForm,
     let d = stored.entry;
     Ok(DeliveryForm {
         editing: Some(id),
+        opened: stored.revision,
         ticket: d.ticket,
         start: local_entry(zone, d.start.ms),
         end: local_entry(zone, d.end.ms),

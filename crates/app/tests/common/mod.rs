@@ -222,8 +222,12 @@ pub fn add_history_every(
 /// The demo fleet of `cryoledger demo` and the first start (demo-data/, its planted faults in
 /// demo-data/README.md), as the files hold it (not moved to today).
 pub fn demo_store() -> Store {
+    demo_into(Store::open_in_memory().expect("store"))
+}
+
+/// [`demo_store`] written into an open store (a file, for tests that need a second connection).
+pub fn demo_into(mut s: Store) -> Store {
     use store::{ImportOptions, ImportSource, ImportSources};
-    let mut s = Store::open_in_memory().expect("store");
     s.import(
         ImportSources {
             tanks: Some(ImportSource::text(

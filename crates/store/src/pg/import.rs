@@ -150,7 +150,9 @@ impl ImportWriter for Writer<'_, '_> {
     }
 
     fn delivery(&mut self, tank: TankId, d: &DeliveryEntry) -> Result<(), StoreError> {
-        let id = write_delivery(self.tx, tank, d, None)?;
+        let Some(id) = write_delivery(self.tx, tank, d, None)? else {
+            return Ok(()); // an insert always writes its row
+        };
         self.chain
             .append(self.tx, Kind::Delivery, id.0, Action::Insert, |out| {
                 chain::canonical_delivery(out, tank, d)

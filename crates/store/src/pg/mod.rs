@@ -38,6 +38,10 @@ pub const PG_MIGRATION_FILES: &[(&str, &str)] = &[
         "0003_site_time_zone.sql",
         include_str!("../../../../migrations/postgres/0003_site_time_zone.sql"),
     ),
+    (
+        "0004_revision.sql",
+        include_str!("../../../../migrations/postgres/0004_revision.sql"),
+    ),
 ];
 
 /// The advisory lock every write transaction takes before it touches a row ("cryoledg").
@@ -393,13 +397,14 @@ fn vehicle_ids(
     Ok((carrier_id, vid))
 }
 
-/// Insert (`id` None) or update a delivery.
+/// Insert (`id` None) or update a delivery made from a revision; an update that finds the record
+/// moved on writes nothing and gives None.
 fn write_delivery(
     tx: &mut impl GenericClient,
     tank: TankId,
     d: &DeliveryEntry,
-    id: Option<DeliveryId>,
-) -> Result<DeliveryId, StoreError> {
+    id: Option<(DeliveryId, i64)>,
+) -> Result<Option<DeliveryId>, StoreError> {
     let (carrier_id, vehicle_id) = vehicle_ids(tx, &d.carrier, &d.vehicle)?;
     let mut values = delivery_values(tank, carrier_id, vehicle_id, d);
     let duplicate = || StoreError::Invalid(vec![FieldError::new("ticket", duplicate_delivery(d))]);
@@ -410,15 +415,17 @@ fn write_delivery(
                 DELIVERIES.insert_sql_pg()
             );
             match tx.query_opt(&sql, &params(&values))? {
-                Some(row) => Ok(DeliveryId(row.try_get(0)?)),
+                Some(row) => Ok(Some(DeliveryId(row.try_get(0)?))),
                 None => Err(duplicate()),
             }
         }
-        Some(id) => {
+        Some((id, opened)) => {
             values.push(crate::cell::Cell::Int(id.0));
-            tx.execute(&DELIVERIES.update_sql_pg(), &params(&values))
+            values.push(crate::cell::Cell::Int(opened));
+            let changed = tx
+                .execute(&DELIVERIES.update_sql_pg(), &params(&values))
                 .map_err(|e| write_error(e, "ticket", || duplicate_delivery(d)))?;
-            Ok(id)
+            Ok((changed > 0).then_some(id))
         }
     }
 }
@@ -492,6 +499,7 @@ impl Repository for PgStore {
     fn edit_site(
         &mut self,
         id: SiteId,
+        opened: i64,
         settings: &SiteSettings,
         reason: &str,
     ) -> Result<(), StoreError> {
@@ -501,25 +509,32 @@ impl Repository for PgStore {
             .into_iter()
             .find(|s| s.id == id)
             .ok_or_else(|| not_found("site", id))?;
+        if old.revision != opened {
+            return Err(stale_site(&old, opened, settings));
+        }
         self.write(|tx, chain| {
             record_revision(
                 tx,
                 RecordRef::Site(id),
                 RevisionAction::Edit,
                 reason,
-                &EarlierVersion::Site(old),
+                &EarlierVersion::Site(old.clone()),
             )?;
-            tx.execute(
-                "UPDATE sites SET elevation_m = $2, barometer_kpa = $3, barometer_pa = $4, time_zone = $5 \
-                 WHERE id = $1",
+            let changed = tx.execute(
+                "UPDATE sites SET elevation_m = $2, barometer_kpa = $3, barometer_pa = $4, time_zone = $5, \
+                 revision = revision + 1 WHERE id = $1 AND revision = $6",
                 &[
                     &id.0,
                     &settings.elevation_m,
                     &settings.barometer_kpa,
                     &settings.barometer_kpa.map(|k| k * 1e3),
                     &settings.time_zone,
+                    &opened,
                 ],
             )?;
+            if changed == 0 {
+                return Err(stale_site(&old, opened, settings));
+            }
             chain_site(tx, chain, id, Action::Edit)
         })
     }
@@ -571,21 +586,35 @@ impl Repository for PgStore {
         })
     }
 
-    fn edit_tank(&mut self, id: TankId, spec: &TankSpec, reason: &str) -> Result<(), StoreError> {
+    fn edit_tank(
+        &mut self,
+        id: TankId,
+        opened: i64,
+        spec: &TankSpec,
+        reason: &str,
+    ) -> Result<(), StoreError> {
         let old = self.tank(id)?;
+        if old.revision != opened {
+            return Err(stale_tank(old, opened, spec));
+        }
         self.write(|tx, chain| {
             record_revision(
                 tx,
                 RecordRef::Tank(id),
                 RevisionAction::Edit,
                 reason,
-                &EarlierVersion::Tank(Box::new(old.spec)),
+                &EarlierVersion::Tank(Box::new(old.spec.clone())),
             )?;
             let site_id = site_for(tx, chain, &spec.site)?;
             let mut values = tank_values(site_id, spec);
             values.push(crate::cell::Cell::Int(id.0));
-            tx.execute(&TANKS.update_sql_pg(), &params(&values))
+            values.push(crate::cell::Cell::Int(opened));
+            let changed = tx
+                .execute(&TANKS.update_sql_pg(), &params(&values))
                 .map_err(|e| write_error(e, "tank", || duplicate_tank(spec)))?;
+            if changed == 0 {
+                return Err(stale_tank(old, opened, spec));
+            }
             write_strapping(tx, id, &spec.strapping)?;
             chain.append(tx, Kind::Tank, id.0, Action::Edit, |out| {
                 chain::canonical_tank(out, site_id, spec)
@@ -646,42 +675,65 @@ impl Repository for PgStore {
     fn edit_reading(
         &mut self,
         id: ReadingId,
+        opened: i64,
         new: &ReadingEntry,
         reason: &str,
     ) -> Result<(), StoreError> {
         let old = self.reading(id)?;
+        let yours = Some(EarlierVersion::Reading(new.clone()));
+        if old.revision != opened {
+            return Err(stale_reading(old, opened, yours));
+        }
+        let tank_id = old.tank_id;
         self.write(|tx, chain| {
             record_revision(
                 tx,
                 RecordRef::Reading(id),
                 RevisionAction::Edit,
                 reason,
-                &EarlierVersion::Reading(old.entry),
+                &EarlierVersion::Reading(old.entry.clone()),
             )?;
             let mut values = reading_values(old.tank_id, new);
             values.push(crate::cell::Cell::Int(id.0));
-            tx.execute(&READINGS.update_sql_pg(), &params(&values))
+            values.push(crate::cell::Cell::Int(opened));
+            let changed = tx
+                .execute(&READINGS.update_sql_pg(), &params(&values))
                 .map_err(|e| write_error(e, "time", || duplicate_reading(new)))?;
+            if changed == 0 {
+                return Err(stale_reading(old, opened, yours));
+            }
             chain.append(tx, Kind::Reading, id.0, Action::Edit, |out| {
-                chain::canonical_reading(out, old.tank_id, new)
+                chain::canonical_reading(out, tank_id, new)
             })
         })
     }
 
-    fn delete_reading(&mut self, id: ReadingId, reason: &str) -> Result<(), StoreError> {
+    fn delete_reading(
+        &mut self,
+        id: ReadingId,
+        opened: i64,
+        reason: &str,
+    ) -> Result<(), StoreError> {
         let old = self.reading(id)?;
+        if old.revision != opened {
+            return Err(stale_reading(old, opened, None));
+        }
         self.write(|tx, chain| {
             record_revision(
                 tx,
                 RecordRef::Reading(id),
                 RevisionAction::Delete,
                 reason,
-                &EarlierVersion::Reading(old.entry),
+                &EarlierVersion::Reading(old.entry.clone()),
             )?;
-            tx.execute(
-                "UPDATE readings SET deleted_at = $2 WHERE id = $1",
-                &[&id.0, &now_text()],
+            let changed = tx.execute(
+                "UPDATE readings SET deleted_at = $2, revision = revision + 1 \
+                 WHERE id = $1 AND revision = $3",
+                &[&id.0, &now_text(), &opened],
             )?;
+            if changed == 0 {
+                return Err(stale_reading(old, opened, None));
+            }
             chain.append(tx, Kind::Reading, id.0, Action::Delete, |_| {})
         })
     }
@@ -699,7 +751,7 @@ impl Repository for PgStore {
 
     fn add_delivery(&mut self, tank: TankId, d: &DeliveryEntry) -> Result<DeliveryId, StoreError> {
         self.write(|tx, chain| {
-            let id = write_delivery(tx, tank, d, None)?;
+            let id = write_delivery(tx, tank, d, None)?.ok_or_else(|| not_found("delivery", ""))?;
             chain.append(tx, Kind::Delivery, id.0, Action::Insert, |out| {
                 chain::canonical_delivery(out, tank, d)
             })?;
@@ -742,39 +794,59 @@ impl Repository for PgStore {
     fn edit_delivery(
         &mut self,
         id: DeliveryId,
+        opened: i64,
         new: &DeliveryEntry,
         reason: &str,
     ) -> Result<(), StoreError> {
         let old = self.delivery(id)?;
+        let yours = Some(EarlierVersion::Delivery(new.clone()));
+        if old.revision != opened {
+            return Err(stale_delivery(old, opened, yours));
+        }
+        let tank_id = old.tank_id;
         self.write(|tx, chain| {
             record_revision(
                 tx,
                 RecordRef::Delivery(id),
                 RevisionAction::Edit,
                 reason,
-                &EarlierVersion::Delivery(old.entry),
+                &EarlierVersion::Delivery(old.entry.clone()),
             )?;
-            write_delivery(tx, old.tank_id, new, Some(id))?;
+            if write_delivery(tx, old.tank_id, new, Some((id, opened)))?.is_none() {
+                return Err(stale_delivery(old, opened, yours));
+            }
             chain.append(tx, Kind::Delivery, id.0, Action::Edit, |out| {
-                chain::canonical_delivery(out, old.tank_id, new)
+                chain::canonical_delivery(out, tank_id, new)
             })
         })
     }
 
-    fn delete_delivery(&mut self, id: DeliveryId, reason: &str) -> Result<(), StoreError> {
+    fn delete_delivery(
+        &mut self,
+        id: DeliveryId,
+        opened: i64,
+        reason: &str,
+    ) -> Result<(), StoreError> {
         let old = self.delivery(id)?;
+        if old.revision != opened {
+            return Err(stale_delivery(old, opened, None));
+        }
         self.write(|tx, chain| {
             record_revision(
                 tx,
                 RecordRef::Delivery(id),
                 RevisionAction::Delete,
                 reason,
-                &EarlierVersion::Delivery(old.entry),
+                &EarlierVersion::Delivery(old.entry.clone()),
             )?;
-            tx.execute(
-                "UPDATE deliveries SET deleted_at = $2 WHERE id = $1",
-                &[&id.0, &now_text()],
+            let changed = tx.execute(
+                "UPDATE deliveries SET deleted_at = $2, revision = revision + 1 \
+                 WHERE id = $1 AND revision = $3",
+                &[&id.0, &now_text(), &opened],
             )?;
+            if changed == 0 {
+                return Err(stale_delivery(old, opened, None));
+            }
             chain.append(tx, Kind::Delivery, id.0, Action::Delete, |_| {})
         })
     }
@@ -889,7 +961,7 @@ fn current(c: &mut Client) -> Result<Rows, StoreError> {
         chain::canonical_site(&mut buf, &site);
         out.insert(
             (Kind::Site, site.id.0),
-            (chain::sha(buf.as_bytes()), r.try_get(5)?),
+            (chain::sha(buf.as_bytes()), r.try_get(6)?),
         );
     }
     let mut tanks = Vec::new();
@@ -928,7 +1000,7 @@ fn current(c: &mut Client) -> Result<Rows, StoreError> {
         chain::canonical_reading(&mut buf, reading.tank_id, &reading.entry);
         out.insert(
             (Kind::Reading, reading.id.0),
-            (chain::sha(buf.as_bytes()), r.try_get(10)?),
+            (chain::sha(buf.as_bytes()), r.try_get(11)?),
         );
     }
     drop(rows);
@@ -940,7 +1012,7 @@ fn current(c: &mut Client) -> Result<Rows, StoreError> {
         chain::canonical_delivery(&mut buf, d.tank_id, &d.entry);
         out.insert(
             (Kind::Delivery, d.id.0),
-            (chain::sha(buf.as_bytes()), r.try_get(13)?),
+            (chain::sha(buf.as_bytes()), r.try_get(14)?),
         );
     }
     Ok(out)

@@ -73,7 +73,8 @@ fn current(conn: &Connection) -> Result<Rows, StoreError> {
     let mut out = HashMap::new();
     let mut buf = String::new();
     let mut st = conn.prepare(
-        "SELECT id, name, elevation_m, barometer_kpa, deleted_at IS NOT NULL, time_zone FROM sites",
+        "SELECT id, name, elevation_m, barometer_kpa, deleted_at IS NOT NULL, time_zone, revision \
+         FROM sites",
     )?;
     let mut rows = st.query([])?;
     while let Some(r) = rows.next()? {
@@ -83,6 +84,7 @@ fn current(conn: &Connection) -> Result<Rows, StoreError> {
             elevation_m: r.get(2)?,
             barometer_kpa: r.get(3)?,
             time_zone: r.get(5)?,
+            revision: r.get(6)?,
         };
         canonical_site(&mut buf, &site);
         out.insert((Kind::Site, site.id.0), (sha(buf.as_bytes()), r.get(4)?));
@@ -124,7 +126,7 @@ fn current(conn: &Connection) -> Result<Rows, StoreError> {
         canonical_reading(&mut buf, reading.tank_id, &reading.entry);
         out.insert(
             (Kind::Reading, reading.id.0),
-            (sha(buf.as_bytes()), r.get(10)?),
+            (sha(buf.as_bytes()), r.get(11)?),
         );
     }
     let sql = format!(
@@ -136,7 +138,7 @@ fn current(conn: &Connection) -> Result<Rows, StoreError> {
     while let Some(r) = rows.next()? {
         let d = delivery_from_row(r)?;
         canonical_delivery(&mut buf, d.tank_id, &d.entry);
-        out.insert((Kind::Delivery, d.id.0), (sha(buf.as_bytes()), r.get(13)?));
+        out.insert((Kind::Delivery, d.id.0), (sha(buf.as_bytes()), r.get(14)?));
     }
     Ok(out)
 }

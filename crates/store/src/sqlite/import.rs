@@ -98,7 +98,7 @@ impl ImportWriter for Writer<'_> {
 
     fn reading(&mut self, tank: TankId, r: &ReadingEntry) -> RowWrite<()> {
         match execute_reading(&mut self.insert, tank, r, None) {
-            Ok(()) => {
+            Ok(_) => {
                 let id = self.conn.last_insert_rowid();
                 self.chained((), Kind::Reading, id, |out| {
                     chain::canonical_reading(out, tank, r)
@@ -109,7 +109,9 @@ impl ImportWriter for Writer<'_> {
     }
 
     fn delivery(&mut self, tank: TankId, d: &DeliveryEntry) -> Result<(), StoreError> {
-        let id = write_delivery(self.conn, tank, d, None)?;
+        let Some(id) = write_delivery(self.conn, tank, d, None)? else {
+            return Ok(()); // an insert always writes its row
+        };
         self.chain
             .append(self.conn, Kind::Delivery, id.0, Action::Insert, |out| {
                 chain::canonical_delivery(out, tank, d)

@@ -31,6 +31,10 @@ pub const MIGRATION_FILES: &[(&str, &str)] = &[
         "0003_site_time_zone.sql",
         include_str!("../../../../migrations/0003_site_time_zone.sql"),
     ),
+    (
+        "0004_revision.sql",
+        include_str!("../../../../migrations/0004_revision.sql"),
+    ),
 ];
 
 fn migrations() -> Migrations<'static> {
@@ -228,6 +232,7 @@ impl Repository for Store {
     fn edit_site(
         &mut self,
         id: SiteId,
+        opened: i64,
         settings: &SiteSettings,
         reason: &str,
     ) -> Result<(), StoreError> {
@@ -237,25 +242,32 @@ impl Repository for Store {
             .into_iter()
             .find(|s| s.id == id)
             .ok_or_else(|| Self::not_found("site", id))?;
+        if old.revision != opened {
+            return Err(stale_site(&old, opened, settings));
+        }
         let tx = self.conn.transaction()?;
         record_revision(
             &tx,
             RecordRef::Site(id),
             RevisionAction::Edit,
             reason,
-            &EarlierVersion::Site(old),
+            &EarlierVersion::Site(old.clone()),
         )?;
-        tx.execute(
-            "UPDATE sites SET elevation_m = ?2, barometer_kpa = ?3, barometer_pa = ?4, time_zone = ?5 \
-             WHERE id = ?1",
+        let changed = tx.execute(
+            "UPDATE sites SET elevation_m = ?2, barometer_kpa = ?3, barometer_pa = ?4, time_zone = ?5, \
+             revision = revision + 1 WHERE id = ?1 AND revision = ?6",
             params![
                 id.0,
                 settings.elevation_m,
                 settings.barometer_kpa,
                 settings.barometer_kpa.map(|k| k * 1e3),
-                settings.time_zone
+                settings.time_zone,
+                opened
             ],
         )?;
+        if changed == 0 {
+            return Err(stale_site(&old, opened, settings));
+        }
         chain_site(&tx, &mut ChainWriter::new(&tx)?, id, Action::Edit)?;
         tx.commit()?;
         Ok(())
@@ -316,20 +328,32 @@ impl Repository for Store {
         Ok(id)
     }
 
-    fn edit_tank(&mut self, id: TankId, spec: &TankSpec, reason: &str) -> Result<(), StoreError> {
+    fn edit_tank(
+        &mut self,
+        id: TankId,
+        opened: i64,
+        spec: &TankSpec,
+        reason: &str,
+    ) -> Result<(), StoreError> {
         let old = self.tank(id)?;
+        if old.revision != opened {
+            return Err(stale_tank(old, opened, spec));
+        }
         let tx = self.conn.transaction()?;
         record_revision(
             &tx,
             RecordRef::Tank(id),
             RevisionAction::Edit,
             reason,
-            &EarlierVersion::Tank(Box::new(old.spec)),
+            &EarlierVersion::Tank(Box::new(old.spec.clone())),
         )?;
         let mut chain = ChainWriter::new(&tx)?;
         let site_id = site_for(&tx, &mut chain, &spec.site)?;
-        update_tank(&tx, id, site_id, spec)
-            .map_err(|e| TANKS.write_error(e, || duplicate_tank(spec)))?;
+        if !update_tank(&tx, id, opened, site_id, spec)
+            .map_err(|e| TANKS.write_error(e, || duplicate_tank(spec)))?
+        {
+            return Err(stale_tank(old, opened, spec));
+        }
         chain.append(&tx, Kind::Tank, id.0, Action::Edit, |out| {
             chain::canonical_tank(out, site_id, spec)
         })?;
@@ -387,21 +411,30 @@ impl Repository for Store {
     fn edit_reading(
         &mut self,
         id: ReadingId,
+        opened: i64,
         new: &ReadingEntry,
         reason: &str,
     ) -> Result<(), StoreError> {
         let old = self.reading(id)?;
+        let yours = Some(EarlierVersion::Reading(new.clone()));
+        if old.revision != opened {
+            return Err(stale_reading(old, opened, yours));
+        }
         let tx = self.conn.transaction()?;
         record_revision(
             &tx,
             RecordRef::Reading(id),
             RevisionAction::Edit,
             reason,
-            &EarlierVersion::Reading(old.entry),
+            &EarlierVersion::Reading(old.entry.clone()),
         )?;
-        tx.prepare_cached(&READINGS.update_sql())
-            .and_then(|mut st| execute_reading(&mut st, old.tank_id, new, Some(id)))
+        let changed = tx
+            .prepare_cached(&READINGS.update_sql())
+            .and_then(|mut st| execute_reading(&mut st, old.tank_id, new, Some((id, opened))))
             .map_err(|e| READINGS.write_error(e, || duplicate_reading(new)))?;
+        if changed == 0 {
+            return Err(stale_reading(old, opened, yours));
+        }
         ChainWriter::new(&tx)?.append(&tx, Kind::Reading, id.0, Action::Edit, |out| {
             chain::canonical_reading(out, old.tank_id, new)
         })?;
@@ -409,20 +442,32 @@ impl Repository for Store {
         Ok(())
     }
 
-    fn delete_reading(&mut self, id: ReadingId, reason: &str) -> Result<(), StoreError> {
+    fn delete_reading(
+        &mut self,
+        id: ReadingId,
+        opened: i64,
+        reason: &str,
+    ) -> Result<(), StoreError> {
         let old = self.reading(id)?;
+        if old.revision != opened {
+            return Err(stale_reading(old, opened, None));
+        }
         let tx = self.conn.transaction()?;
         record_revision(
             &tx,
             RecordRef::Reading(id),
             RevisionAction::Delete,
             reason,
-            &EarlierVersion::Reading(old.entry),
+            &EarlierVersion::Reading(old.entry.clone()),
         )?;
-        tx.execute(
-            "UPDATE readings SET deleted_at = ?2 WHERE id = ?1",
-            params![id.0, now_text()],
+        let changed = tx.execute(
+            "UPDATE readings SET deleted_at = ?2, revision = revision + 1 \
+             WHERE id = ?1 AND revision = ?3",
+            params![id.0, now_text(), opened],
         )?;
+        if changed == 0 {
+            return Err(stale_reading(old, opened, None));
+        }
         ChainWriter::new(&tx)?.append(&tx, Kind::Reading, id.0, Action::Delete, |_| {})?;
         tx.commit()?;
         Ok(())
@@ -438,7 +483,8 @@ impl Repository for Store {
 
     fn add_delivery(&mut self, tank: TankId, d: &DeliveryEntry) -> Result<DeliveryId, StoreError> {
         let tx = self.conn.transaction()?;
-        let id = write_delivery(&tx, tank, d, None)?;
+        let id =
+            write_delivery(&tx, tank, d, None)?.ok_or_else(|| Self::not_found("delivery", ""))?;
         ChainWriter::new(&tx)?.append(&tx, Kind::Delivery, id.0, Action::Insert, |out| {
             chain::canonical_delivery(out, tank, d)
         })?;
@@ -483,19 +529,26 @@ impl Repository for Store {
     fn edit_delivery(
         &mut self,
         id: DeliveryId,
+        opened: i64,
         new: &DeliveryEntry,
         reason: &str,
     ) -> Result<(), StoreError> {
         let old = self.delivery(id)?;
+        let yours = Some(EarlierVersion::Delivery(new.clone()));
+        if old.revision != opened {
+            return Err(stale_delivery(old, opened, yours));
+        }
         let tx = self.conn.transaction()?;
         record_revision(
             &tx,
             RecordRef::Delivery(id),
             RevisionAction::Edit,
             reason,
-            &EarlierVersion::Delivery(old.entry),
+            &EarlierVersion::Delivery(old.entry.clone()),
         )?;
-        write_delivery(&tx, old.tank_id, new, Some(id))?;
+        if write_delivery(&tx, old.tank_id, new, Some((id, opened)))?.is_none() {
+            return Err(stale_delivery(old, opened, yours));
+        }
         ChainWriter::new(&tx)?.append(&tx, Kind::Delivery, id.0, Action::Edit, |out| {
             chain::canonical_delivery(out, old.tank_id, new)
         })?;
@@ -503,20 +556,32 @@ impl Repository for Store {
         Ok(())
     }
 
-    fn delete_delivery(&mut self, id: DeliveryId, reason: &str) -> Result<(), StoreError> {
+    fn delete_delivery(
+        &mut self,
+        id: DeliveryId,
+        opened: i64,
+        reason: &str,
+    ) -> Result<(), StoreError> {
         let old = self.delivery(id)?;
+        if old.revision != opened {
+            return Err(stale_delivery(old, opened, None));
+        }
         let tx = self.conn.transaction()?;
         record_revision(
             &tx,
             RecordRef::Delivery(id),
             RevisionAction::Delete,
             reason,
-            &EarlierVersion::Delivery(old.entry),
+            &EarlierVersion::Delivery(old.entry.clone()),
         )?;
-        tx.execute(
-            "UPDATE deliveries SET deleted_at = ?2 WHERE id = ?1",
-            params![id.0, now_text()],
+        let changed = tx.execute(
+            "UPDATE deliveries SET deleted_at = ?2, revision = revision + 1 \
+             WHERE id = ?1 AND revision = ?3",
+            params![id.0, now_text(), opened],
         )?;
+        if changed == 0 {
+            return Err(stale_delivery(old, opened, None));
+        }
         ChainWriter::new(&tx)?.append(&tx, Kind::Delivery, id.0, Action::Delete, |_| {})?;
         tx.commit()?;
         Ok(())

@@ -70,7 +70,9 @@ impl Columns {
         )
     }
 
-    /// `UPDATE table SET write... WHERE id = ?N`, the id last.
+    /// `UPDATE table SET write..., revision = revision + 1 WHERE id = ?N AND revision = ?N+1`: the id
+    /// and then the revision the change was made from bound last; no row changes when the record has
+    /// moved on since.
     pub fn update_sql(&self) -> String {
         self.update_sql_marked('?')
     }
@@ -88,10 +90,11 @@ impl Columns {
             .map(|(i, c)| format!("{c} = {mark}{}", i + 1))
             .collect();
         format!(
-            "UPDATE {} SET {} WHERE id = {mark}{}",
+            "UPDATE {} SET {}, revision = revision + 1 WHERE id = {mark}{} AND revision = {mark}{}",
             self.table,
             sets.join(", "),
-            self.write.len() + 1
+            self.write.len() + 1,
+            self.write.len() + 2
         )
     }
 
@@ -128,10 +131,10 @@ pub(crate) fn is_unique_violation(e: &rusqlite::Error) -> bool {
 pub(crate) const TANK_COLUMNS: &str = "t.id, t.site_id, s.name, s.elevation_m, s.barometer_kpa, t.name, t.fluid, \
     t.orientation, t.diameter_m, t.length_m, t.heads, t.crown_ratio, t.knuckle_ratio, t.line_temperature_c, \
     t.dp_unit, t.gauge_span, t.gauge_accuracy_percent, t.relief_pressure_value, t.relief_pressure_unit, \
-    t.reorder_percent, t.ner_percent_per_day, s.time_zone";
+    t.reorder_percent, t.ner_percent_per_day, s.time_zone, t.revision";
 
 /// How many columns [`TANK_COLUMNS`] selects (a query's own columns follow them).
-pub(crate) const TANK_COLUMN_COUNT: usize = 22;
+pub(crate) const TANK_COLUMN_COUNT: usize = 23;
 
 pub(crate) fn tank_from_row<R: Cells>(r: &R) -> Result<TankRecord, R::Error> {
     let elevation = r.opt_real(3)?;
@@ -160,6 +163,7 @@ pub(crate) fn tank_from_row<R: Cells>(r: &R) -> Result<TankRecord, R::Error> {
             ner_percent_per_day: r.opt_real(20)?,
             strapping: Vec::new(),
         },
+        revision: r.int(22)?,
     })
 }
 
@@ -233,16 +237,25 @@ pub(crate) fn insert_tank(
     Ok(id)
 }
 
+/// Update a tank made from revision `opened`; false (and nothing written) when it has moved on.
 pub(crate) fn update_tank(
     conn: &Connection,
     id: TankId,
+    opened: i64,
     site_id: SiteId,
     t: &TankSpec,
-) -> Result<(), rusqlite::Error> {
-    let values = tank_values(site_id, t).into_iter().chain([Cell::Int(id.0)]);
-    conn.prepare_cached(&TANKS.update_sql())?
+) -> Result<bool, rusqlite::Error> {
+    let values = tank_values(site_id, t)
+        .into_iter()
+        .chain([Cell::Int(id.0), Cell::Int(opened)]);
+    let changed = conn
+        .prepare_cached(&TANKS.update_sql())?
         .execute(params_from_iter(values))?;
-    write_strapping(conn, id, &t.strapping)
+    if changed == 0 {
+        return Ok(false);
+    }
+    write_strapping(conn, id, &t.strapping)?;
+    Ok(true)
 }
 
 fn write_strapping(conn: &Connection, tank: TankId, points: &[(f64, f64)]) -> rusqlite::Result<()> {
@@ -259,7 +272,7 @@ fn write_strapping(conn: &Connection, tank: TankId, points: &[(f64, f64)]) -> ru
 // ---- sites ----
 
 /// The columns of a site, in the order [`site_from_row`] reads them.
-pub(crate) const SITE_COLUMNS: &str = "id, name, elevation_m, barometer_kpa, time_zone";
+pub(crate) const SITE_COLUMNS: &str = "id, name, elevation_m, barometer_kpa, time_zone, revision";
 
 /// A site from a row of [`SITE_COLUMNS`].
 pub(crate) fn site_from_row<R: Cells>(r: &R) -> Result<Site, R::Error> {
@@ -269,6 +282,7 @@ pub(crate) fn site_from_row<R: Cells>(r: &R) -> Result<Site, R::Error> {
         elevation_m: r.opt_real(2)?,
         barometer_kpa: r.opt_real(3)?,
         time_zone: r.opt_text(4)?,
+        revision: r.int(5)?,
     })
 }
 
@@ -363,7 +377,7 @@ pub(crate) fn same_site_settings(
 // ---- readings ----
 
 pub(crate) const READING_COLUMNS: &str = "id, tank_id, time_text, time_ms, dp_value, dp_unit, pressure_value, \
-    pressure_unit, liquid_temperature_k, note";
+    pressure_unit, liquid_temperature_k, note, revision";
 
 pub(crate) fn reading_from_row<R: Cells>(r: &R) -> Result<Reading, R::Error> {
     Ok(Reading {
@@ -385,6 +399,7 @@ pub(crate) fn reading_from_row<R: Cells>(r: &R) -> Result<Reading, R::Error> {
             liquid_temperature_k: r.opt_real(8)?,
             note: r.opt_text(9)?,
         },
+        revision: r.int(10)?,
     })
 }
 
@@ -411,14 +426,15 @@ pub(crate) fn duplicate_reading(r: &ReadingEntry) -> String {
     format!("this tank already has a reading at {}", r.time.text)
 }
 
-/// Insert or update with an already prepared [`READINGS`] statement (the importer's hot loop);
-/// `id` is bound last for an update.
+/// Insert or update with an already prepared [`READINGS`] statement (the importer's hot loop); for an
+/// update the id and the revision it was made from are bound last. The rows changed (0: an update of
+/// a record that has moved on).
 pub(crate) fn execute_reading(
     st: &mut rusqlite::Statement<'_>,
     tank: TankId,
     r: &ReadingEntry,
-    id: Option<ReadingId>,
-) -> rusqlite::Result<()> {
+    id: Option<(ReadingId, i64)>,
+) -> rusqlite::Result<usize> {
     let values = params![
         tank.0,
         r.time.text,
@@ -433,20 +449,21 @@ pub(crate) fn execute_reading(
         r.note,
     ];
     match id {
-        None => st.execute(values)?,
-        Some(id) => {
+        None => st.execute(values),
+        Some((id, opened)) => {
             let mut all: Vec<&dyn rusqlite::ToSql> = values.to_vec();
             all.push(&id.0);
-            st.execute(all.as_slice())?
+            all.push(&opened);
+            st.execute(all.as_slice())
         }
-    };
-    Ok(())
+    }
 }
 
 // ---- deliveries ----
 
 pub(crate) const DELIVERY_COLUMNS: &str = "d.id, d.tank_id, d.ticket, d.start_text, d.start_ms, d.end_text, d.end_ms, \
-    d.quantity_value, d.quantity_unit, c.name, v.name, d.supply_pressure_value, d.supply_pressure_unit";
+    d.quantity_value, d.quantity_unit, c.name, v.name, d.supply_pressure_value, d.supply_pressure_unit, \
+    d.revision";
 
 pub(crate) fn delivery_from_row<R: Cells>(r: &R) -> Result<Delivery, R::Error> {
     Ok(Delivery {
@@ -470,6 +487,7 @@ pub(crate) fn delivery_from_row<R: Cells>(r: &R) -> Result<Delivery, R::Error> {
             vehicle: r.text(10)?,
             supply_pressure: entered_pressure(r, 11)?,
         },
+        revision: r.int(13)?,
     })
 }
 
@@ -541,27 +559,33 @@ pub(crate) fn reading_values(tank: TankId, r: &ReadingEntry) -> Vec<Cell> {
     ]
 }
 
-/// Insert (`id` None) or update a delivery; its carrier and vehicle are found or created first.
+/// Insert (`id` None) or update a delivery made from a revision; its carrier and vehicle are found or
+/// created first. None: the update found the record moved on, and wrote nothing.
 pub(crate) fn write_delivery(
     conn: &Connection,
     tank: TankId,
     d: &DeliveryEntry,
-    id: Option<DeliveryId>,
-) -> Result<DeliveryId, StoreError> {
+    id: Option<(DeliveryId, i64)>,
+) -> Result<Option<DeliveryId>, StoreError> {
     let (carrier_id, vehicle_id) =
         vehicle_ids(conn, &d.carrier, &d.vehicle).map_err(|e| StoreError::Invalid(vec![e]))?;
     let mut values = delivery_values(tank, carrier_id, vehicle_id, d);
     let sql = match id {
         None => DELIVERIES.insert_sql(),
-        Some(id) => {
+        Some((id, opened)) => {
             values.push(Cell::Int(id.0));
+            values.push(Cell::Int(opened));
             DELIVERIES.update_sql()
         }
     };
-    conn.prepare_cached(&sql)
+    let changed = conn
+        .prepare_cached(&sql)
         .and_then(|mut st| st.execute(params_from_iter(values)))
         .map_err(|e| DELIVERIES.write_error(e, || duplicate_delivery(d)))?;
-    Ok(id.unwrap_or_else(|| DeliveryId(conn.last_insert_rowid())))
+    Ok(match id {
+        None => Some(DeliveryId(conn.last_insert_rowid())),
+        Some((id, _)) => (changed > 0).then_some(id),
+    })
 }
 
 fn vehicle_ids(conn: &Connection, carrier: &str, vehicle: &str) -> Result<(i64, i64), FieldError> {
@@ -620,6 +644,82 @@ pub(crate) fn table_row(record: RecordRef) -> (&'static str, i64) {
         RecordRef::Reading(id) => ("readings", id.0),
         RecordRef::Delivery(id) => ("deliveries", id.0),
     }
+}
+
+/// A change made from revision `opened` of a record that is now at `current` (its stored version
+/// `theirs`): refused with both versions (`yours` None for a deletion).
+pub(crate) fn stale(
+    record: RecordRef,
+    opened: i64,
+    current: i64,
+    theirs: EarlierVersion,
+    yours: Option<EarlierVersion>,
+) -> StoreError {
+    StoreError::Conflict(Box::new(Conflict {
+        record,
+        opened,
+        current,
+        theirs,
+        yours,
+    }))
+}
+
+/// [`stale`] for a site whose stored version is `now`, changed to `settings`.
+pub(crate) fn stale_site(now: &Site, opened: i64, settings: &SiteSettings) -> StoreError {
+    let mut yours = now.clone();
+    (yours.elevation_m, yours.barometer_kpa, yours.time_zone) = (
+        settings.elevation_m,
+        settings.barometer_kpa,
+        settings.time_zone.clone(),
+    );
+    stale(
+        RecordRef::Site(now.id),
+        opened,
+        now.revision,
+        EarlierVersion::Site(now.clone()),
+        Some(EarlierVersion::Site(yours)),
+    )
+}
+
+/// [`stale`] for a tank whose stored version is `now`, changed to `spec`.
+pub(crate) fn stale_tank(now: TankRecord, opened: i64, spec: &TankSpec) -> StoreError {
+    stale(
+        RecordRef::Tank(now.id),
+        opened,
+        now.revision,
+        EarlierVersion::Tank(Box::new(now.spec)),
+        Some(EarlierVersion::Tank(Box::new(spec.clone()))),
+    )
+}
+
+/// [`stale`] for a reading whose stored version is `now`.
+pub(crate) fn stale_reading(
+    now: Reading,
+    opened: i64,
+    yours: Option<EarlierVersion>,
+) -> StoreError {
+    stale(
+        RecordRef::Reading(now.id),
+        opened,
+        now.revision,
+        EarlierVersion::Reading(now.entry),
+        yours,
+    )
+}
+
+/// [`stale`] for a delivery whose stored version is `now`.
+pub(crate) fn stale_delivery(
+    now: Delivery,
+    opened: i64,
+    yours: Option<EarlierVersion>,
+) -> StoreError {
+    stale(
+        RecordRef::Delivery(now.id),
+        opened,
+        now.revision,
+        EarlierVersion::Delivery(now.entry),
+        yours,
+    )
 }
 
 /// Keep the earlier version of a record with the reason (refused without one).
