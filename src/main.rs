@@ -5,7 +5,7 @@ mod commands;
 
 use anyhow::{Context, Result};
 use clap::{Parser, Subcommand};
-use commands::{audit, contents, copy, demo, fluids, history, io, report};
+use commands::{audit, contents, copy, demo, fluids, history, io, report, users};
 use std::path::PathBuf;
 use std::process::ExitCode;
 use store::Location;
@@ -85,6 +85,15 @@ enum Command {
         must end in the same chain head."
     )]
     Copy(copy::CopyArgs),
+    /// Add, list and remove the users of a shared PostgreSQL ledger and the sites each keeps
+    #[command(
+        long_about = "Users of a shared PostgreSQL ledger are the server's logins, each with one role: operator \
+        (enters and edits readings at the sites given, and sees only those), auditor (reads everything, \
+        runs audits and reports, imports deliveries) or admin (sites, tanks, users). The server enforces \
+        the roles with row-level security for every connection, whatever program it comes from. Run by \
+        an admin or the ledger's owner."
+    )]
+    Users(users::UsersArgs),
 }
 
 fn default_db_path() -> Result<PathBuf> {
@@ -126,6 +135,7 @@ fn run(cli: Cli) -> Result<ExitCode> {
         Some(Command::Verify(a)) => history::verify(a),
         Some(Command::Backup(a)) => history::backup(a),
         Some(Command::Copy(a)) => copy::run(a),
+        Some(Command::Users(a)) => users::run(a),
     }
 }
 

@@ -8,6 +8,7 @@ pub mod fluids;
 pub mod history;
 pub mod io;
 pub mod report;
+pub mod users;
 
 use std::io::Write;
 use std::path::{Path, PathBuf};

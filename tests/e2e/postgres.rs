@@ -180,3 +180,83 @@ fn an_unreachable_server_a_missing_database_and_an_unknown_user_are_told_plainly
         }
     }
 }
+
+/// `users` adds an operator with their sites, lists and removes them; the operator's own audit holds
+/// only their sites' fills (the server filters every query); a SQLite file has no users.
+#[test]
+fn users_are_added_listed_and_removed_and_an_operator_audits_only_their_sites() {
+    let Some(server) = server_or_skip() else {
+        return;
+    };
+    let dir = tempfile::tempdir().unwrap();
+    let pg = PgDatabase::new(&server);
+    let url = pg.uri();
+    expect_success(&run(&["demo", "--keep-dates", "--db", &url]));
+    let name = format!("op_e2e_{}", std::process::id());
+    struct RoleGuard(postgres::Config, String);
+    impl Drop for RoleGuard {
+        fn drop(&mut self) {
+            if let Ok(mut c) = self.0.connect(postgres::NoTls) {
+                let _ = c.batch_execute(&format!("DROP ROLE IF EXISTS \"{}\"", self.1));
+            }
+        }
+    }
+    let _cleanup = RoleGuard(server.clone(), name.clone());
+    let site = "Bramwhistle Hospital";
+    expect_success(&run(&[
+        "users", "--db", &url, "add", &name, "--role", "operator", "--site", site,
+    ]));
+    let out = run(&["users", "--db", &url, "list"]);
+    expect_success(&out);
+    let listed = String::from_utf8_lossy(&out.stdout);
+    assert!(
+        listed
+            .lines()
+            .any(|l| l.starts_with(&name) && l.contains("operator") && l.contains(site)),
+        "{listed}"
+    );
+
+    let theirs = url.replacen(
+        &format!("//{}", server.get_user().unwrap_or("postgres")),
+        &format!("//{name}"),
+        1,
+    );
+    let all = audit_json_at(&url);
+    let own = audit_json_at(&theirs);
+    let fills = |v: &serde_json::Value| v["fills"].as_array().map_or(0, Vec::len);
+    let tanks_of_site: Vec<String> = store::Store::open(&demo_db(dir.path()))
+        .unwrap()
+        .tanks()
+        .unwrap()
+        .into_iter()
+        .filter(|t| t.spec.site == site)
+        .map(|t| t.spec.name)
+        .collect();
+    assert!(
+        fills(&own) > 0 && fills(&own) < fills(&all),
+        "{} of {}",
+        fills(&own),
+        fills(&all)
+    );
+    for f in own["fills"].as_array().unwrap() {
+        let tank = f["tank"].as_str().unwrap_or_default().to_owned();
+        assert!(tanks_of_site.contains(&tank), "{tank} is not at {site}");
+    }
+    expect_success(&run(&["users", "--db", &url, "remove", &name]));
+    let out = run(&["users", "--db", &url, "list"]);
+    assert!(!String::from_utf8_lossy(&out.stdout).contains(&name));
+    let out = run(&[
+        "users",
+        "--db",
+        dir.path().join("demo.db").to_str().unwrap(),
+        "list",
+    ]);
+    assert_eq!(out.status.code(), Some(1));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("SQLite file"));
+}
+
+fn audit_json_at(db: &str) -> serde_json::Value {
+    let out = run(&["audit", "--format", "json", "--db", db]);
+    expect_success(&out);
+    serde_json::from_slice(&out.stdout).unwrap()
+}

@@ -11,8 +11,9 @@ use std::io::Write as _;
 use crate::{Location, PgStore, Store, StoreError};
 
 /// The ledger's tables, parents before children (the order a load keeps its foreign keys in).
-pub(crate) const TABLES: [&str; 9] = [
+pub(crate) const TABLES: [&str; 10] = [
     "sites",
+    "site_access",
     "carriers",
     "vehicles",
     "tanks",

@@ -47,7 +47,7 @@ pub use csv_format::{
     ImportSummary, READING_HEADER, ReadingCheck, RowError, TANK_HEADER,
 };
 pub use location::Location;
-pub use pg::{PG_MIGRATION_FILES, PgStore, describe_target};
+pub use pg::{AccessRole, LedgerUser, PG_MIGRATION_FILES, PgStore, describe_target};
 pub use records::*;
 pub use repository::{RecordKind, Repository};
 pub use sqlite::{MIGRATION_FILES, Store};

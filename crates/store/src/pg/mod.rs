@@ -6,6 +6,7 @@
 
 mod connect;
 mod import;
+mod users;
 
 use std::sync::{Mutex, MutexGuard, PoisonError};
 
@@ -23,6 +24,7 @@ use crate::sqlite::export;
 use crate::sqlite::rows::*;
 
 pub use connect::describe_target;
+pub use users::{AccessRole, LedgerUser};
 
 /// The numbered SQL files of `migrations/postgres/`, applied in order.
 pub const PG_MIGRATION_FILES: &[(&str, &str)] = &[
@@ -41,6 +43,10 @@ pub const PG_MIGRATION_FILES: &[(&str, &str)] = &[
     (
         "0004_revision.sql",
         include_str!("../../../../migrations/postgres/0004_revision.sql"),
+    ),
+    (
+        "0005_access.sql",
+        include_str!("../../../../migrations/postgres/0005_access.sql"),
     ),
 ];
 
@@ -130,9 +136,17 @@ impl PgStore {
 }
 
 fn migrate_locked(c: &mut Client) -> Result<(), StoreError> {
-    c.batch_execute(
-        "CREATE TABLE IF NOT EXISTS cryoledger_schema (version BIGINT PRIMARY KEY, applied_at TEXT NOT NULL)",
-    )?;
+    // asked first, so that a user who may not create tables (an operator) can open a ledger that is
+    // up to date; the version is no secret
+    let exists: bool = c
+        .query_one("SELECT to_regclass('cryoledger_schema') IS NOT NULL", &[])?
+        .try_get(0)?;
+    if !exists {
+        c.batch_execute(
+            "CREATE TABLE cryoledger_schema (version BIGINT PRIMARY KEY, applied_at TEXT NOT NULL); \
+             GRANT SELECT ON cryoledger_schema TO PUBLIC",
+        )?;
+    }
     let found: i64 = c
         .query_one(
             "SELECT COALESCE(MAX(version), 0) FROM cryoledger_schema",

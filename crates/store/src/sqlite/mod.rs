@@ -35,6 +35,10 @@ pub const MIGRATION_FILES: &[(&str, &str)] = &[
         "0004_revision.sql",
         include_str!("../../../../migrations/0004_revision.sql"),
     ),
+    (
+        "0005_access.sql",
+        include_str!("../../../../migrations/0005_access.sql"),
+    ),
 ];
 
 fn migrations() -> Migrations<'static> {

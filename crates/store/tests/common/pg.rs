@@ -92,6 +92,8 @@ impl PgDatabase {
         };
         let mut s = format!("host={host} port={port} user={user} dbname={}", self.name);
         if let Some(p) = password {
+            // libpq's key=value quoting: a quote or a backslash inside is escaped with a backslash
+            let p = p.replace('\\', "\\\\").replace('\'', "\\'");
             s.push_str(&format!(" password='{p}'"));
         }
         s
