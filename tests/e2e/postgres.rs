@@ -260,3 +260,143 @@ fn audit_json_at(db: &str) -> serde_json::Value {
     expect_success(&out);
     serde_json::from_slice(&out.stdout).unwrap()
 }
+
+/// On a server that asks for passwords (a private one, scram-sha-256, started from the installed
+/// binaries): a wrong password and a missing one are told as what to check, without the password; the
+/// right one opens the ledger.
+#[test]
+fn a_wrong_or_missing_password_is_told_plainly() {
+    use crate::common::pg::PrivateServer;
+    let server = match PrivateServer::start("scram-sha-256", Some("right-horse-7")) {
+        Ok(s) => s,
+        Err(why) => {
+            assert!(
+                std::env::var("CRYOLEDGER_REQUIRE_PG").as_deref() != Ok("1"),
+                "PostgreSQL is required (CRYOLEDGER_REQUIRE_PG=1) and no private server started: {why}"
+            );
+            eprintln!("PostgreSQL tests skipped: no private server ({why})");
+            return;
+        }
+    };
+    let url = |pw: &str| format!("postgres://postgres{pw}@127.0.0.1:{}/postgres", server.port);
+    for (pw, says) in [
+        (
+            ":wrong-battery-9",
+            "the server refused the password of user 'postgres'",
+        ),
+        ("", "the server asks for a password"),
+    ] {
+        let out = run(&["audit", "--db", &url(pw)]);
+        let err = String::from_utf8_lossy(&out.stderr);
+        assert_eq!(out.status.code(), Some(1), "{err}");
+        assert!(err.contains(says), "{err}");
+        assert!(
+            !err.contains("wrong-battery"),
+            "the password is never shown: {err}"
+        );
+    }
+    expect_success(&run(&[
+        "demo",
+        "--keep-dates",
+        "--db",
+        &url(":right-horse-7"),
+    ]));
+    expect_success(&run(&["verify", "--db", &url(":right-horse-7")]));
+}
+
+/// An import into a server's ledger killed half-way (SIGKILL) leaves it as it was: the server rolls
+/// back the transaction of a connection that went away, and the history still verifies.
+#[test]
+fn a_killed_import_leaves_the_servers_ledger_as_it_was() {
+    use std::io::Write as _;
+    use std::time::{Duration, Instant};
+    let Some(server) = server_or_skip() else {
+        return;
+    };
+    let dir = tempfile::tempdir().unwrap();
+    let pg = PgDatabase::new(&server);
+    let url = pg.uri();
+    let tanks = dir.path().join("tanks.csv");
+    std::fs::write(
+        &tanks,
+        "site,tank,fluid,orientation,diameter_m,length_m,heads,line_temperature_c\n\
+         Kiln Row,KR-N2-1,nitrogen,vertical,3,10,flat,15\n",
+    )
+    .unwrap();
+    expect_success(&run(&[
+        "import",
+        "--db",
+        &url,
+        "--tanks",
+        tanks.to_str().unwrap(),
+    ]));
+    let path = dir.path().join("big.csv");
+    let mut f = std::io::BufWriter::new(std::fs::File::create(&path).unwrap());
+    writeln!(f, "tank,time,dp,dp_unit,pressure,pressure_unit").unwrap();
+    for i in 0..400_000i64 {
+        let ms = 1_800_000_000_000 + i * 60_000;
+        writeln!(
+            f,
+            "KR-N2-1,{},{:.2},inH2O,11.5,barg",
+            store::Stamp::from_ms(ms).text,
+            100.0 + (i % 97) as f64
+        )
+        .unwrap();
+    }
+    f.flush().unwrap();
+    drop(f);
+    let s = store::PgStore::connect(&url).unwrap();
+    let before = s.dump().unwrap();
+    let mut child = bin()
+        .args(["import", "--db", &url, "--readings"])
+        .arg(&path)
+        .stdout(std::process::Stdio::null())
+        .stderr(std::process::Stdio::null())
+        .spawn()
+        .unwrap();
+    // wait until the import's transaction holds the chain's lock (it is writing rows), let it write
+    // for a second, then kill it
+    let start = Instant::now();
+    let mut c = postgres::Client::connect(&pg.url(), postgres::NoTls).unwrap();
+    let mut under_way = false;
+    while start.elapsed() < Duration::from_secs(60) && child.try_wait().unwrap().is_none() {
+        let locked: bool = c
+            .query_one(
+                "SELECT EXISTS(SELECT 1 FROM pg_locks WHERE locktype = 'advisory' AND granted)",
+                &[],
+            )
+            .unwrap()
+            .get(0);
+        if locked {
+            std::thread::sleep(Duration::from_secs(1));
+            under_way = true;
+            break;
+        }
+        std::thread::sleep(Duration::from_millis(20));
+    }
+    let still_running = child.try_wait().unwrap().is_none();
+    child.kill().unwrap();
+    child.wait().unwrap();
+    assert!(
+        under_way && still_running,
+        "the import should have been killed mid-way"
+    );
+    // the server notices the lost connection and rolls back
+    let deadline = Instant::now() + Duration::from_secs(20);
+    while Instant::now() < deadline
+        && c.query_one(
+            "SELECT EXISTS(SELECT 1 FROM pg_locks WHERE locktype = 'advisory')",
+            &[],
+        )
+        .unwrap()
+        .get::<_, bool>(0)
+    {
+        std::thread::sleep(Duration::from_millis(50));
+    }
+    assert_eq!(
+        s.dump().unwrap(),
+        before,
+        "a killed import changed the ledger"
+    );
+    assert!(s.verify().unwrap().problems.is_empty());
+}

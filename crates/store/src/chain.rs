@@ -232,22 +232,29 @@ pub(crate) struct ChainLink {
 /// Every current row of every chained kind: (kind, id) -> (digest, deleted).
 pub(crate) type Rows = HashMap<(Kind, i64), ([u8; 32], bool)>;
 
-/// Walk the chain's links in order against the current rows (whatever database they came from).
-pub(crate) fn walk(chain: impl IntoIterator<Item = ChainLink>, current: &Rows) -> Verification {
+/// Walk the chain's links in order, as the database streams them, against the current rows (whatever
+/// database they came from). Only each record's latest link is kept (whether it is a deletion, and its
+/// digest), so a ledger of millions of records is walked in a few hundred MB.
+pub(crate) fn walk(
+    chain: impl IntoIterator<Item = Result<ChainLink, crate::StoreError>>,
+    current: &Rows,
+) -> Result<Verification, crate::StoreError> {
     let mut problems = Vec::new();
-    let mut latest: HashMap<(Kind, i64), (String, Vec<u8>)> = HashMap::new();
+    // (deleted, digest) of each record's latest link; a digest of the wrong length reads as all ones,
+    // which no record's digest equals
+    let mut latest: HashMap<(Kind, i64), (bool, [u8; 32])> = HashMap::with_capacity(current.len());
     let mut prev = [0u8; 32];
     let mut links = 0;
     let mut broken = false;
-    for ChainLink {
-        seq,
-        kind: kind_text,
-        record_id: id,
-        action: action_text,
-        digest,
-        link,
-    } in chain
-    {
+    for link in chain {
+        let ChainLink {
+            seq,
+            kind: kind_text,
+            record_id: id,
+            action: action_text,
+            digest,
+            link,
+        } = link?;
         links += 1;
         let (Some(kind), Some(action)) = (
             Kind::parse(&kind_text),
@@ -275,7 +282,8 @@ pub(crate) fn walk(chain: impl IntoIterator<Item = ChainLink>, current: &Rows) -
             broken = true;
         }
         prev = link.as_slice().try_into().unwrap_or([0; 32]);
-        latest.insert((kind, id), (action_text, digest));
+        let chained = digest.as_slice().try_into().unwrap_or([0xff; 32]);
+        latest.insert((kind, id), (action == Action::Delete, chained));
     }
     let mut keys: Vec<&(Kind, i64)> = current.keys().chain(latest.keys()).collect();
     keys.sort();
@@ -287,7 +295,7 @@ pub(crate) fn walk(chain: impl IntoIterator<Item = ChainLink>, current: &Rows) -
                 record: Some(name),
                 what: "added outside cryoledger: it has no link in the chain".into(),
             }),
-            (None, Some((action, _))) if action != "delete" => problems.push(Tampering {
+            (None, Some((false, _))) => problems.push(Tampering {
                 record: Some(name),
                 what: "removed outside cryoledger: the chain has it, the table does not".into(),
             }),
@@ -295,7 +303,7 @@ pub(crate) fn walk(chain: impl IntoIterator<Item = ChainLink>, current: &Rows) -
                 record: Some(name),
                 what: "removed outside cryoledger after its deletion was recorded".into(),
             }),
-            (Some((_, deleted)), Some((action, _))) if *deleted != (action == "delete") => problems
+            (Some((_, deleted)), Some((chain_deleted, _))) if deleted != chain_deleted => problems
                 .push(Tampering {
                     record: Some(name),
                     what: if *deleted {
@@ -317,12 +325,12 @@ pub(crate) fn walk(chain: impl IntoIterator<Item = ChainLink>, current: &Rows) -
             _ => {}
         }
     }
-    Verification {
+    Ok(Verification {
         records: current.len(),
         links,
         head: hex(&prev),
         problems,
-    }
+    })
 }
 
 #[cfg(test)]

@@ -72,7 +72,13 @@ fn explain(c: &Config, e: &postgres::Error) -> String {
             _ => format!("the server refused the connection: {said}"),
         };
     }
-    let text = e.to_string();
+    // the driver's own words, with their causes ("invalid configuration: password missing")
+    let mut text = e.to_string();
+    let mut cause = std::error::Error::source(e);
+    while let Some(c) = cause {
+        text.push_str(&format!(": {c}"));
+        cause = c.source();
+    }
     let mut source = std::error::Error::source(e);
     while let Some(s) = source {
         if s.is::<std::io::Error>() {

@@ -1,21 +1,33 @@
 //! The PostgreSQL side of a CSV import: one transaction holding the chain's lock, every row checked
-//! by the shared driver, all or nothing. A uniqueness clash is caught by `ON CONFLICT DO NOTHING`
-//! (no row comes back), so a duplicate row is reported without aborting the transaction; any other
-//! failure of the server stops the import and rolls it back. The readings' chain links are sent in
-//! one COPY at the end rather than one statement each.
+//! by the shared driver, all or nothing.
+//!
+//! Readings, the bulk of any import, travel in multi-row INSERTs of [`BATCH`] with their chain links
+//! beside them, not one round trip each (COPY would be faster still, but PostgreSQL refuses COPY into a
+//! table under row-level security, which an operator's import is). Their ids are reserved from the
+//! table's sequence in blocks, so that each link is computed as its row is read; deliveries' links join
+//! the same batches, their carriers and vehicles are looked up once each. A duplicate reading is found
+//! before it is sent: each tank's live instants are read once, when its first row comes, and every
+//! row taken adds its own; no other cryoledger writer can add one meanwhile (they wait for the chain's
+//! lock). Tanks and deliveries are inserted one by one, a clash caught by `ON CONFLICT DO NOTHING`. Any failure of the server stops the import and rolls it back.
 
-use std::collections::HashMap;
-use std::io::Write as _;
+use std::collections::{HashMap, HashSet};
 
-use postgres::{Client, GenericClient, Statement, Transaction};
+use postgres::{Client, GenericClient, Transaction};
 
-use super::{PgChain, insert_tank, site_with, write_delivery};
+use super::{PgChain, insert_tank, site_with, vehicle_ids};
 use crate::StoreError;
+use crate::cell::Cell;
 use crate::chain::{self, Action, Kind};
+use crate::check::FieldError;
 use crate::csv_format::{ImportOptions, ImportSources, ImportSummary};
 use crate::import::{End, ImportWriter, RowWrite, SiteError};
 use crate::records::*;
-use crate::sqlite::rows::{READINGS, reading_values};
+use crate::sqlite::rows::{
+    DELIVERIES, READINGS, delivery_values, duplicate_delivery, reading_values,
+};
+
+/// Readings per INSERT (12 parameters each: well under the protocol's 65,535).
+const BATCH: usize = 1000;
 
 fn insert_reading_sql() -> String {
     format!(
@@ -46,16 +58,21 @@ pub(crate) fn import(
 ) -> Result<ImportSummary, StoreError> {
     let mut tx = c.transaction()?;
     let chain = PgChain::new(&mut tx)?;
-    let insert = tx.prepare(&insert_reading_sql())?;
     let mut w = Writer {
         tx: &mut tx,
         chain,
-        insert,
-        links: Vec::new(),
+        ids: Vec::new(),
+        taken: HashMap::new(),
+        rows: Vec::with_capacity(BATCH * 12),
+        links: Vec::with_capacity(BATCH * 6),
+        pending: 0,
+        vehicles: HashMap::new(),
+        insert_delivery: None,
+        full_batch: None,
     };
     let (summary, mut sink) = crate::import::rows(&mut w, tanks, sources, opts)?;
     if sink.fatal.is_none()
-        && let Err(e) = w.flush_links()
+        && let Err(e) = w.flush()
     {
         sink.fatal = Some(e);
     }
@@ -74,27 +91,205 @@ pub(crate) fn import(
 struct Writer<'a, 'b> {
     tx: &'a mut Transaction<'b>,
     chain: PgChain,
-    /// The prepared insert of a reading (the hot loop).
-    insert: Statement,
-    /// Chain rows of the readings, as COPY text lines, sent at the end.
-    links: Vec<u8>,
+    /// Reading ids reserved from the sequence, not used yet (popped from the end).
+    ids: Vec<i64>,
+    /// Each tank's live instants, as stored and as taken in this import.
+    taken: HashMap<TankId, HashSet<i64>>,
+    /// Readings waiting to be sent: `id` then [`READINGS`]' columns, per row.
+    rows: Vec<Cell>,
+    /// Chain links waiting to be sent (the readings' and the deliveries').
+    links: Vec<LinkCells>,
+    pending: usize,
+    /// Carrier and vehicle ids by their names, once found or made.
+    vehicles: HashMap<(String, String), (i64, i64)>,
+    /// The prepared insert of a delivery.
+    insert_delivery: Option<postgres::Statement>,
+    /// The prepared inserts of a full batch of readings and of links (parsed and planned once).
+    full_batch: Option<(postgres::Statement, postgres::Statement)>,
+}
+
+struct LinkCells {
+    seq: i64,
+    kind: &'static str,
+    id: i64,
+    digest: Vec<u8>,
+    link: Vec<u8>,
+}
+
+/// `INSERT INTO table (columns) VALUES ($1, ...), (...)` for `rows` rows of `width` values.
+fn multi_insert(table: &str, columns: &str, width: usize, rows: usize) -> String {
+    let mut sql = format!("INSERT INTO {table} ({columns}) VALUES ");
+    for r in 0..rows {
+        if r > 0 {
+            sql.push_str(", ");
+        }
+        sql.push('(');
+        for c in 0..width {
+            if c > 0 {
+                sql.push_str(", ");
+            }
+            sql.push_str(&format!("${}", r * width + c + 1));
+        }
+        sql.push(')');
+    }
+    sql
 }
 
 impl Writer<'_, '_> {
-    fn flush_links(&mut self) -> Result<(), StoreError> {
+    /// The next reading id, reserving a block from the sequence when none is left.
+    fn next_id(&mut self) -> Result<i64, StoreError> {
+        if self.ids.is_empty() {
+            let rows = self.tx.query(
+                "SELECT nextval(pg_get_serial_sequence('readings', 'id')) FROM generate_series(1::BIGINT, $1::BIGINT)",
+                &[&(BATCH as i64)],
+            )?;
+            self.ids = rows
+                .iter()
+                .map(|r| r.try_get(0))
+                .collect::<Result<Vec<i64>, _>>()?;
+            self.ids.reverse();
+        }
+        self.ids.pop().ok_or_else(|| StoreError::Corrupt {
+            what: "the readings' id sequence".into(),
+            reason: "it gave no id".into(),
+        })
+    }
+
+    /// Whether the tank already has a live reading at `ms` (its instants read at its first row).
+    fn seen(&mut self, tank: TankId, ms: i64) -> Result<bool, StoreError> {
+        if !self.taken.contains_key(&tank) {
+            let rows = self.tx.query(
+                "SELECT time_ms FROM readings WHERE tank_id = $1 AND deleted_at IS NULL",
+                &[&tank.0],
+            )?;
+            let times = rows
+                .iter()
+                .map(|r| r.try_get(0))
+                .collect::<Result<HashSet<i64>, _>>()?;
+            self.taken.insert(tank, times);
+        }
+        Ok(!self.taken.entry(tank).or_default().insert(ms))
+    }
+
+    /// Send the waiting readings and links.
+    fn flush(&mut self) -> Result<(), StoreError> {
+        let columns = format!("id, {}", READINGS.write.join(", "));
+        let width = READINGS.write.len() + 1;
+        const LINK_COLUMNS: &str = "seq, kind, record_id, action, digest, link";
+        if self.full_batch.is_none() && (self.pending == BATCH || self.links.len() == BATCH) {
+            let readings = self
+                .tx
+                .prepare(&multi_insert("readings", &columns, width, BATCH))?;
+            let links = self
+                .tx
+                .prepare(&multi_insert("chain", LINK_COLUMNS, 6, BATCH))?;
+            self.full_batch = Some((readings, links));
+        }
+        if self.pending > 0 {
+            let params = super::params(&self.rows);
+            match &self.full_batch {
+                Some((st, _)) if self.pending == BATCH => self.tx.execute(st, &params)?,
+                _ => self.tx.execute(
+                    &multi_insert("readings", &columns, width, self.pending),
+                    &params,
+                )?,
+            };
+            self.rows.clear();
+            self.pending = 0;
+        }
         if self.links.is_empty() {
             return Ok(());
         }
-        let mut copy = self
-            .tx
-            .copy_in("COPY chain (seq, kind, record_id, action, digest, link) FROM STDIN")?;
-        copy.write_all(&self.links)
-            .map_err(|source| StoreError::Io {
-                path: "the server".into(),
-                source,
-            })?;
-        copy.finish()?;
+        let action = Action::Insert.as_str();
+        let mut params: Vec<&(dyn postgres::types::ToSql + Sync)> =
+            Vec::with_capacity(self.links.len() * 6);
+        for l in &self.links {
+            params.extend([
+                &l.seq as &(dyn postgres::types::ToSql + Sync),
+                &l.kind,
+                &l.id,
+                &action,
+                &l.digest,
+                &l.link,
+            ]);
+        }
+        match &self.full_batch {
+            Some((_, st)) if self.links.len() == BATCH => self.tx.execute(st, &params)?,
+            _ => self.tx.execute(
+                &multi_insert("chain", LINK_COLUMNS, 6, self.links.len()),
+                &params,
+            )?,
+        };
         self.links.clear();
+        Ok(())
+    }
+
+    fn take_reading(&mut self, tank: TankId, r: &ReadingEntry) -> Result<RowWrite<()>, StoreError> {
+        if self.seen(tank, r.time.ms)? {
+            return Ok(RowWrite::Duplicate);
+        }
+        let id = self.next_id()?;
+        let (seq, digest, link) = self.chain.next(Kind::Reading, id, Action::Insert, |out| {
+            chain::canonical_reading(out, tank, r)
+        });
+        self.rows.push(Cell::Int(id));
+        self.rows.extend(reading_values(tank, r));
+        self.links.push(LinkCells {
+            seq,
+            kind: Kind::Reading.as_str(),
+            id,
+            digest,
+            link: link.to_vec(),
+        });
+        self.pending += 1;
+        if self.pending == BATCH || self.links.len() >= BATCH {
+            self.flush()?;
+        }
+        Ok(RowWrite::Done(()))
+    }
+
+    fn take_delivery(&mut self, tank: TankId, d: &DeliveryEntry) -> Result<(), StoreError> {
+        let key = (d.carrier.clone(), d.vehicle.clone());
+        let (carrier_id, vehicle_id) = match self.vehicles.get(&key) {
+            Some(ids) => *ids,
+            None => {
+                let ids = vehicle_ids(self.tx, &d.carrier, &d.vehicle)?;
+                self.vehicles.insert(key, ids);
+                ids
+            }
+        };
+        let insert = match &self.insert_delivery {
+            Some(st) => st.clone(),
+            None => {
+                let st = self.tx.prepare(&format!(
+                    "{} ON CONFLICT (ticket) WHERE deleted_at IS NULL DO NOTHING RETURNING id",
+                    DELIVERIES.insert_sql_pg()
+                ))?;
+                self.insert_delivery = Some(st.clone());
+                st
+            }
+        };
+        let values = delivery_values(tank, carrier_id, vehicle_id, d);
+        let Some(row) = self.tx.query_opt(&insert, &super::params(&values))? else {
+            return Err(StoreError::Invalid(vec![FieldError::new(
+                "ticket",
+                duplicate_delivery(d),
+            )]));
+        };
+        let id: i64 = row.try_get(0)?;
+        let (seq, digest, link) = self.chain.next(Kind::Delivery, id, Action::Insert, |out| {
+            chain::canonical_delivery(out, tank, d)
+        });
+        self.links.push(LinkCells {
+            seq,
+            kind: Kind::Delivery.as_str(),
+            id,
+            digest,
+            link: link.to_vec(),
+        });
+        if self.links.len() >= BATCH {
+            self.flush()?;
+        }
         Ok(())
     }
 }
@@ -123,39 +318,10 @@ impl ImportWriter for Writer<'_, '_> {
     }
 
     fn reading(&mut self, tank: TankId, r: &ReadingEntry) -> RowWrite<()> {
-        let values = reading_values(tank, r);
-        match self.tx.query_opt(&self.insert, &super::params(&values)) {
-            Ok(Some(row)) => {
-                let id: i64 = match row.try_get(0) {
-                    Ok(id) => id,
-                    Err(e) => return RowWrite::Fatal(e.into()),
-                };
-                let (seq, digest, link) =
-                    self.chain.next(Kind::Reading, id, Action::Insert, |out| {
-                        chain::canonical_reading(out, tank, r)
-                    });
-                let _ = writeln!(
-                    self.links,
-                    "{seq}\t{}\t{id}\t{}\t\\\\x{}\t\\\\x{}",
-                    Kind::Reading.as_str(),
-                    Action::Insert.as_str(),
-                    chain::hex(&digest),
-                    chain::hex(&link)
-                );
-                RowWrite::Done(())
-            }
-            Ok(None) => RowWrite::Duplicate,
-            Err(e) => RowWrite::Fatal(e.into()),
-        }
+        self.take_reading(tank, r).unwrap_or_else(RowWrite::Fatal)
     }
 
     fn delivery(&mut self, tank: TankId, d: &DeliveryEntry) -> Result<(), StoreError> {
-        let Some(id) = write_delivery(self.tx, tank, d, None)? else {
-            return Ok(()); // an insert always writes its row
-        };
-        self.chain
-            .append(self.tx, Kind::Delivery, id.0, Action::Insert, |out| {
-                chain::canonical_delivery(out, tank, d)
-            })
+        self.take_delivery(tank, d)
     }
 }

@@ -384,7 +384,7 @@ fn insert_tank(
 }
 
 /// The carrier's and vehicle's ids, each created when new.
-fn vehicle_ids(
+pub(crate) fn vehicle_ids(
     tx: &mut impl GenericClient,
     carrier: &str,
     vehicle: &str,
@@ -934,24 +934,31 @@ impl Repository for PgStore {
 
     fn verify(&self) -> Result<chain::Verification, StoreError> {
         let mut c = self.client();
-        let links = c
-            .query(
-                "SELECT seq, kind, record_id, action, digest, link FROM chain ORDER BY seq",
-                &[],
-            )?
-            .iter()
-            .map(|r| {
+        let current = current(&mut c)?;
+        let none: [&str; 0] = [];
+        let mut rows = c.query_raw(
+            "SELECT seq, kind, record_id, action, digest, link FROM chain ORDER BY seq",
+            none,
+        )?;
+        let links = std::iter::from_fn(|| {
+            let row = match postgres::fallible_iterator::FallibleIterator::next(&mut rows) {
+                Ok(Some(r)) => r,
+                Ok(None) => return None,
+                Err(e) => return Some(Err(StoreError::from(e))),
+            };
+            let link = || -> Result<ChainLink, postgres::Error> {
                 Ok(ChainLink {
-                    seq: r.try_get(0)?,
-                    kind: r.try_get(1)?,
-                    record_id: r.try_get(2)?,
-                    action: r.try_get(3)?,
-                    digest: r.try_get(4)?,
-                    link: r.try_get(5)?,
+                    seq: row.try_get(0)?,
+                    kind: row.try_get(1)?,
+                    record_id: row.try_get(2)?,
+                    action: row.try_get(3)?,
+                    digest: row.try_get(4)?,
+                    link: row.try_get(5)?,
                 })
-            })
-            .collect::<Result<Vec<_>, StoreError>>()?;
-        Ok(chain::walk(links, &current(&mut c)?))
+            };
+            Some(link().map_err(StoreError::from))
+        });
+        chain::walk(links, &current)
     }
 
     fn backup(&self, _to: &std::path::Path) -> Result<(), StoreError> {

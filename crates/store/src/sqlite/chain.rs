@@ -108,9 +108,16 @@ fn current(conn: &Connection) -> Result<Rows, StoreError> {
             r.get::<_, f64>(2)?,
         ))
     })?;
+    // each point to its tank through a map (a search per point is quadratic in a fleet with many
+    // strapping tables)
+    let at: HashMap<i64, usize> = tanks
+        .iter()
+        .enumerate()
+        .map(|(i, (t, _))| (t.id.0, i))
+        .collect();
     for p in points {
         let (id, l, v) = p?;
-        if let Some((t, _)) = tanks.iter_mut().find(|(t, _)| t.id.0 == id) {
+        if let Some((t, _)) = at.get(&id).and_then(|&i| tanks.get_mut(i)) {
             t.spec.strapping.push((l, v));
         }
     }
@@ -175,21 +182,20 @@ pub(crate) fn adopt_existing(conn: &Connection) -> Result<(), StoreError> {
     Ok(())
 }
 
-/// Walk the chain and the current rows.
+/// Walk the chain and the current rows (the links streamed, not held).
 pub(crate) fn verify(conn: &Connection) -> Result<Verification, StoreError> {
+    let current = current(conn)?;
     let mut st =
         conn.prepare("SELECT seq, kind, record_id, action, digest, link FROM chain ORDER BY seq")?;
-    let links: Vec<ChainLink> = st
-        .query_map([], |r| {
-            Ok(ChainLink {
-                seq: r.get(0)?,
-                kind: r.get(1)?,
-                record_id: r.get(2)?,
-                action: r.get(3)?,
-                digest: r.get(4)?,
-                link: r.get(5)?,
-            })
-        })?
-        .collect::<Result<_, _>>()?;
-    Ok(walk(links, &current(conn)?))
+    let links = st.query_map([], |r| {
+        Ok(ChainLink {
+            seq: r.get(0)?,
+            kind: r.get(1)?,
+            record_id: r.get(2)?,
+            action: r.get(3)?,
+            digest: r.get(4)?,
+            link: r.get(5)?,
+        })
+    })?;
+    walk(links.map(|l| l.map_err(StoreError::from)), &current)
 }

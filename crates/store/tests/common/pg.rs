@@ -1,11 +1,16 @@
 //! PostgreSQL for tests: the server named by `CRYOLEDGER_PG` (libpq `key=value` form or a URL), else
 //! this project's machines' server at 127.0.0.1:5432 (trust authentication, user `postgres`; see
-//! ../shared/design/testing.md); each test works in a database of its own, dropped afterwards.
-//! Without a server the PostgreSQL tests say they were skipped and pass, unless
-//! `CRYOLEDGER_REQUIRE_PG=1` (as `.ci/run` sets), which makes a missing server a failure.
+//! ../shared/design/testing.md), else a private server started from the installed binaries (`initdb`
+//! and `pg_ctl` on PATH or under /usr/lib/postgresql/*/bin) in a temp folder on a free port, stopped
+//! when the test process ends. Each test works in a database of its own, dropped afterwards. With none
+//! of these the PostgreSQL tests say they were skipped and pass, unless `CRYOLEDGER_REQUIRE_PG=1` (as
+//! `.ci/run` sets), which makes a missing server a failure.
 //! Shared by the store's tests and the end-to-end tests (included by path).
 #![allow(dead_code, clippy::unwrap_used, clippy::expect_used)]
 
+use std::path::{Path, PathBuf};
+use std::process::{Command, Stdio};
+use std::sync::OnceLock;
 use std::sync::atomic::{AtomicU32, Ordering};
 
 use store::PgStore;
@@ -25,7 +30,23 @@ pub fn server() -> Result<postgres::Config, String> {
 /// The server, or None after saying the PostgreSQL tests are skipped (a failure when they are
 /// required).
 pub fn server_or_skip() -> Option<postgres::Config> {
-    match server() {
+    static FALLBACK: OnceLock<Result<PrivateServer, String>> = OnceLock::new();
+    let found = server().or_else(|why| {
+        if std::env::var("CRYOLEDGER_PG").is_ok() {
+            return Err(why);
+        }
+        match FALLBACK.get_or_init(|| PrivateServer::start("trust", None)) {
+            Ok(p) => {
+                eprintln!(
+                    "no server at 127.0.0.1:5432 ({why}): using a private one on port {}",
+                    p.port
+                );
+                Ok(p.config("postgres", None))
+            }
+            Err(e) => Err(format!("{why}; and no private server: {e}")),
+        }
+    });
+    match found {
         Ok(c) => Some(c),
         Err(why) => {
             assert!(
@@ -133,5 +154,152 @@ impl Drop for PgDatabase {
                 self.name
             ));
         }
+    }
+}
+
+/// A private PostgreSQL server from the installed binaries, in a temp folder on a free loopback port.
+/// A watchdog stops it and removes its folder once the test process has ended.
+pub struct PrivateServer {
+    pub port: u16,
+    pub dir: PathBuf,
+}
+
+/// The server binaries: on PATH, or the newest under /usr/lib/postgresql.
+fn pg_bin(name: &str) -> Option<PathBuf> {
+    if let Ok(path) = std::env::var("PATH") {
+        for d in std::env::split_paths(&path) {
+            if d.join(name).is_file() {
+                return Some(d.join(name));
+            }
+        }
+    }
+    let mut found: Vec<PathBuf> = std::fs::read_dir("/usr/lib/postgresql")
+        .ok()?
+        .filter_map(|e| e.ok().map(|e| e.path().join("bin").join(name)))
+        .filter(|p| p.is_file())
+        .collect();
+    found.sort();
+    found.pop()
+}
+
+/// `initdb` and the server refuse to run as root: there, run them as the `postgres` account.
+fn as_server_user(program: &Path) -> Command {
+    let root = Command::new("id")
+        .arg("-u")
+        .output()
+        .is_ok_and(|o| String::from_utf8_lossy(&o.stdout).trim() == "0");
+    if root {
+        let mut c = Command::new("runuser");
+        c.args(["-u", "postgres", "--"]).arg(program);
+        c
+    } else {
+        Command::new(program)
+    }
+}
+
+impl PrivateServer {
+    /// Start one with `auth` (`trust`, or `scram-sha-256` with the superuser `postgres`'s password).
+    pub fn start(auth: &str, password: Option<&str>) -> Result<Self, String> {
+        let (initdb, pg_ctl) = (
+            pg_bin("initdb").ok_or("no initdb installed")?,
+            pg_bin("pg_ctl").ok_or("no pg_ctl installed")?,
+        );
+        let port = std::net::TcpListener::bind("127.0.0.1:0")
+            .and_then(|l| l.local_addr())
+            .map_err(|e| e.to_string())?
+            .port();
+        static N: AtomicU32 = AtomicU32::new(0);
+        let base = std::env::temp_dir().join(format!(
+            "cryoledger-pg-{}-{}",
+            std::process::id(),
+            N.fetch_add(1, Ordering::Relaxed)
+        ));
+        let dir = base.join("data");
+        std::fs::create_dir_all(&base).map_err(|e| e.to_string())?;
+        // the server's account must reach the folder (it may not be ours)
+        let _ = Command::new("chmod").arg("777").arg(&base).status();
+        let pwfile = base.join("pw");
+        std::fs::write(&pwfile, password.unwrap_or("unused")).map_err(|e| e.to_string())?;
+        let _ = Command::new("chmod").arg("644").arg(&pwfile).status();
+        let out = as_server_user(&initdb)
+            .args([
+                "-U",
+                "postgres",
+                "-E",
+                "UTF8",
+                "--locale=C.UTF-8",
+                "--auth",
+                auth,
+                "--pwfile",
+            ])
+            .arg(&pwfile)
+            .arg("-D")
+            .arg(&dir)
+            .output()
+            .map_err(|e| format!("initdb: {e}"))?;
+        if !out.status.success() {
+            return Err(format!(
+                "initdb: {}",
+                String::from_utf8_lossy(&out.stderr).trim()
+            ));
+        }
+        let opts = format!(
+            "-p {port} -k {} -c listen_addresses=127.0.0.1 -c fsync=off",
+            base.display()
+        );
+        let out = as_server_user(&pg_ctl)
+            .arg("-D")
+            .arg(&dir)
+            .arg("-l")
+            .arg(base.join("log"))
+            .args(["-o", &opts, "-w", "start"])
+            .stdin(Stdio::null())
+            .stdout(Stdio::null())
+            .stderr(Stdio::piped())
+            .output()
+            .map_err(|e| format!("pg_ctl: {e}"))?;
+        if !out.status.success() {
+            return Err(format!(
+                "pg_ctl start: {}",
+                String::from_utf8_lossy(&out.stderr).trim()
+            ));
+        }
+        // the watchdog: when this process is gone, stop the server and remove its folder
+        let stop = as_server_user(&pg_ctl)
+            .get_args()
+            .map(|a| a.to_string_lossy().into_owned())
+            .collect::<Vec<_>>();
+        let program = as_server_user(&pg_ctl)
+            .get_program()
+            .to_string_lossy()
+            .into_owned();
+        let script = format!(
+            "while kill -0 {pid} 2>/dev/null; do sleep 1; done; {program} {} -D '{}' -m immediate stop; rm -rf '{}'",
+            stop.join(" "),
+            dir.display(),
+            base.display(),
+            pid = std::process::id()
+        );
+        Command::new("sh")
+            .args(["-c", &script])
+            .stdin(Stdio::null())
+            .stdout(Stdio::null())
+            .stderr(Stdio::null())
+            .spawn()
+            .map_err(|e| format!("watchdog: {e}"))?;
+        Ok(Self { port, dir })
+    }
+
+    /// Connection settings for `user` (with a password when given).
+    pub fn config(&self, user: &str, password: Option<&str>) -> postgres::Config {
+        let mut c = postgres::Config::new();
+        c.host("127.0.0.1")
+            .port(self.port)
+            .user(user)
+            .dbname("postgres");
+        if let Some(p) = password {
+            c.password(p);
+        }
+        c
     }
 }
