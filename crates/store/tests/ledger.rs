@@ -444,4 +444,41 @@ ledger_tests! {
         assert_eq!(s.history(RecordRef::Reading(id)).unwrap().len(), 2);
         assert!(s.verify().unwrap().problems.is_empty());
     }
+
+    /// SQL sent straight to the database, not through cryoledger, is named by `verify`: a value
+    /// changed, a row removed, a row added; the ledger verified clean before it.
+    fn changes_made_outside_cryoledger_are_named(l: &Ledgers) {
+        let mut s = l.fresh();
+        import_text(s.as_mut(), Some(TANKS), Some(READINGS), Some(DELIVERIES)).unwrap();
+        assert!(s.verify().unwrap().problems.is_empty());
+        let b2 = s.tank_by_name("b-2").unwrap();
+        let r = s.readings(b2.id, None).unwrap();
+        let (changed, removed) = (r[0].id.0, r[1].id.0);
+        l.raw(&format!(
+            "UPDATE readings SET dp_value = dp_value + 1 WHERE id = {changed}; \
+             DELETE FROM readings WHERE id = {removed}; \
+             INSERT INTO readings (id, tank_id, time_text, time_ms, dp_value, dp_unit, dp_pa, \
+             pressure_value, pressure_unit, pressure_pa) VALUES (9999, {}, '2026-05-01T00:00:00Z', \
+             1777593600000, 50, 'inH2O', 12454, 10, 'barg', 1101325);",
+            b2.id.0
+        ));
+        let v = s.verify().unwrap();
+        let named: Vec<(i64, &str)> = v
+            .problems
+            .iter()
+            .map(|p| {
+                let (kind, id) = p.record.as_ref().expect("a record");
+                assert_eq!(kind, "reading");
+                (*id, p.what.split(':').next().unwrap_or_default())
+            })
+            .collect();
+        assert_eq!(
+            named,
+            [
+                (changed, "changed outside cryoledger"),
+                (removed, "removed outside cryoledger"),
+                (9999, "added outside cryoledger"),
+            ]
+        );
+    }
 }

@@ -50,11 +50,15 @@ pub enum Backend {
     Postgres,
 }
 
-/// Makes empty ledgers of one backend (for tests that need a second ledger beside the first).
+/// Makes empty ledgers of one backend (for tests that need a second ledger beside the first): SQLite
+/// in a file of a temp folder, PostgreSQL in a database of its own, so that a test can also reach the
+/// newest one with SQL of its own ([`Ledgers::raw`]), as a tool other than cryoledger would.
 pub struct Ledgers {
     pub backend: Backend,
     server: Option<postgres::Config>,
     keep: std::cell::RefCell<Vec<PgDatabase>>,
+    dir: tempfile::TempDir,
+    files: std::cell::Cell<u32>,
 }
 
 impl Ledgers {
@@ -68,6 +72,8 @@ impl Ledgers {
             backend,
             server,
             keep: Default::default(),
+            dir: tempfile::tempdir().unwrap(),
+            files: Default::default(),
         })
     }
 
@@ -80,7 +86,30 @@ impl Ledgers {
                 self.keep.borrow_mut().push(db);
                 Box::new(s)
             }
-            _ => Box::new(Store::open_in_memory().unwrap()),
+            _ => {
+                self.files.set(self.files.get() + 1);
+                let path = self.dir.path().join(format!("{}.db", self.files.get()));
+                Box::new(Store::open(&path).unwrap())
+            }
+        }
+    }
+
+    /// Run SQL on the newest ledger straight through its database, not through cryoledger.
+    pub fn raw(&self, sql: &str) {
+        match self.backend {
+            Backend::Postgres => {
+                let keep = self.keep.borrow();
+                let db = keep.last().expect("a ledger made first");
+                let mut c = postgres::Client::connect(&db.url(), postgres::NoTls).unwrap();
+                c.batch_execute(sql).unwrap();
+            }
+            Backend::Sqlite => {
+                let path = self.dir.path().join(format!("{}.db", self.files.get()));
+                rusqlite::Connection::open(path)
+                    .unwrap()
+                    .execute_batch(sql)
+                    .unwrap();
+            }
         }
     }
 }
