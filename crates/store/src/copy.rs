@@ -48,7 +48,7 @@ pub(crate) enum Raw {
 /// What a copy moved.
 #[derive(Debug, Clone, PartialEq, Eq, Default)]
 pub struct CopySummary {
-    /// Rows per table, in [`TABLES`] order.
+    /// Rows per table, parents first.
     pub rows: Vec<(String, u64)>,
     /// The schema version both ledgers have.
     pub schema_version: i64,
