@@ -34,6 +34,7 @@ mod location;
 mod pg;
 mod records;
 mod repository;
+mod revision;
 mod sqlite;
 
 pub use chain::{Tampering, Verification};

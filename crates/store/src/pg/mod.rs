@@ -7,24 +7,32 @@
 mod connect;
 mod import;
 mod users;
+mod walk;
+mod write;
 
 use std::sync::{Mutex, MutexGuard, PoisonError};
 
-use postgres::error::SqlState;
-use postgres::{Client, GenericClient};
+use postgres::Client;
 
 use crate::StoreError;
 use crate::cell::Cells;
-use crate::chain::{self, Action, ChainLink, Kind, Rows, next_link};
+use crate::chain::{self, Action, ChainLink, Kind};
 use crate::check::FieldError;
 use crate::csv_format::{ImportOptions, ImportSources, ImportSummary};
 use crate::records::*;
 use crate::repository::{RecordKind, Repository};
+use crate::revision::*;
 use crate::sqlite::export;
 use crate::sqlite::rows::*;
 
 pub use connect::describe_target;
 pub use users::{AccessRole, LedgerUser};
+use walk::{current, dump};
+pub(crate) use write::lock_chain;
+use write::{
+    PgChain, chain_site, insert_tank, not_found, params, record_revision, site_for, site_id_for,
+    site_with, vehicle_ids, write_delivery, write_error, write_strapping,
+};
 
 /// The numbered SQL files of `migrations/postgres/`, applied in order.
 pub const PG_MIGRATION_FILES: &[(&str, &str)] = &[
@@ -176,293 +184,7 @@ fn migrate_locked(c: &mut Client) -> Result<(), StoreError> {
     Ok(())
 }
 
-/// Take the chain's lock for the rest of this transaction (every writer takes it first).
-pub(crate) fn lock_chain(tx: &mut impl GenericClient) -> Result<(), StoreError> {
-    tx.execute("SELECT pg_advisory_xact_lock($1)", &[&CHAIN_LOCK])?;
-    Ok(())
-}
-
-/// The chain's head inside one write transaction (which holds the chain's lock).
-pub(crate) struct PgChain {
-    head: [u8; 32],
-    seq: i64,
-    buf: String,
-}
-
-impl PgChain {
-    fn new(tx: &mut impl GenericClient) -> Result<Self, StoreError> {
-        lock_chain(tx)?;
-        let last = tx.query_opt("SELECT seq, link FROM chain ORDER BY seq DESC LIMIT 1", &[])?;
-        let (seq, head) = match last {
-            Some(r) => {
-                let link: Vec<u8> = r.try_get(1)?;
-                (r.try_get(0)?, link.try_into().unwrap_or([0xff; 32]))
-            }
-            None => (0, [0; 32]),
-        };
-        Ok(Self {
-            head,
-            seq,
-            buf: String::with_capacity(256),
-        })
-    }
-
-    /// The next link, as (seq, digest, link), advancing the head.
-    fn next(
-        &mut self,
-        kind: Kind,
-        id: i64,
-        action: Action,
-        fill: impl FnOnce(&mut String),
-    ) -> (i64, Vec<u8>, [u8; 32]) {
-        let (digest, link) = next_link(&self.head, &mut self.buf, kind, id, action, fill);
-        self.head = link;
-        self.seq += 1;
-        (self.seq, digest, link)
-    }
-
-    fn append(
-        &mut self,
-        tx: &mut impl GenericClient,
-        kind: Kind,
-        id: i64,
-        action: Action,
-        fill: impl FnOnce(&mut String),
-    ) -> Result<(), StoreError> {
-        let (seq, digest, link) = self.next(kind, id, action, fill);
-        tx.execute(
-            "INSERT INTO chain (seq, kind, record_id, action, digest, link) VALUES ($1, $2, $3, $4, $5, $6)",
-            &[&seq, &kind.as_str(), &id, &action.as_str(), &digest, &link.as_slice()],
-        )?;
-        Ok(())
-    }
-}
-
-fn is_unique_violation(e: &postgres::Error) -> bool {
-    e.code() == Some(&SqlState::UNIQUE_VIOLATION)
-}
-
-/// A failed write as the user's field error when it broke a uniqueness rule.
-fn write_error(e: postgres::Error, field: &str, message: impl FnOnce() -> String) -> StoreError {
-    if is_unique_violation(&e) {
-        StoreError::Invalid(vec![FieldError::new(field, message())])
-    } else {
-        e.into()
-    }
-}
-
-fn not_found(what: &'static str, key: impl ToString) -> StoreError {
-    StoreError::NotFound {
-        what,
-        key: key.to_string(),
-    }
-}
-
-/// The live site of this name (and false), or a new one (and true).
-fn site_id_for(
-    tx: &mut impl GenericClient,
-    name: &str,
-    settings: &SiteSettings,
-) -> Result<(SiteId, bool), crate::import::SiteError> {
-    use crate::import::SiteError;
-    settings.check().map_err(SiteError::Field)?;
-    let existing = tx
-        .query_opt(
-            "SELECT id, elevation_m, barometer_kpa, time_zone FROM sites WHERE name = $1 AND deleted_at IS NULL",
-            &[&name],
-        )
-        .map_err(|e| SiteError::Store(e.into()))?;
-    if let Some(r) = existing {
-        let read = || -> Result<_, StoreError> {
-            Ok((r.int(0)?, r.opt_real(1)?, r.opt_real(2)?, r.opt_text(3)?))
-        };
-        let (id, e0, b0, z0) = read().map_err(SiteError::Store)?;
-        same_site_settings(name, settings, e0, b0, z0.as_deref()).map_err(SiteError::Field)?;
-        return Ok((SiteId(id), false));
-    }
-    let row = tx
-        .query_one(
-            "INSERT INTO sites (name, elevation_m, barometer_kpa, barometer_pa, time_zone) \
-             VALUES ($1, $2, $3, $4, $5) RETURNING id",
-            &[
-                &name,
-                &settings.elevation_m,
-                &settings.barometer_kpa,
-                &settings.barometer_kpa.map(|k| k * 1e3),
-                &settings.time_zone,
-            ],
-        )
-        .map_err(|e| SiteError::Store(e.into()))?;
-    Ok((SiteId(row.int(0).map_err(SiteError::Store)?), true))
-}
-
-/// Append a site's link with its current values.
-fn chain_site(
-    tx: &mut impl GenericClient,
-    chain: &mut PgChain,
-    id: SiteId,
-    action: Action,
-) -> Result<(), StoreError> {
-    let row = tx.query_one(
-        &format!("SELECT {SITE_COLUMNS} FROM sites WHERE id = $1"),
-        &[&id.0],
-    )?;
-    let site = site_from_row(&row)?;
-    chain.append(tx, Kind::Site, id.0, action, |out| {
-        chain::canonical_site(out, &site)
-    })
-}
-
-/// [`site_id_for`], chaining a new site.
-fn site_with(
-    tx: &mut impl GenericClient,
-    chain: &mut PgChain,
-    name: &str,
-    settings: &SiteSettings,
-) -> Result<SiteId, crate::import::SiteError> {
-    let (id, created) = site_id_for(tx, name, settings)?;
-    if created {
-        chain_site(tx, chain, id, Action::Insert).map_err(crate::import::SiteError::Store)?;
-    }
-    Ok(id)
-}
-
-fn site_for(
-    tx: &mut impl GenericClient,
-    chain: &mut PgChain,
-    name: &str,
-) -> Result<SiteId, StoreError> {
-    site_with(tx, chain, name, &SiteSettings::default()).map_err(|e| match e {
-        crate::import::SiteError::Field(f) => StoreError::Invalid(vec![f]),
-        crate::import::SiteError::Store(e) => e,
-    })
-}
-
-/// Write a tank's strapping table (replacing any earlier one).
-fn write_strapping(
-    tx: &mut impl GenericClient,
-    tank: TankId,
-    points: &[(f64, f64)],
-) -> Result<(), postgres::Error> {
-    tx.execute(
-        "DELETE FROM strapping_points WHERE tank_id = $1",
-        &[&tank.0],
-    )?;
-    for (l, v) in points {
-        tx.execute(
-            "INSERT INTO strapping_points (tank_id, level_m, volume_m3) VALUES ($1, $2, $3)",
-            &[&tank.0, l, v],
-        )?;
-    }
-    Ok(())
-}
-
-fn params(values: &[crate::cell::Cell]) -> Vec<&(dyn postgres::types::ToSql + Sync)> {
-    values
-        .iter()
-        .map(|v| v as &(dyn postgres::types::ToSql + Sync))
-        .collect()
-}
-
-/// Insert a tank; None when its name is taken.
-fn insert_tank(
-    tx: &mut impl GenericClient,
-    site: SiteId,
-    spec: &TankSpec,
-) -> Result<Option<TankId>, postgres::Error> {
-    let sql = format!(
-        "{} ON CONFLICT (name) DO NOTHING RETURNING id",
-        TANKS.insert_sql_pg()
-    );
-    let values = tank_values(site, spec);
-    let Some(row) = tx.query_opt(&sql, &params(&values))? else {
-        return Ok(None);
-    };
-    let id = TankId(row.try_get(0)?);
-    write_strapping(tx, id, &spec.strapping)?;
-    Ok(Some(id))
-}
-
-/// The carrier's and vehicle's ids, each created when new.
-pub(crate) fn vehicle_ids(
-    tx: &mut impl GenericClient,
-    carrier: &str,
-    vehicle: &str,
-) -> Result<(i64, i64), StoreError> {
-    tx.execute(
-        "INSERT INTO carriers (name) VALUES ($1) ON CONFLICT (name) DO NOTHING",
-        &[&carrier],
-    )?;
-    let carrier_id: i64 = tx
-        .query_one("SELECT id FROM carriers WHERE name = $1", &[&carrier])?
-        .try_get(0)?;
-    tx.execute(
-        "INSERT INTO vehicles (carrier_id, name) VALUES ($1, $2) ON CONFLICT (name) DO NOTHING",
-        &[&carrier_id, &vehicle],
-    )?;
-    let row = tx.query_one(
-        "SELECT id, carrier_id FROM vehicles WHERE name = $1",
-        &[&vehicle],
-    )?;
-    let (vid, cid): (i64, i64) = (row.try_get(0)?, row.try_get(1)?);
-    if cid != carrier_id {
-        return Err(StoreError::Invalid(vec![other_carrier(vehicle, carrier)]));
-    }
-    Ok((carrier_id, vid))
-}
-
-/// Insert (`id` None) or update a delivery made from a revision; an update that finds the record
-/// moved on writes nothing and gives None.
-fn write_delivery(
-    tx: &mut impl GenericClient,
-    tank: TankId,
-    d: &DeliveryEntry,
-    id: Option<(DeliveryId, i64)>,
-) -> Result<Option<DeliveryId>, StoreError> {
-    let (carrier_id, vehicle_id) = vehicle_ids(tx, &d.carrier, &d.vehicle)?;
-    let mut values = delivery_values(tank, carrier_id, vehicle_id, d);
-    let duplicate = || StoreError::Invalid(vec![FieldError::new("ticket", duplicate_delivery(d))]);
-    match id {
-        None => {
-            let sql = format!(
-                "{} ON CONFLICT (ticket) WHERE deleted_at IS NULL DO NOTHING RETURNING id",
-                DELIVERIES.insert_sql_pg()
-            );
-            match tx.query_opt(&sql, &params(&values))? {
-                Some(row) => Ok(Some(DeliveryId(row.try_get(0)?))),
-                None => Err(duplicate()),
-            }
-        }
-        Some((id, opened)) => {
-            values.push(crate::cell::Cell::Int(id.0));
-            values.push(crate::cell::Cell::Int(opened));
-            let changed = tx
-                .execute(&DELIVERIES.update_sql_pg(), &params(&values))
-                .map_err(|e| write_error(e, "ticket", || duplicate_delivery(d)))?;
-            Ok((changed > 0).then_some(id))
-        }
-    }
-}
-
-/// Keep the earlier version of a record with the reason.
-fn record_revision(
-    tx: &mut impl GenericClient,
-    record: RecordRef,
-    action: RevisionAction,
-    reason: &str,
-    before: &EarlierVersion,
-) -> Result<(), StoreError> {
-    let (reason, json) = revision_text(reason, before)?;
-    let (table, row) = table_row(record);
-    tx.execute(
-        "INSERT INTO revisions (table_name, row_id, action, revised_at, reason, old_row) \
-         VALUES ($1, $2, $3, $4, $5, $6)",
-        &[&table, &row, &action.as_str(), &now_text(), &reason, &json],
-    )?;
-    Ok(())
-}
-
-const DELIVERY_SELECT: &str = "FROM deliveries d JOIN carriers c ON c.id = d.carrier_id \
+pub(super) const DELIVERY_SELECT: &str = "FROM deliveries d JOIN carriers c ON c.id = d.carrier_id \
     JOIN vehicles v ON v.id = d.vehicle_id";
 
 impl Repository for PgStore {
@@ -968,122 +690,4 @@ impl Repository for PgStore {
             self.target
         )))
     }
-}
-
-/// The current rows of every chained kind with their digests (as the SQLite walk reads them).
-fn current(c: &mut Client) -> Result<Rows, StoreError> {
-    let mut out = Rows::new();
-    let mut buf = String::new();
-    for r in c.query(
-        &format!("SELECT {SITE_COLUMNS}, deleted_at IS NOT NULL FROM sites"),
-        &[],
-    )? {
-        let site = site_from_row(&r)?;
-        chain::canonical_site(&mut buf, &site);
-        out.insert(
-            (Kind::Site, site.id.0),
-            (chain::sha(buf.as_bytes()), r.try_get(6)?),
-        );
-    }
-    let mut tanks = Vec::new();
-    for r in c.query(
-        &format!(
-            "SELECT {TANK_COLUMNS}, t.deleted_at IS NOT NULL FROM tanks t JOIN sites s ON s.id = t.site_id"
-        ),
-        &[],
-    )? {
-        tanks.push((tank_from_row(&r)?, r.try_get::<_, bool>(TANK_COLUMN_COUNT)?));
-    }
-    let at: std::collections::HashMap<i64, usize> = tanks
-        .iter()
-        .enumerate()
-        .map(|(i, (t, _))| (t.id.0, i))
-        .collect();
-    for p in c.query(
-        "SELECT tank_id, level_m, volume_m3 FROM strapping_points ORDER BY tank_id, level_m",
-        &[],
-    )? {
-        if let Some((t, _)) = at.get(&p.int(0)?).and_then(|&i| tanks.get_mut(i)) {
-            t.spec.strapping.push((p.real(1)?, p.real(2)?));
-        }
-    }
-    for (t, deleted) in &tanks {
-        chain::canonical_tank(&mut buf, t.site_id, &t.spec);
-        out.insert((Kind::Tank, t.id.0), (chain::sha(buf.as_bytes()), *deleted));
-    }
-    let none: [&str; 0] = [];
-    let mut rows = c.query_raw(
-        &format!("SELECT {READING_COLUMNS}, deleted_at IS NOT NULL FROM readings"),
-        none,
-    )?;
-    while let Some(r) = postgres::fallible_iterator::FallibleIterator::next(&mut rows)? {
-        let reading = reading_from_row(&r)?;
-        chain::canonical_reading(&mut buf, reading.tank_id, &reading.entry);
-        out.insert(
-            (Kind::Reading, reading.id.0),
-            (chain::sha(buf.as_bytes()), r.try_get(11)?),
-        );
-    }
-    drop(rows);
-    for r in c.query(
-        &format!("SELECT {DELIVERY_COLUMNS}, d.deleted_at IS NOT NULL {DELIVERY_SELECT}"),
-        &[],
-    )? {
-        let d = delivery_from_row(&r)?;
-        chain::canonical_delivery(&mut buf, d.tank_id, &d.entry);
-        out.insert(
-            (Kind::Delivery, d.id.0),
-            (chain::sha(buf.as_bytes()), r.try_get(14)?),
-        );
-    }
-    Ok(out)
-}
-
-/// Every table of the ledger's schema with its rows in key order, as text.
-fn dump(c: &mut Client) -> Result<String, StoreError> {
-    use std::fmt::Write as _;
-    let mut out = String::new();
-    let tables: Vec<String> = c
-        .query(
-            "SELECT table_name::TEXT FROM information_schema.tables \
-             WHERE table_schema = current_schema() AND table_type = 'BASE TABLE' \
-             ORDER BY table_name COLLATE \"C\"",
-            &[],
-        )?
-        .iter()
-        .map(|r| r.try_get(0))
-        .collect::<Result<_, _>>()?;
-    for table in tables {
-        let rows = c.query(&format!("SELECT * FROM \"{table}\" ORDER BY 1, 2"), &[])?;
-        for r in rows {
-            let mut vals = Vec::with_capacity(r.len());
-            for (i, col) in r.columns().iter().enumerate() {
-                use postgres::types::Type;
-                let v = match *col.type_() {
-                    Type::INT8 => r
-                        .try_get::<_, Option<i64>>(i)?
-                        .map(|v| format!("Integer({v})")),
-                    Type::INT4 => r
-                        .try_get::<_, Option<i32>>(i)?
-                        .map(|v| format!("Integer({v})")),
-                    Type::FLOAT8 => r
-                        .try_get::<_, Option<f64>>(i)?
-                        .map(|v| format!("Real({v:?})")),
-                    Type::TEXT | Type::VARCHAR => r
-                        .try_get::<_, Option<String>>(i)?
-                        .map(|v| format!("Text({v:?})")),
-                    Type::BYTEA => r
-                        .try_get::<_, Option<Vec<u8>>>(i)?
-                        .map(|v| format!("Blob({})", chain::hex(&v))),
-                    Type::BOOL => r
-                        .try_get::<_, Option<bool>>(i)?
-                        .map(|v| format!("Bool({v})")),
-                    ref other => Some(format!("<{other}>")),
-                };
-                vals.push(v.unwrap_or_else(|| "Null".into()));
-            }
-            let _ = writeln!(out, "{table}: {}", vals.join(", "));
-        }
-    }
-    Ok(out)
 }

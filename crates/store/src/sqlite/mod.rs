@@ -11,6 +11,7 @@ use crate::csv_format::{ImportOptions, ImportSources, ImportSummary};
 use crate::import::SiteError;
 use crate::records::*;
 use crate::repository::{RecordKind, Repository};
+use crate::revision::*;
 use chain::{Action, ChainWriter, Kind};
 use rows::*;
 use rusqlite::{Connection, OptionalExtension, params};
