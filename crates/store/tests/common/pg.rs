@@ -38,7 +38,7 @@ pub fn server_or_skip() -> Option<postgres::Config> {
         match FALLBACK.get_or_init(|| PrivateServer::start("trust", None)) {
             Ok(p) => {
                 eprintln!(
-                    "no server at 127.0.0.1:5432 ({why}): using a private one on port {}",
+                    "no PostgreSQL server reached ({why}): using a private one on port {}",
                     p.port
                 );
                 Ok(p.config("postgres", None))
