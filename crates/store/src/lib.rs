@@ -78,6 +78,11 @@ impl From<rusqlite::Error> for StoreError {
 
 impl From<postgres::Error> for StoreError {
     fn from(e: postgres::Error) -> Self {
+        if let Some(db) = e.as_db_error()
+            && *db.code() == postgres::error::SqlState::INSUFFICIENT_PRIVILEGE
+        {
+            return StoreError::NotAllowed(db.message().to_owned());
+        }
         // the server's own words (its message and detail) when it sent any
         let message = match e.as_db_error() {
             Some(db) => match db.detail() {
@@ -176,6 +181,11 @@ pub enum StoreError {
         /// What went wrong and what to check.
         reason: String,
     },
+    /// The server's roles do not let this login do it (a shared ledger's access by site).
+    #[error(
+        "your login may not do this on the shared ledger ({0}): an operator enters and edits readings at their own sites, an auditor reads everything and enters deliveries, an admin changes sites, tanks and users; `cryoledger users --db URL list` shows who is what"
+    )]
+    NotAllowed(String),
     /// The operation does not apply to this kind of ledger.
     #[error("{0}")]
     Unsupported(String),

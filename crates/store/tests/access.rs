@@ -165,6 +165,14 @@ fn an_operator_reads_and_changes_only_their_sites_whatever_sql_they_send() {
     let id = ops.add_reading(mine[0].id, &r).unwrap();
     ops.edit_reading(id, 1, &r, "read again").unwrap();
     assert!(ops.add_reading(south.id, &r).is_err());
+    // what the server refuses is said as a refusal of the login's role, not as a database fault
+    let mut spec = mine[0].spec.clone();
+    spec.length_m = 9.0;
+    let e = ops
+        .edit_tank(mine[0].id, mine[0].revision, &spec, "longer")
+        .unwrap_err();
+    assert!(matches!(e, StoreError::NotAllowed(_)), "{e:?}");
+    assert!(e.to_string().contains("your login may not do this"), "{e}");
     let e = ops
         .import(
             ImportSources {
