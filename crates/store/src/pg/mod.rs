@@ -347,7 +347,7 @@ impl Repository for PgStore {
             values.push(crate::cell::Cell::Int(opened));
             let changed = tx
                 .execute(&TANKS.update_sql_pg(), &params(&values))
-                .map_err(|e| write_error(e, "tank", || duplicate_tank(spec)))?;
+                .map_err(|e| write_error(e, &TANKS, || duplicate_tank(spec)))?;
             if changed == 0 {
                 return Err(stale_tank(old, opened, spec));
             }
@@ -434,7 +434,7 @@ impl Repository for PgStore {
             values.push(crate::cell::Cell::Int(opened));
             let changed = tx
                 .execute(&READINGS.update_sql_pg(), &params(&values))
-                .map_err(|e| write_error(e, "time", || duplicate_reading(new)))?;
+                .map_err(|e| write_error(e, &READINGS, || duplicate_reading(new)))?;
             if changed == 0 {
                 return Err(stale_reading(old, opened, yours));
             }

@@ -80,14 +80,14 @@ pub(super) fn is_unique_violation(e: &postgres::Error) -> bool {
     e.code() == Some(&SqlState::UNIQUE_VIOLATION)
 }
 
-/// A failed write as the user's field error when it broke a uniqueness rule.
+/// A failed write as the user's field error when it broke the record's uniqueness rule.
 pub(super) fn write_error(
     e: postgres::Error,
-    field: &str,
+    columns: &Columns,
     message: impl FnOnce() -> String,
 ) -> StoreError {
     if is_unique_violation(&e) {
-        StoreError::Invalid(vec![FieldError::new(field, message())])
+        StoreError::Invalid(vec![FieldError::new(columns.unique_field, message())])
     } else {
         e.into()
     }
@@ -280,7 +280,7 @@ pub(super) fn write_delivery(
             values.push(crate::cell::Cell::Int(opened));
             let changed = tx
                 .execute(&DELIVERIES.update_sql_pg(), &params(&values))
-                .map_err(|e| write_error(e, "ticket", || duplicate_delivery(d)))?;
+                .map_err(|e| write_error(e, &DELIVERIES, || duplicate_delivery(d)))?;
             Ok((changed > 0).then_some(id))
         }
     }

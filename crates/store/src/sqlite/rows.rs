@@ -100,23 +100,11 @@ impl Columns {
     }
 
     /// A failed write as the user's field error when it broke this record's uniqueness rule.
-    pub fn duplicate(
-        &self,
-        e: rusqlite::Error,
-        message: impl FnOnce() -> String,
-    ) -> Result<FieldError, rusqlite::Error> {
-        if is_unique_violation(&e) {
-            Ok(FieldError::new(self.unique_field, message()))
-        } else {
-            Err(e)
-        }
-    }
-
-    /// [`Columns::duplicate`] for the single-record methods.
     pub fn write_error(&self, e: rusqlite::Error, message: impl FnOnce() -> String) -> StoreError {
-        match self.duplicate(e, message) {
-            Ok(f) => StoreError::Invalid(vec![f]),
-            Err(e) => e.into(),
+        if is_unique_violation(&e) {
+            StoreError::Invalid(vec![FieldError::new(self.unique_field, message())])
+        } else {
+            e.into()
         }
     }
 }
