@@ -12,8 +12,8 @@
 mod common;
 
 use std::sync::atomic::{AtomicU64, Ordering};
-use std::sync::{Arc, Barrier};
-use std::time::Instant;
+use std::sync::{Arc, Condvar, Mutex};
+use std::time::{Duration, Instant};
 
 use common::{PgDatabase, server_or_skip};
 use store::*;
@@ -23,6 +23,43 @@ const PER_WRITER: usize = 5_000;
 const BATCH: usize = 250;
 const EDITS_PER_EDITOR: usize = 40;
 const START_MS: i64 = 1_767_225_600_000; // 2026-01-01T00:00:00Z
+
+/// A meeting point of `n` threads that gives up after a minute, so that a thread that failed makes
+/// the others fail too instead of waiting forever (std's `Barrier` has no timeout).
+struct Rendezvous {
+    state: Mutex<(usize, u64)>,
+    met: Condvar,
+    n: usize,
+}
+
+impl Rendezvous {
+    fn new(n: usize) -> Self {
+        Self {
+            state: Mutex::new((0, 0)),
+            met: Condvar::new(),
+            n,
+        }
+    }
+
+    fn wait(&self) -> Result<(), String> {
+        let mut g = self.state.lock().map_err(|e| e.to_string())?;
+        let round = g.1;
+        g.0 += 1;
+        if g.0 == self.n {
+            *g = (0, round + 1);
+            self.met.notify_all();
+            return Ok(());
+        }
+        let (_g, waited) = self
+            .met
+            .wait_timeout_while(g, Duration::from_secs(60), |g| g.1 == round)
+            .map_err(|e| e.to_string())?;
+        if waited.timed_out() {
+            return Err("another thread never came: see its error".into());
+        }
+        Ok(())
+    }
+}
 
 fn readings_csv(tank: &str, from: usize, n: usize) -> String {
     let mut s = String::from("tank,time,dp,dp_unit,pressure,pressure_unit\n");
@@ -72,9 +109,9 @@ fn thirty_two_writers_and_two_editors_lose_nothing() {
     // (the note the editor read, the note it wrote) of every edit that went through
     let accepted = Arc::new(std::sync::Mutex::new(Vec::<(Option<String>, String)>::new()));
     let conflicts = Arc::new(AtomicU64::new(0));
-    let start = Arc::new(Barrier::new(WRITERS));
+    let start = Arc::new(Rendezvous::new(WRITERS));
     // the two editors read the same revision, then both edit it: one must win, one be refused
-    let round = Arc::new(Barrier::new(2));
+    let round = Arc::new(Rendezvous::new(2));
     let t0 = Instant::now();
     let handles: Vec<_> = (0..WRITERS)
         .map(|w| {
@@ -83,8 +120,9 @@ fn thirty_two_writers_and_two_editors_lose_nothing() {
             let accepted = Arc::clone(&accepted);
             let round = Arc::clone(&round);
             std::thread::spawn(move || -> Result<(), String> {
-                let mut s = PgStore::connect(&url).map_err(|e| e.to_string())?;
-                start.wait();
+                let s = PgStore::connect(&url).map_err(|e| e.to_string());
+                start.wait()?;
+                let mut s = s?;
                 let name = format!("W-{w:02}");
                 let mut edits = 0;
                 for b in 0..PER_WRITER / BATCH {
@@ -104,11 +142,11 @@ fn thirty_two_writers_and_two_editors_lose_nothing() {
                         edits += 1;
                         // both read the same revision; editor 0 saves first, editor 1 after it
                         // (from what is by then a stale read: it must be refused, never win)
-                        round.wait();
+                        round.wait()?;
                         let r = s.reading(target).map_err(|e| e.to_string())?;
-                        round.wait();
+                        round.wait()?;
                         if w == 1 {
-                            round.wait();
+                            round.wait()?;
                         }
                         let mut e = r.entry.clone();
                         e.dp.value = 50.0 + w as f64 + edits as f64 / 100.0;
@@ -132,7 +170,7 @@ fn thirty_two_writers_and_two_editors_lose_nothing() {
                             Err(e) => return Err(format!("editor {w}: {e}")),
                         }
                         if w == 0 {
-                            round.wait();
+                            round.wait()?;
                         }
                     }
                 }
@@ -198,7 +236,7 @@ fn thirty_two_writers_and_two_editors_lose_nothing() {
          CREATE UNIQUE INDEX ON readings_baseline (tank_id, time_ms) WHERE deleted_at IS NULL",
     )
     .unwrap();
-    let start = Arc::new(Barrier::new(WRITERS));
+    let start = Arc::new(Rendezvous::new(WRITERS));
     let t1 = Instant::now();
     let handles: Vec<_> = (0..WRITERS)
         .map(|w| {
@@ -211,7 +249,7 @@ fn thirty_two_writers_and_two_editors_lose_nothing() {
                          pressure_value, pressure_unit, pressure_pa) VALUES ($1, $2, $3, $4, 'inH2O', $5, $6, 'barg', $7)",
                     )
                     .unwrap();
-                start.wait();
+                start.wait().unwrap();
                 for b in 0..PER_WRITER / BATCH {
                     let mut tx = c.transaction().unwrap();
                     for i in b * BATCH..(b + 1) * BATCH {
