@@ -111,8 +111,13 @@ impl CryoApp {
         location: store::Location,
         settings: Settings,
     ) -> Self {
+        let mut core = Core::new(store, settings.units, Some(location.clone()));
+        core.view.ledger = match &location {
+            store::Location::Server(_) => format!("Shared ledger {location}"),
+            store::Location::File(_) => format!("Ledger {}", location.name()),
+        };
         Self {
-            core: Core::new(store, settings.units, Some(location.clone())),
+            core,
             location,
             actions: Vec::new(),
             frame_ms: 0.0,

@@ -633,4 +633,7 @@ pub struct ViewState {
     pub import: ImportView,
     /// Show frame and page-build timings in the status bar (a diagnostics switch on the help page).
     pub diagnostics: bool,
+    /// Which ledger the window writes to, as the status bar names it ("ledger.db", or a shared
+    /// ledger's login, server and database; never a password).
+    pub ledger: String,
 }

@@ -56,6 +56,8 @@ fn the_window_works_on_a_shared_ledger() {
         .with_size(egui::vec2(1360.0, 860.0))
         .build_eframe(move |_cc| app);
     h.run();
+    // the status bar names the shared ledger (its login, server and database)
+    h.get_by_label(&format!("Shared ledger {location}"));
     h.get_by_label("ASB-N2-1").click();
     h.run();
     h.get_by_role_and_label(Role::Button, "Readings").click();

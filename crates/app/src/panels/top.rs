@@ -66,6 +66,10 @@ pub fn status_ui(ui: &mut Ui, view: &ViewState, out: &mut Vec<Action>) {
                 .small(),
         );
         ui.separator();
+        if !view.ledger.is_empty() {
+            ui.label(RichText::new(&view.ledger).color(style::MUTED).small());
+            ui.separator();
+        }
         match &view.history_check {
             Some(h) => {
                 let colour = if h.ok { style::MUTED } else { style::ERROR };
