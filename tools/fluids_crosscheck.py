@@ -59,7 +59,14 @@ def draw_state(rng, st):
     if kind == "liquid":
         t = rng.uniform(tt + 0.5, 0.95 * tc)
         p_sat = coolprop_saturation(st, t=t)["pressure_pa"]
-        return t, rng.uniform(1.01 * p_sat, p_sat + 5e6)
+        top = p_sat + 5e6
+        # a compressed liquid stays a liquid: below the melting pressure at t (hydrogen's melting line
+        # is shallow enough that 5 MPa over saturation at 15 K would be solid), for fluids that have one
+        try:
+            top = min(top, 0.99 * st.melting_line(CP.iP, CP.iT, t))
+        except ValueError:
+            pass
+        return t, rng.uniform(1.01 * p_sat, max(top, 1.02 * p_sat))
     if kind == "gas":
         t = rng.uniform(max(tt + 1.0, 200.0), 330.0)
         top = 25e5 if t > tc else min(25e5, 0.99 * coolprop_saturation(st, t=t)["pressure_pa"])
