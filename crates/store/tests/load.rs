@@ -103,11 +103,18 @@ fn thirty_two_writers_and_two_editors_lose_nothing() {
         )
         .unwrap();
     let shared = owner.tank_by_name("SHARED").unwrap();
-    let target = owner.readings(shared.id, None).unwrap()[0].id;
+    // the records both editors change, in turn
+    let targets: Vec<ReadingId> = owner
+        .readings(shared.id, None)
+        .unwrap()
+        .iter()
+        .map(|r| r.id)
+        .collect();
+    assert_eq!(targets.len(), 4);
 
     let edits_done = Arc::new(AtomicU64::new(0));
     // (the note the editor read, the note it wrote) of every edit that went through
-    let accepted = Arc::new(std::sync::Mutex::new(Vec::<(Option<String>, String)>::new()));
+    let accepted = Arc::new(Mutex::new(Vec::<(ReadingId, Option<String>, String)>::new()));
     let conflicts = Arc::new(AtomicU64::new(0));
     let start = Arc::new(Rendezvous::new(WRITERS));
     // the two editors read the same revision, then both edit it: one must win, one be refused
@@ -118,6 +125,7 @@ fn thirty_two_writers_and_two_editors_lose_nothing() {
             let (url, start) = (url.clone(), Arc::clone(&start));
             let (edits_done, conflicts) = (Arc::clone(&edits_done), Arc::clone(&conflicts));
             let accepted = Arc::clone(&accepted);
+            let targets = targets.clone();
             let round = Arc::clone(&round);
             std::thread::spawn(move || -> Result<(), String> {
                 let s = PgStore::connect(&url).map_err(|e| e.to_string());
@@ -143,6 +151,7 @@ fn thirty_two_writers_and_two_editors_lose_nothing() {
                         // both read the same revision; editor 0 saves first, editor 1 after it
                         // (from what is by then a stale read: it must be refused, never win)
                         round.wait()?;
+                        let target = targets[edits % targets.len()];
                         let r = s.reading(target).map_err(|e| e.to_string())?;
                         round.wait()?;
                         if w == 1 {
@@ -155,10 +164,11 @@ fn thirty_two_writers_and_two_editors_lose_nothing() {
                             Ok(()) => {
                                 edits_done.fetch_add(1, Ordering::Relaxed);
                                 let wrote = e.note.clone().unwrap_or_default();
-                                accepted
-                                    .lock()
-                                    .map_err(|e| e.to_string())?
-                                    .push((r.entry.note.clone(), wrote));
+                                accepted.lock().map_err(|e| e.to_string())?.push((
+                                    target,
+                                    r.entry.note.clone(),
+                                    wrote,
+                                ));
                             }
                             Err(StoreError::Conflict(c)) => {
                                 let text = StoreError::Conflict(c).to_string();
@@ -217,12 +227,36 @@ fn thirty_two_writers_and_two_editors_lose_nothing() {
         (done, refused),
         (EDITS_PER_EDITOR as u64, EDITS_PER_EDITOR as u64)
     );
-    let now = owner.reading(target).unwrap();
-    assert_eq!(now.revision, 1 + done as i64);
-    assert_eq!(
-        owner.history(RecordRef::Reading(target)).unwrap().len() as u64,
-        done
-    );
+    let accepted = accepted.lock().unwrap().clone();
+    let note = |v: &EarlierVersion| match v {
+        EarlierVersion::Reading(r) => r.note.clone(),
+        other => panic!("{other:?}"),
+    };
+    for &target in &targets {
+        // the revision counts exactly the edits of this record that went through, each in its history
+        let ours: Vec<&(ReadingId, Option<String>, String)> =
+            accepted.iter().filter(|a| a.0 == target).collect();
+        assert_eq!(ours.len(), EDITS_PER_EDITOR / targets.len());
+        let now = owner.reading(target).unwrap();
+        assert_eq!(now.revision, 1 + ours.len() as i64);
+        let history = owner.history(RecordRef::Reading(target)).unwrap();
+        assert_eq!(history.len(), ours.len());
+        // each edit that went through replaced the very version its editor had read: the version it
+        // replaced (kept in the history) holds the note the editor saw
+        for (i, h) in history.iter().enumerate() {
+            let wrote = match history.get(i + 1) {
+                Some(next) => note(&next.before),
+                None => now.entry.note.clone(),
+            }
+            .expect("every edit writes a note");
+            let read = ours
+                .iter()
+                .find(|a| a.2 == wrote)
+                .map(|a| a.1.clone())
+                .expect("an accepted edit wrote it");
+            assert_eq!(read, note(&h.before), "edit '{wrote}' of reading {target}");
+        }
+    }
     let v = owner.verify().unwrap();
     assert!(
         v.problems.is_empty(),
