@@ -34,62 +34,93 @@ pub(crate) fn stale(
     }))
 }
 
-/// [`stale`] for a site whose stored version is `now`, changed to `settings`.
-pub(crate) fn stale_site(now: &Site, opened: i64, settings: &SiteSettings) -> StoreError {
-    let mut yours = now.clone();
-    (yours.elevation_m, yours.barometer_kpa, yours.time_zone) = (
+/// A stored record with a revision: what a change made from an older one is refused against.
+pub(crate) trait Revised: Sized {
+    /// Its revision now.
+    fn revision(&self) -> i64;
+    /// Which record, and its stored version.
+    fn version(self) -> (RecordRef, EarlierVersion);
+}
+
+impl Revised for Site {
+    fn revision(&self) -> i64 {
+        self.revision
+    }
+    fn version(self) -> (RecordRef, EarlierVersion) {
+        (RecordRef::Site(self.id), EarlierVersion::Site(self))
+    }
+}
+
+impl Revised for TankRecord {
+    fn revision(&self) -> i64 {
+        self.revision
+    }
+    fn version(self) -> (RecordRef, EarlierVersion) {
+        (
+            RecordRef::Tank(self.id),
+            EarlierVersion::Tank(Box::new(self.spec)),
+        )
+    }
+}
+
+impl Revised for Reading {
+    fn revision(&self) -> i64 {
+        self.revision
+    }
+    fn version(self) -> (RecordRef, EarlierVersion) {
+        (
+            RecordRef::Reading(self.id),
+            EarlierVersion::Reading(self.entry),
+        )
+    }
+}
+
+impl Revised for Delivery {
+    fn revision(&self) -> i64 {
+        self.revision
+    }
+    fn version(self) -> (RecordRef, EarlierVersion) {
+        (
+            RecordRef::Delivery(self.id),
+            EarlierVersion::Delivery(self.entry),
+        )
+    }
+}
+
+/// A change made from revision `opened`, refused against the record as stored `now`, with both
+/// versions (`yours` None for a deletion).
+pub(crate) fn refused<T: Revised>(
+    now: T,
+    opened: i64,
+    yours: Option<EarlierVersion>,
+) -> StoreError {
+    let current = now.revision();
+    let (record, theirs) = now.version();
+    stale(record, opened, current, theirs, yours)
+}
+
+/// The record as stored `now`, when it is still at the revision `opened` a change was made from.
+pub(crate) fn unchanged_since<T: Revised>(
+    now: T,
+    opened: i64,
+    yours: &Option<EarlierVersion>,
+) -> Result<T, StoreError> {
+    if now.revision() == opened {
+        Ok(now)
+    } else {
+        Err(refused(now, opened, yours.clone()))
+    }
+}
+
+/// What a site looks like with `settings` (the change refused, shown beside the stored one).
+pub(crate) fn site_as(site: &Site, settings: &SiteSettings) -> EarlierVersion {
+    let mut s = site.clone();
+    (s.elevation_m, s.barometer_kpa, s.time_zone) = (
         settings.elevation_m,
         settings.barometer_kpa,
         settings.time_zone.clone(),
     );
-    stale(
-        RecordRef::Site(now.id),
-        opened,
-        now.revision,
-        EarlierVersion::Site(now.clone()),
-        Some(EarlierVersion::Site(yours)),
-    )
-}
-
-/// [`stale`] for a tank whose stored version is `now`, changed to `spec`.
-pub(crate) fn stale_tank(now: TankRecord, opened: i64, spec: &TankSpec) -> StoreError {
-    stale(
-        RecordRef::Tank(now.id),
-        opened,
-        now.revision,
-        EarlierVersion::Tank(Box::new(now.spec)),
-        Some(EarlierVersion::Tank(Box::new(spec.clone()))),
-    )
-}
-
-/// [`stale`] for a reading whose stored version is `now`.
-pub(crate) fn stale_reading(
-    now: Reading,
-    opened: i64,
-    yours: Option<EarlierVersion>,
-) -> StoreError {
-    stale(
-        RecordRef::Reading(now.id),
-        opened,
-        now.revision,
-        EarlierVersion::Reading(now.entry),
-        yours,
-    )
-}
-
-/// [`stale`] for a delivery whose stored version is `now`.
-pub(crate) fn stale_delivery(
-    now: Delivery,
-    opened: i64,
-    yours: Option<EarlierVersion>,
-) -> StoreError {
-    stale(
-        RecordRef::Delivery(now.id),
-        opened,
-        now.revision,
-        EarlierVersion::Delivery(now.entry),
-        yours,
-    )
+    EarlierVersion::Site(s)
 }
 
 /// A revision's reason (refused when empty) and its earlier version as JSON.

@@ -119,6 +119,30 @@ impl PgStore {
         Ok(out)
     }
 
+    /// [`PgStore::write`] for a change of a record made from a revision: `f` says whether the record
+    /// was still at it (and changed); when not, nothing is committed.
+    fn write_if(
+        &self,
+        f: impl FnOnce(&mut postgres::Transaction<'_>, &mut PgChain) -> Result<bool, StoreError>,
+    ) -> Result<bool, StoreError> {
+        let mut c = self.client();
+        let mut tx = c.transaction()?;
+        let mut chain = PgChain::new(&mut tx)?;
+        let written = f(&mut tx, &mut chain)?;
+        if written {
+            tx.commit()?;
+        }
+        Ok(written)
+    }
+
+    /// One live site.
+    fn site(&self, id: SiteId) -> Result<Site, StoreError> {
+        self.sites()?
+            .into_iter()
+            .find(|s| s.id == id)
+            .ok_or_else(|| not_found("site", id))
+    }
+
     fn one_tank(
         &self,
         condition: &str,
@@ -240,15 +264,10 @@ impl Repository for PgStore {
         reason: &str,
     ) -> Result<(), StoreError> {
         settings.check().map_err(|e| StoreError::Invalid(vec![e]))?;
-        let old = self
-            .sites()?
-            .into_iter()
-            .find(|s| s.id == id)
-            .ok_or_else(|| not_found("site", id))?;
-        if old.revision != opened {
-            return Err(stale_site(&old, opened, settings));
-        }
-        self.write(|tx, chain| {
+        let old = self.site(id)?;
+        let yours = Some(site_as(&old, settings));
+        let old = unchanged_since(old, opened, &yours)?;
+        let written = self.write_if(|tx, chain| {
             record_revision(
                 tx,
                 RecordRef::Site(id),
@@ -269,10 +288,15 @@ impl Repository for PgStore {
                 ],
             )?;
             if changed == 0 {
-                return Err(stale_site(&old, opened, settings));
+                return Ok(false);
             }
-            chain_site(tx, chain, id, Action::Edit)
-        })
+            chain_site(tx, chain, id, Action::Edit)?;
+            Ok(true)
+        })?;
+        if !written {
+            return Err(refused(self.site(id)?, opened, yours));
+        }
+        Ok(())
     }
 
     fn tanks(&self) -> Result<Vec<TankRecord>, StoreError> {
@@ -330,10 +354,9 @@ impl Repository for PgStore {
         reason: &str,
     ) -> Result<(), StoreError> {
         let old = self.tank(id)?;
-        if old.revision != opened {
-            return Err(stale_tank(old, opened, spec));
-        }
-        self.write(|tx, chain| {
+        let yours = Some(EarlierVersion::Tank(Box::new(spec.clone())));
+        let old = unchanged_since(old, opened, &yours)?;
+        let written = self.write_if(|tx, chain| {
             record_revision(
                 tx,
                 RecordRef::Tank(id),
@@ -349,13 +372,18 @@ impl Repository for PgStore {
                 .execute(&TANKS.update_sql_pg(), &params(&values))
                 .map_err(|e| write_error(e, &TANKS, || duplicate_tank(spec)))?;
             if changed == 0 {
-                return Err(stale_tank(old, opened, spec));
+                return Ok(false);
             }
             write_strapping(tx, id, &spec.strapping)?;
             chain.append(tx, Kind::Tank, id.0, Action::Edit, |out| {
                 chain::canonical_tank(out, site_id, spec)
-            })
-        })
+            })?;
+            Ok(true)
+        })?;
+        if !written {
+            return Err(refused(self.tank(id)?, opened, yours));
+        }
+        Ok(())
     }
 
     fn add_reading(&mut self, tank: TankId, r: &ReadingEntry) -> Result<ReadingId, StoreError> {
@@ -417,11 +445,9 @@ impl Repository for PgStore {
     ) -> Result<(), StoreError> {
         let old = self.reading(id)?;
         let yours = Some(EarlierVersion::Reading(new.clone()));
-        if old.revision != opened {
-            return Err(stale_reading(old, opened, yours));
-        }
+        let old = unchanged_since(old, opened, &yours)?;
         let tank_id = old.tank_id;
-        self.write(|tx, chain| {
+        let written = self.write_if(|tx, chain| {
             record_revision(
                 tx,
                 RecordRef::Reading(id),
@@ -436,12 +462,17 @@ impl Repository for PgStore {
                 .execute(&READINGS.update_sql_pg(), &params(&values))
                 .map_err(|e| write_error(e, &READINGS, || duplicate_reading(new)))?;
             if changed == 0 {
-                return Err(stale_reading(old, opened, yours));
+                return Ok(false);
             }
             chain.append(tx, Kind::Reading, id.0, Action::Edit, |out| {
                 chain::canonical_reading(out, tank_id, new)
-            })
-        })
+            })?;
+            Ok(true)
+        })?;
+        if !written {
+            return Err(refused(self.reading(id)?, opened, yours));
+        }
+        Ok(())
     }
 
     fn delete_reading(
@@ -451,10 +482,8 @@ impl Repository for PgStore {
         reason: &str,
     ) -> Result<(), StoreError> {
         let old = self.reading(id)?;
-        if old.revision != opened {
-            return Err(stale_reading(old, opened, None));
-        }
-        self.write(|tx, chain| {
+        let old = unchanged_since(old, opened, &None)?;
+        let written = self.write_if(|tx, chain| {
             record_revision(
                 tx,
                 RecordRef::Reading(id),
@@ -468,10 +497,15 @@ impl Repository for PgStore {
                 &[&id.0, &now_text(), &opened],
             )?;
             if changed == 0 {
-                return Err(stale_reading(old, opened, None));
+                return Ok(false);
             }
-            chain.append(tx, Kind::Reading, id.0, Action::Delete, |_| {})
-        })
+            chain.append(tx, Kind::Reading, id.0, Action::Delete, |_| {})?;
+            Ok(true)
+        })?;
+        if !written {
+            return Err(refused(self.reading(id)?, opened, None));
+        }
+        Ok(())
     }
 
     fn reading_count(&self, tank: Option<TankId>) -> Result<i64, StoreError> {
@@ -536,11 +570,9 @@ impl Repository for PgStore {
     ) -> Result<(), StoreError> {
         let old = self.delivery(id)?;
         let yours = Some(EarlierVersion::Delivery(new.clone()));
-        if old.revision != opened {
-            return Err(stale_delivery(old, opened, yours));
-        }
+        let old = unchanged_since(old, opened, &yours)?;
         let tank_id = old.tank_id;
-        self.write(|tx, chain| {
+        let written = self.write_if(|tx, chain| {
             record_revision(
                 tx,
                 RecordRef::Delivery(id),
@@ -549,12 +581,17 @@ impl Repository for PgStore {
                 &EarlierVersion::Delivery(old.entry.clone()),
             )?;
             if write_delivery(tx, old.tank_id, new, Some((id, opened)))?.is_none() {
-                return Err(stale_delivery(old, opened, yours));
+                return Ok(false);
             }
             chain.append(tx, Kind::Delivery, id.0, Action::Edit, |out| {
                 chain::canonical_delivery(out, tank_id, new)
-            })
-        })
+            })?;
+            Ok(true)
+        })?;
+        if !written {
+            return Err(refused(self.delivery(id)?, opened, yours));
+        }
+        Ok(())
     }
 
     fn delete_delivery(
@@ -564,10 +601,8 @@ impl Repository for PgStore {
         reason: &str,
     ) -> Result<(), StoreError> {
         let old = self.delivery(id)?;
-        if old.revision != opened {
-            return Err(stale_delivery(old, opened, None));
-        }
-        self.write(|tx, chain| {
+        let old = unchanged_since(old, opened, &None)?;
+        let written = self.write_if(|tx, chain| {
             record_revision(
                 tx,
                 RecordRef::Delivery(id),
@@ -581,10 +616,15 @@ impl Repository for PgStore {
                 &[&id.0, &now_text(), &opened],
             )?;
             if changed == 0 {
-                return Err(stale_delivery(old, opened, None));
+                return Ok(false);
             }
-            chain.append(tx, Kind::Delivery, id.0, Action::Delete, |_| {})
-        })
+            chain.append(tx, Kind::Delivery, id.0, Action::Delete, |_| {})?;
+            Ok(true)
+        })?;
+        if !written {
+            return Err(refused(self.delivery(id)?, opened, None));
+        }
+        Ok(())
     }
 
     fn vehicles(&self) -> Result<Vec<Vehicle>, StoreError> {

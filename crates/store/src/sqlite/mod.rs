@@ -168,6 +168,14 @@ pub(crate) fn site_with(
 }
 
 impl Store {
+    /// One live site.
+    fn site(&self, id: SiteId) -> Result<Site, StoreError> {
+        self.sites()?
+            .into_iter()
+            .find(|s| s.id == id)
+            .ok_or_else(|| Self::not_found("site", id))
+    }
+
     /// The one live tank a condition on `t` picks, with its strapping table (one query each, not the
     /// whole fleet's).
     fn one_tank(
@@ -242,14 +250,9 @@ impl Repository for Store {
         reason: &str,
     ) -> Result<(), StoreError> {
         settings.check().map_err(invalid)?;
-        let old = self
-            .sites()?
-            .into_iter()
-            .find(|s| s.id == id)
-            .ok_or_else(|| Self::not_found("site", id))?;
-        if old.revision != opened {
-            return Err(stale_site(&old, opened, settings));
-        }
+        let old = self.site(id)?;
+        let yours = Some(site_as(&old, settings));
+        let old = unchanged_since(old, opened, &yours)?;
         let tx = self.conn.transaction()?;
         record_revision(
             &tx,
@@ -271,7 +274,8 @@ impl Repository for Store {
             ],
         )?;
         if changed == 0 {
-            return Err(stale_site(&old, opened, settings));
+            drop(tx);
+            return Err(refused(self.site(id)?, opened, yours));
         }
         chain_site(&tx, &mut ChainWriter::new(&tx)?, id, Action::Edit)?;
         tx.commit()?;
@@ -341,9 +345,8 @@ impl Repository for Store {
         reason: &str,
     ) -> Result<(), StoreError> {
         let old = self.tank(id)?;
-        if old.revision != opened {
-            return Err(stale_tank(old, opened, spec));
-        }
+        let yours = Some(EarlierVersion::Tank(Box::new(spec.clone())));
+        let old = unchanged_since(old, opened, &yours)?;
         let tx = self.conn.transaction()?;
         record_revision(
             &tx,
@@ -357,7 +360,8 @@ impl Repository for Store {
         if !update_tank(&tx, id, opened, site_id, spec)
             .map_err(|e| TANKS.write_error(e, || duplicate_tank(spec)))?
         {
-            return Err(stale_tank(old, opened, spec));
+            drop(tx);
+            return Err(refused(self.tank(id)?, opened, yours));
         }
         chain.append(&tx, Kind::Tank, id.0, Action::Edit, |out| {
             chain::canonical_tank(out, site_id, spec)
@@ -422,9 +426,7 @@ impl Repository for Store {
     ) -> Result<(), StoreError> {
         let old = self.reading(id)?;
         let yours = Some(EarlierVersion::Reading(new.clone()));
-        if old.revision != opened {
-            return Err(stale_reading(old, opened, yours));
-        }
+        let old = unchanged_since(old, opened, &yours)?;
         let tx = self.conn.transaction()?;
         record_revision(
             &tx,
@@ -438,7 +440,8 @@ impl Repository for Store {
             .and_then(|mut st| execute_reading(&mut st, old.tank_id, new, Some((id, opened))))
             .map_err(|e| READINGS.write_error(e, || duplicate_reading(new)))?;
         if changed == 0 {
-            return Err(stale_reading(old, opened, yours));
+            drop(tx);
+            return Err(refused(self.reading(id)?, opened, yours));
         }
         ChainWriter::new(&tx)?.append(&tx, Kind::Reading, id.0, Action::Edit, |out| {
             chain::canonical_reading(out, old.tank_id, new)
@@ -454,9 +457,7 @@ impl Repository for Store {
         reason: &str,
     ) -> Result<(), StoreError> {
         let old = self.reading(id)?;
-        if old.revision != opened {
-            return Err(stale_reading(old, opened, None));
-        }
+        let old = unchanged_since(old, opened, &None)?;
         let tx = self.conn.transaction()?;
         record_revision(
             &tx,
@@ -471,7 +472,8 @@ impl Repository for Store {
             params![id.0, now_text(), opened],
         )?;
         if changed == 0 {
-            return Err(stale_reading(old, opened, None));
+            drop(tx);
+            return Err(refused(self.reading(id)?, opened, None));
         }
         ChainWriter::new(&tx)?.append(&tx, Kind::Reading, id.0, Action::Delete, |_| {})?;
         tx.commit()?;
@@ -540,9 +542,7 @@ impl Repository for Store {
     ) -> Result<(), StoreError> {
         let old = self.delivery(id)?;
         let yours = Some(EarlierVersion::Delivery(new.clone()));
-        if old.revision != opened {
-            return Err(stale_delivery(old, opened, yours));
-        }
+        let old = unchanged_since(old, opened, &yours)?;
         let tx = self.conn.transaction()?;
         record_revision(
             &tx,
@@ -552,7 +552,8 @@ impl Repository for Store {
             &EarlierVersion::Delivery(old.entry.clone()),
         )?;
         if write_delivery(&tx, old.tank_id, new, Some((id, opened)))?.is_none() {
-            return Err(stale_delivery(old, opened, yours));
+            drop(tx);
+            return Err(refused(self.delivery(id)?, opened, yours));
         }
         ChainWriter::new(&tx)?.append(&tx, Kind::Delivery, id.0, Action::Edit, |out| {
             chain::canonical_delivery(out, old.tank_id, new)
@@ -568,9 +569,7 @@ impl Repository for Store {
         reason: &str,
     ) -> Result<(), StoreError> {
         let old = self.delivery(id)?;
-        if old.revision != opened {
-            return Err(stale_delivery(old, opened, None));
-        }
+        let old = unchanged_since(old, opened, &None)?;
         let tx = self.conn.transaction()?;
         record_revision(
             &tx,
@@ -585,7 +584,8 @@ impl Repository for Store {
             params![id.0, now_text(), opened],
         )?;
         if changed == 0 {
-            return Err(stale_delivery(old, opened, None));
+            drop(tx);
+            return Err(refused(self.delivery(id)?, opened, None));
         }
         ChainWriter::new(&tx)?.append(&tx, Kind::Delivery, id.0, Action::Delete, |_| {})?;
         tx.commit()?;
