@@ -10,7 +10,7 @@ mod common;
 mod pg;
 
 use app::CryoApp;
-use app::egui::{self, Key, Modifiers, Role};
+use app::egui::{self, Role};
 use egui_kittest::{Harness, kittest::Queryable};
 use store::Repository as _;
 
@@ -73,18 +73,8 @@ fn the_window_works_on_a_shared_ledger() {
     let shown = store::zone_of(t.time_zone.as_deref()).text(newest.entry.time.ms);
     h.get_by_label(&shown).click();
     h.run();
-    for (label, text) in [
-        ("DP", "88.25"),
-        ("Reason for the change", "read again on the server"),
-    ] {
-        h.get_by_role_and_label(Role::TextInput, label).focus();
-        h.run();
-        h.key_press_modifiers(Modifiers::COMMAND, Key::A);
-        h.run();
-        h.get_by_role_and_label(Role::TextInput, label)
-            .type_text(text);
-        h.run();
-    }
+    common::type_into(&mut h, "DP", "88.25");
+    common::type_into(&mut h, "Reason for the change", "read again on the server");
     h.get_by_label("Save change").click();
     h.run();
     // read back on a connection of its own

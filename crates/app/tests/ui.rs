@@ -7,8 +7,10 @@
 
 mod common;
 
+use common::type_into;
+
 use app::CryoApp;
-use app::egui::{self, Key, Modifiers, Role};
+use app::egui::{self, Role};
 use app::fmt::UnitSystem;
 use app::view::{Attention, Page, TankTab};
 use egui_kittest::{Harness, kittest::Queryable};
@@ -61,17 +63,6 @@ fn select(h: &mut Harness<'_, CryoApp>, name: &str) {
 
 fn tab(h: &mut Harness<'_, CryoApp>, t: &str) {
     h.get_by_role_and_label(Role::Button, t).click();
-    h.run();
-}
-
-/// Replace the text of the field labelled `label`.
-fn type_into(h: &mut Harness<'_, CryoApp>, label: &str, text: &str) {
-    h.get_by_role_and_label(Role::TextInput, label).focus();
-    h.run();
-    h.key_press_modifiers(Modifiers::COMMAND, Key::A);
-    h.run();
-    h.get_by_role_and_label(Role::TextInput, label)
-        .type_text(text);
     h.run();
 }
 

@@ -1,6 +1,7 @@
 //! Fictional test fleets built through the store API (names and figures are invented for tests).
 #![allow(dead_code, clippy::expect_used)]
 
+use egui_kittest::kittest::Queryable as _;
 use store::Repository;
 use store::{DeliveryFields, ReadingFields, Store, TankFields};
 
@@ -247,4 +248,16 @@ pub fn demo_into(mut s: Store) -> Store {
     )
     .expect("demo import");
     s
+}
+
+/// Replace the text (a test helper, on the real window) of the field labelled `label`.
+pub fn type_into(h: &mut egui_kittest::Harness<'_, app::CryoApp>, label: &str, text: &str) {
+    h.get_by_role_and_label(app::egui::Role::TextInput, label)
+        .focus();
+    h.run();
+    h.key_press_modifiers(app::egui::Modifiers::COMMAND, app::egui::Key::A);
+    h.run();
+    h.get_by_role_and_label(app::egui::Role::TextInput, label)
+        .type_text(text);
+    h.run();
 }
