@@ -15,11 +15,17 @@ pub enum Location {
 }
 
 impl Location {
-    /// A URL starting `postgres://` or `postgresql://` names a server; anything else is a file path.
+    /// A URL starting `postgres://` or `postgresql://` names a server, and so does a libpq
+    /// connection string of `key=value` words whose first key is one of libpq's (`host=127.0.0.1
+    /// dbname=fleet`); anything else is a file path. Without the second rule such a string would
+    /// silently become a new SQLite file of that name in the working folder.
     pub fn parse(text: &str) -> Self {
         let t = text.trim();
         let lower = t.get(..13).unwrap_or(t).to_ascii_lowercase();
-        if lower.starts_with("postgres://") || lower.starts_with("postgresql://") {
+        if lower.starts_with("postgres://")
+            || lower.starts_with("postgresql://")
+            || is_key_value_string(t)
+        {
             Location::Server(t.to_owned())
         } else {
             Location::File(PathBuf::from(text))
@@ -69,6 +75,29 @@ impl Location {
     }
 }
 
+/// libpq's connection keys that can open a key=value connection string (PostgreSQL 15 manual,
+/// §34.1.2 "Parameter Key Words").
+const LIBPQ_KEYS: [&str; 8] = [
+    "host",
+    "hostaddr",
+    "port",
+    "dbname",
+    "user",
+    "password",
+    "sslmode",
+    "application_name",
+];
+
+fn is_key_value_string(t: &str) -> bool {
+    let Some(first) = t.split_whitespace().next() else {
+        return false;
+    };
+    let Some((key, _)) = first.split_once('=') else {
+        return false;
+    };
+    LIBPQ_KEYS.contains(&key)
+}
+
 impl std::fmt::Display for Location {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         match self {
@@ -114,5 +143,26 @@ mod tests {
         assert_eq!(l.to_string(), "postgres://ops@db.example:6543/fleet");
         assert!(!l.name().contains("s3cret"));
         assert_eq!(Location::parse("/var/x/ledger.db").name(), "ledger.db");
+        // a libpq key=value string is a server too, never a file named after it
+        let kv = "host=127.0.0.1 port=5432 user=postgres dbname=fleet password='x y'";
+        assert_eq!(Location::parse(kv), Location::Server(kv.into()));
+        assert_eq!(
+            Location::parse(kv).name(),
+            "postgres://postgres@127.0.0.1:5432/fleet"
+        );
+        let sock = "host=/var/run/postgresql dbname=fleet";
+        assert_eq!(Location::parse(sock), Location::Server(sock.into()));
+        assert_eq!(
+            Location::parse("dbname=x.db"),
+            Location::Server("dbname=x.db".into())
+        );
+        assert_eq!(
+            Location::parse("./host=a.db"),
+            Location::File(PathBuf::from("./host=a.db"))
+        );
+        assert_eq!(
+            Location::parse("speed=2.db"),
+            Location::File(PathBuf::from("speed=2.db"))
+        );
     }
 }
