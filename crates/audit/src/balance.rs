@@ -129,6 +129,7 @@ pub(crate) fn balance(
         gauge_step: None,
         gauge_scale: None,
         sigma_gauge_scale_kg: 0.0,
+        with_vehicle: None,
         explanation: String::new(),
     };
     let eb = b.and_then(|i| evals.get(i).copied().flatten().map(|e| (i, e)));
@@ -228,6 +229,34 @@ pub(crate) fn rejudge(b: &mut Balance, opts: &AuditOptions) {
     set_verdict(b, opts);
 }
 
+/// The sentence of a fill found short with its vehicle's other fills.
+fn with_vehicle_sentence(
+    b: &Balance,
+    e: &crate::with_vehicle::VehicleEvidence,
+    opts: &AuditOptions,
+) -> String {
+    let own = match (e.own_shortfall_percent, e.own_u_percent) {
+        (Some(x), Some(u)) => format!(
+            "this fill's own balance puts it {x:.2} % ± {u:.2} % short against its tank's level, too little to judge alone"
+        ),
+        _ => "no readings bracket this fill closely enough to judge it alone".to_owned(),
+    };
+    format!(
+        "Short with its vehicle's other fills: billed {} kg; {own}, but {} other fills of vehicle {} show its deliveries {:.2} % ± {:.2} % short (spread between fills {:.2} %), and together they put this fill {:.2} % ± {:.2} % short, about {} kg, beyond k = {} standard uncertainties and {:.1} % of the ticket.",
+        fmt_kg(b.billed_kg),
+        e.fills,
+        b.vehicle,
+        e.vehicle_shortfall_percent,
+        e.vehicle_u_percent,
+        e.spread_percent,
+        e.shortfall_percent,
+        e.shortfall_u_percent,
+        fmt_kg(e.shortfall_percent / 100.0 * b.billed_kg),
+        b.coverage_factor,
+        100.0 * opts.materiality_fraction
+    )
+}
+
 /// Decide the verdict and write the explanation (also used when a drift note is added).
 pub(crate) fn set_verdict(b: &mut Balance, opts: &AuditOptions) {
     let k = b.coverage_factor;
@@ -320,6 +349,13 @@ pub(crate) fn set_verdict(b: &mut Balance, opts: &AuditOptions) {
     };
     b.verdict = verdict;
     b.explanation = text;
+    if let Some(e) = b.with_vehicle
+        && matches!(b.verdict, Verdict::Consistent | Verdict::Inconclusive)
+        && e.shows_short(k, opts.materiality_fraction)
+    {
+        b.verdict = Verdict::Short;
+        b.explanation = with_vehicle_sentence(b, &e, opts);
+    }
     let followed = if b.gauge_scale.is_some() {
         "its scale at this fill is fitted from the fills around it"
     } else {

@@ -295,6 +295,9 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
         &kept_fit,
         opts,
     );
+    if opts.judge_with_vehicle {
+        crate::with_vehicle::apply(&mut tanks, &vehicles, opts);
+    }
 
     let mut fills = Vec::new();
     let mut findings = Vec::new();

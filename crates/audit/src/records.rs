@@ -112,6 +112,10 @@ pub struct Balance {
     pub gauge_scale: Option<GaugeScale>,
     /// Part of sigma from that scale's uncertainty, kg.
     pub sigma_gauge_scale_kg: f64,
+    /// When the fill's vehicle was found biased and its other fills, with this balance, show this
+    /// fill short where the balance alone could not: what that rests on (see `with_vehicle`).
+    /// The residual, sigma and limit above stay the balance's own.
+    pub with_vehicle: Option<crate::with_vehicle::VehicleEvidence>,
     /// One sentence with the numbers, to hand to a carrier.
     pub explanation: String,
 }

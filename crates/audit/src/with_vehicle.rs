@@ -1,0 +1,207 @@
+//! A fill of a biased vehicle judged with the vehicle's other fills.
+//!
+//! A single balance from routine readings a day either side of a fill carries about 1 % of the
+//! ticket in standard uncertainty (mostly the customer's use in between), so by itself it cannot
+//! show a meter that over-registers by 1.5 %. When the vehicle test has found the vehicle biased,
+//! its other fills are evidence about this one: every delivery through a meter that over-registers
+//! was short by about that much. The fill's shortfall θ is estimated in a normal random-effects
+//! model of the vehicle's fills (DerSimonian and Laird, "Meta-analysis in clinical trials",
+//! Controlled Clinical Trials 7, 1986, for the between-fill variance τ²; the estimate of one unit
+//! is the empirical-Bayes posterior, Morris, "Parametric empirical Bayes inference: theory and
+//! applications", JASA 78, 1983):
+//!
+//! - each compared fill j gives x_j, its (gained + drawn) / billed less its tank's level from the
+//!   other vehicles' fills, with standard uncertainty u_j (the vehicle test's points);
+//! - τ² = max(0, (Q − (n − 1)) / (Σw − Σw²/Σw)), w_j = 1/u_j², Q the weighted sum of squares about
+//!   the weighted mean: the spread of the vehicle's shortfalls beyond the stated uncertainties. A
+//!   meter that is off by the same on every fill has τ ≈ 0; a vehicle short on only some fills has a
+//!   large τ, so its honest fills are not pulled toward its mean;
+//! - the prior of this fill is the vehicle's mean of its *other* fills (weights 1/(u_j² + τ²)), with
+//!   variance τ² + that mean's own variance; the fill's own point, when it has one, updates it.
+//!
+//! The combined estimate is used only to find a short the balance alone could not show, and only
+//! for a vehicle the fleet test found biased: it never clears a fill its own balance found short or
+//! in excess, and it never touches an honest vehicle's fills (whose one-off short must stand on its
+//! own balance). The fill's own residual, uncertainty and limit stay as they were, and its
+//! explanation says what the verdict rests on.
+
+use serde::Serialize;
+
+use crate::AuditOptions;
+use crate::Verdict;
+use crate::balance::set_verdict;
+use crate::records::TankAudit;
+use crate::vehicles::{VehicleFinding, VehicleStatus};
+
+/// Fewest other compared fills of the vehicle for its evidence to be used (common practice, no
+/// source: fewer leave τ² undetermined).
+const MIN_OTHER_FILLS: usize = 5;
+
+/// What a fill's verdict drew from its vehicle's other fills.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct VehicleEvidence {
+    /// The vehicle's shortfall from its other compared fills, % of the ticket (positive: short).
+    pub vehicle_shortfall_percent: f64,
+    /// Its standard uncertainty, %.
+    pub vehicle_u_percent: f64,
+    /// The spread of the vehicle's fills beyond their stated uncertainties (τ), %.
+    pub spread_percent: f64,
+    /// The other fills it was estimated from.
+    pub fills: usize,
+    /// This fill's own shortfall against its tank's level, % (None: the fill has no balance).
+    pub own_shortfall_percent: Option<f64>,
+    /// Its standard uncertainty, %.
+    pub own_u_percent: Option<f64>,
+    /// The combined estimate of this fill's shortfall, %.
+    pub shortfall_percent: f64,
+    /// Its standard uncertainty, %.
+    pub shortfall_u_percent: f64,
+}
+
+impl VehicleEvidence {
+    /// Whether the combined estimate shows the fill short: beyond k standard uncertainties and
+    /// beyond the materiality threshold.
+    pub fn shows_short(&self, k: f64, materiality_fraction: f64) -> bool {
+        self.shortfall_percent > k * self.shortfall_u_percent
+            && self.shortfall_percent > 100.0 * materiality_fraction
+    }
+}
+
+/// DerSimonian–Laird τ² of points (x, u).
+fn between_variance(points: &[(f64, f64)]) -> f64 {
+    let n = points.len();
+    if n < 2 {
+        return 0.0;
+    }
+    let w: Vec<f64> = points.iter().map(|p| 1.0 / p.1.powi(2)).collect();
+    let sw: f64 = w.iter().sum();
+    let sw2: f64 = w.iter().map(|w| w * w).sum();
+    let mean = points.iter().zip(&w).map(|(p, w)| w * p.0).sum::<f64>() / sw;
+    let q: f64 = points
+        .iter()
+        .zip(&w)
+        .map(|(p, w)| w * (p.0 - mean).powi(2))
+        .sum();
+    let c = sw - sw2 / sw;
+    if c <= 0.0 {
+        return 0.0;
+    }
+    ((q - (n as f64 - 1.0)) / c).max(0.0)
+}
+
+/// The evidence for one fill: `others` are the vehicle's other compared fills as shortfalls (x, u),
+/// fractions; `own` this fill's, when it has a balance.
+fn evidence(others: &[(f64, f64)], tau2: f64, own: Option<(f64, f64)>) -> Option<VehicleEvidence> {
+    if others.len() < MIN_OTHER_FILLS {
+        return None;
+    }
+    let w: Vec<f64> = others.iter().map(|p| 1.0 / (p.1.powi(2) + tau2)).collect();
+    let sw: f64 = w.iter().sum();
+    let mean = others.iter().zip(&w).map(|(p, w)| w * p.0).sum::<f64>() / sw;
+    let prior_var = tau2 + 1.0 / sw;
+    let (m, var) = match own {
+        Some((y, u)) if u > 0.0 => {
+            let (a, b) = (1.0 / prior_var, 1.0 / (u * u));
+            ((a * mean + b * y) / (a + b), 1.0 / (a + b))
+        }
+        _ => (mean, prior_var),
+    };
+    Some(VehicleEvidence {
+        vehicle_shortfall_percent: 100.0 * mean,
+        vehicle_u_percent: 100.0 * sw.recip().sqrt(),
+        spread_percent: 100.0 * tau2.sqrt(),
+        fills: others.len(),
+        own_shortfall_percent: own.map(|o| 100.0 * o.0),
+        own_u_percent: own.map(|o| 100.0 * o.1),
+        shortfall_percent: 100.0 * m,
+        shortfall_u_percent: 100.0 * var.sqrt(),
+    })
+}
+
+/// Judge the fills of every biased vehicle with its other fills; a fill whose combined estimate
+/// shows it short, and whose own balance did not, becomes short with the reason in its sentence.
+pub(crate) fn apply(tanks: &mut [TankAudit], vehicles: &[VehicleFinding], opts: &AuditOptions) {
+    for v in vehicles
+        .iter()
+        .filter(|v| v.status == VehicleStatus::Biased)
+    {
+        // the vehicle test's points, as shortfalls
+        let points: Vec<(&str, f64, f64)> = v
+            .adjusted
+            .iter()
+            .map(|a| {
+                (
+                    a.ticket.as_str(),
+                    -a.percent / 100.0,
+                    (a.u_percent / 100.0).max(1e-4),
+                )
+            })
+            .collect();
+        let all: Vec<(f64, f64)> = points.iter().map(|p| (p.1, p.2)).collect();
+        let tau2 = between_variance(&all);
+        for b in tanks
+            .iter_mut()
+            .flat_map(|t| t.balances.iter_mut())
+            .filter(|b| b.vehicle == v.vehicle && b.billed_kg > 0.0)
+        {
+            if matches!(b.verdict, Verdict::Short | Verdict::Excess) {
+                continue;
+            }
+            let others: Vec<(f64, f64)> = points
+                .iter()
+                .filter(|p| p.0 != b.ticket)
+                .map(|p| (p.1, p.2))
+                .collect();
+            // the fill's own point: the vehicle test's when it was compared, else its own balance
+            // (a fill at a tank no other vehicle fills, or whose gauge was found at fault and
+            // judged against its fitted scale)
+            let own = points
+                .iter()
+                .find(|p| p.0 == b.ticket)
+                .map(|p| (p.1, p.2))
+                .or_else(|| {
+                    (b.before.is_some() && b.after.is_some() && b.sigma_kg > 0.0)
+                        .then(|| (b.residual_kg / b.billed_kg, b.sigma_kg / b.billed_kg))
+                });
+            let Some(e) = evidence(&others, tau2, own) else {
+                continue;
+            };
+            if e.shows_short(b.coverage_factor, opts.materiality_fraction) {
+                b.with_vehicle = Some(e);
+                set_verdict(b, opts);
+            }
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// τ² of three points with equal u = 1 at 0, 1, 2: Q = 2, n − 1 = 2, so τ² = 0; at 0, 3, 6:
+    /// Q = 18, c = 3 − 3/3 = 2, τ² = (18 − 2) / 2 = 8 (the DerSimonian–Laird formula worked by hand).
+    #[test]
+    fn between_variance_by_hand() {
+        assert!(between_variance(&[(0.0, 1.0), (1.0, 1.0), (2.0, 1.0)]).abs() < 1e-12);
+        let t = between_variance(&[(0.0, 1.0), (3.0, 1.0), (6.0, 1.0)]);
+        assert!((t - 8.0).abs() < 1e-12, "{t}");
+    }
+
+    /// The normal-normal posterior worked by hand: prior mean 1.5 % with τ = 0 and five others at
+    /// u = 0.5 % (mean's variance 0.05 %²), own point 0.5 ± 1 %: weights 20 and 1, mean
+    /// (20·1.5 + 0.5) / 21 = 1.452 %, u = 1/√21 = 0.218 %.
+    #[test]
+    fn posterior_by_hand() {
+        let others = vec![(0.015, 0.005); 5];
+        let e = evidence(&others, 0.0, Some((0.005, 0.01))).expect("five others");
+        assert!((e.shortfall_percent - 30.5 / 21.0).abs() < 1e-9, "{e:?}");
+        assert!((e.shortfall_u_percent - (1.0 / 21.0_f64).sqrt()).abs() < 1e-9);
+        assert!(e.shows_short(2.0, 0.01));
+        // a spread of 3 % between the vehicle's fills: the own point dominates and shows nothing
+        let e = evidence(&others, 0.03_f64.powi(2), Some((0.0, 0.01))).expect("five others");
+        assert!(e.shortfall_percent < 0.2, "{e:?}");
+        assert!(!e.shows_short(2.0, 0.01));
+        // too few others: no evidence
+        assert!(evidence(&others[..4], 0.0, None).is_none());
+    }
+}
