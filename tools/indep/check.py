@@ -10,8 +10,8 @@ Profiles:
            (each also among fills bracketed only by routine readings), both gauge faults found and the
            step dated within 7 days, both short vehicles biased and no honest one, the unlogged fill and
            the leak found with at most two other findings, no healthy gauge flagged.
-  floor    what the audit has met on every fleet measured so far: <= 5 % of honest fills flagged,
-           <= 8 % inconclusive, k = 2 covering 90-99.5 % of honest fills, the drifting gauge, the
+  floor    what the audit has met on every fleet measured so far: >= 90 % of the fills of the
+           always-short vehicle found, <= 3 % of honest fills flagged, <= 6 % inconclusive, k = 2 covering 90-99.5 % of honest fills, the drifting gauge, the
            always-short vehicle and the unlogged fill found, no healthy gauge flagged, at most two other
            findings (same fleet settings as strict).
   current  >= 90 % of the fills of a vehicle 2.5 % short on every fill found, <= 3 % of honest fills
@@ -283,8 +283,11 @@ def score(truth: dict, audit: dict, profile: str) -> dict:
         add("leak found", fd["leak_matched"] > 0, f"{fd['leak_matched']} finding(s) at {fd['leak_tank']}")
         add("at most 2 other findings", fd["other"] <= 2, str(fd["other"]))
     elif profile == "floor":
-        # What the audit has met on every independent fleet measured so far (six seeds); CI gates on it
-        # at a fixed seed so a regression cannot land while the strict figures are still out of reach.
+        # What the audit has met on every independent fleet measured so far (twelve seeds); CI gates on
+        # it at a fixed seed so a regression cannot land while the strict figures are still out of reach.
+        sa = [x for x in per_vehicle.values() if x["role"] == "short_all"]
+        sa_found, sa_total = sum(x["found"] for x in sa), sum(x["total"] for x in sa)
+        add("fills of the always-short vehicle found >= 90 %", ge(sa_found, sa_total, 90), fmt_pct(sa_found, sa_total))
         add("honest fills flagged <= 3 %", le(a["honest_flagged"], a["honest_total"], 3), fmt_pct(a["honest_flagged"], a["honest_total"]))
         add("fills inconclusive <= 6 %", le(a["inconclusive"], a["fills"], 6), fmt_pct(a["inconclusive"], a["fills"]))
         add_coverage_and_drift()
