@@ -68,6 +68,10 @@ pub struct AuditArgs {
     /// other fills
     #[arg(long)]
     pub no_gauge_scale: bool,
+    /// Judge every fill on its own balance only: a fill of a vehicle found biased is not also
+    /// judged with that vehicle's other fills
+    #[arg(long)]
+    pub own_balance_only: bool,
     /// Worker threads (default: the machine's cores)
     #[arg(long, value_name = "N")]
     pub threads: Option<usize>,
@@ -91,6 +95,7 @@ fn options(a: &AuditArgs) -> AuditOptions {
         thermal_history: !a.no_thermal_history,
         fit_ner: !a.no_ner_fit,
         calibrate_gauges: !a.no_gauge_scale,
+        judge_with_vehicle: !a.own_balance_only,
         coverage_factor: a.coverage_factor,
         materiality_fraction: a.materiality_percent / 100.0,
         meter_repeatability_percent: a.meter_repeatability_percent,

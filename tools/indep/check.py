@@ -421,6 +421,18 @@ def main(argv=None) -> int:
     with open(os.path.join(fdir, "truth.json")) as fh:
         truth = json.load(fh)
     fig = score(truth, audit, a.profile)
+    # the same fleet judged on each fill's own balance only (no vehicle's other fills): what the
+    # vehicle's evidence adds, printed beside the figures
+    own_path = os.path.join(work, "audit_own.json")
+    p = run([a.bin, "audit", "--db", db, "--format", "json", "--own-balance-only", *a.audit_arg], own_path)
+    if p.returncode != 0:
+        print(f"ERROR: audit --own-balance-only failed (workdir {work})")
+        print(p.stderr[-4000:])
+        return 2
+    with open(own_path) as fh:
+        own = score(truth, json.load(fh), a.profile)
+    fig["own_balance_only"] = {k: own["all"][k] for k in ("short_found", "short_total", "honest_flagged",
+                                                          "honest_total")}
     fig["seed"] = cfg.seed
     fig["profile"] = a.profile
     fig["workdir"] = work
@@ -429,6 +441,10 @@ def main(argv=None) -> int:
     print(f"workdir {work}; generate {gen['seconds']:.1f} s, import {t_aud - t_imp:.1f} s, "
           f"audit {t_done - t_aud:.1f} s")
     print_report(fig, truth, a.profile)
+    o = fig["own_balance_only"]
+    print(f"judged on their own balances only (audit --own-balance-only): short fills found "
+          f"{fmt_pct(o['short_found'], o['short_total'])}, honest fills flagged "
+          f"{fmt_pct(o['honest_flagged'], o['honest_total'])}")
     if a.json_out:
         with open(a.json_out, "w") as fh:
             json.dump(fig, fh, indent=1)
