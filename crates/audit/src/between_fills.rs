@@ -96,10 +96,13 @@ pub(crate) fn findings(
             }
             let part = &judged[first..=last];
             let (from, to) = (part[0].0, part[part.len() - 1].1);
-            // the use the run's own losses pulled into the model: expected again without them
+            // the use the run's own losses pulled into the model: expected again without them,
+            // from the intervals near enough to the run to shape its profiles
+            let near = crate::use_model::WINDOW_MS + crate::use_model::ANCHOR_STEP_MS;
             let without: Vec<Observed> = intervals
                 .iter()
                 .filter(|iv| iv.clean && (iv.to_ms <= from || iv.from_ms >= to))
+                .filter(|iv| iv.to_ms >= from - near && iv.from_ms <= to + near)
                 .map(|iv| Observed {
                     from_ms: iv.from_ms,
                     to_ms: iv.to_ms,

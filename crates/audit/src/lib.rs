@@ -264,9 +264,10 @@ pub struct AuditOptions {
     /// Decision interval h of that CUSUM, on excesses scaled for their autocorrelation (5: with
     /// k = 0.5, Montgomery §9.1 gives an in-control average run length of about 465 intervals and
     /// about 10 for a shift of one standard deviation; figures from memory of his table. The
-    /// alarms of a run that stays in control are held back by the size gates below. Measured on
-    /// independent fleets: h = 8 without the scaling found the ten-day leak on 4 of 11, h = 5
-    /// with it on more; see the README for the current figures).
+    /// size gates below hold back most alarms of a run in control. Measured, the same twelve
+    /// independent fleets and the same 10,000-tank simulated fleet with no leak planted: h = 5 finds
+    /// the ten-day leak on 6 of 12 with 1,838 loss findings on the 10,000 tanks; h = 6 on 4 of 12
+    /// with 748; h = 8 on fewer with 96; the code before the scaling, h = 8, on 5 of 12 with 1,334).
     pub leak_cusum_h: f64,
     /// Smallest loss beyond use reported, fraction of a full tank's mass (0.02) ...
     pub leak_min_fraction: f64,

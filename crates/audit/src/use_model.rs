@@ -31,9 +31,9 @@ const DAY_END_H: i64 = 18;
 const HOUR_MS: i64 = 3_600_000;
 const DAY_MS: i64 = 24 * HOUR_MS;
 /// Anchors of the fitted profiles are this far apart.
-const ANCHOR_STEP_MS: i64 = 14 * DAY_MS;
+pub(crate) const ANCHOR_STEP_MS: i64 = 14 * DAY_MS;
 /// A profile uses the intervals within this distance of its anchor (all of them when too few).
-const WINDOW_MS: i64 = 45 * DAY_MS;
+pub(crate) const WINDOW_MS: i64 = 45 * DAY_MS;
 /// Intervals longer than this say little about the weekly pattern and are left out of the fit.
 const LONGEST_INTERVAL_MS: i64 = 15 * DAY_MS;
 /// Huber's tuning constant for the robust reweighting.
@@ -140,15 +140,21 @@ impl UseModel {
         let (Some(first), Some(last)) = (usable.first(), usable.last()) else {
             return UseModel::default();
         };
+        // each interval's hours in the blocks, once (an interval falls in several anchors' windows)
+        let all_rows: Vec<Row> = usable.iter().map(row).collect();
         let mut anchors = Vec::new();
+        let mut near: Vec<Row> = Vec::with_capacity(all_rows.len());
         let mut t = first.from_ms;
         loop {
-            let near: Vec<Observed> = usable
-                .iter()
-                .copied()
-                .filter(|o| o.to_ms >= t - WINDOW_MS && o.from_ms <= t + WINDOW_MS)
-                .collect();
-            let data = if near.len() >= 8 { &near } else { &usable };
+            near.clear();
+            near.extend(
+                usable
+                    .iter()
+                    .zip(&all_rows)
+                    .filter(|(o, _)| o.to_ms >= t - WINDOW_MS && o.from_ms <= t + WINDOW_MS)
+                    .map(|(_, r)| *r),
+            );
+            let data = if near.len() >= 8 { &near } else { &all_rows };
             if let Some(f) = fit_one(data, scale_kg) {
                 anchors.push((t, f));
             }
@@ -237,18 +243,19 @@ fn solve_spd(
 }
 
 /// One profile from `data`.
-fn fit_one(data: &[Observed], scale_kg: f64) -> Option<UseFit> {
-    if data.len() < 2 {
+/// One interval for the fit: its hours in each block, the mass lost, its hours.
+type Row = ([f64; BLOCKS], f64, f64);
+
+fn row(o: &Observed) -> Row {
+    let x = block_hours(o.from_ms, o.to_ms);
+    let hours: f64 = x.iter().sum();
+    (x, o.lost_kg, hours)
+}
+
+fn fit_one(rows: &[Row], scale_kg: f64) -> Option<UseFit> {
+    if rows.len() < 2 {
         return None;
     }
-    let rows: Vec<([f64; BLOCKS], f64, f64)> = data
-        .iter()
-        .map(|o| {
-            let x = block_hours(o.from_ms, o.to_ms);
-            let hours: f64 = x.iter().sum();
-            (x, o.lost_kg, hours)
-        })
-        .collect();
     let rates: Vec<f64> = rows.iter().map(|(_, y, h)| y / h).collect();
     let centre = median(&rates)?.max(0.0);
     // the prior: each block's rate within about 60 % of the tank's median rate (or 1 kg/h when the
