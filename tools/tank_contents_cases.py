@@ -7,6 +7,9 @@ the closed forms the engine uses. Each case lists the CLI arguments of `cryoledg
 as strings with units, the same inputs converted to SI, and the expected outputs.
 
 Usage:  python tools/tank_contents_cases.py [--out crates/tank/tests/data/contents_cases.json]
+        python tools/tank_contents_cases.py --check crates/tank/tests/data/contents_cases.json
+        (regenerate and compare: the same cases and text, every number within 1e-12 relative; the
+        last bits differ between CPUs, whose libm picks FMA or plain code for exp and log)
 Needs:  pip install CoolProp==8.0.0 numpy
 """
 
@@ -221,11 +224,37 @@ def make_case(rng, i):
     return {"name": f"case-{i:03}-{fluid_id}-{orientation}-{head}-{state}", "args": args, "si": si, "expected": expected}
 
 
+CHECK_REL = 1e-12
+
+
+def differences(a, b, path):
+    """(path, relative difference or None when not both numbers, a, b) of every leaf that differs."""
+    if isinstance(a, dict) and isinstance(b, dict):
+        out = []
+        for k in sorted(set(a) | set(b)):
+            if k not in a or k not in b:
+                out.append((f"{path}/{k}", None, a.get(k), b.get(k)))
+            elif k != "source":  # names the numpy build; the versions are pinned in requirements.txt
+                out += differences(a[k], b[k], f"{path}/{k}")
+        return out
+    if isinstance(a, list) and isinstance(b, list):
+        if len(a) != len(b):
+            return [(path, None, len(a), len(b))]
+        return [d for i, (x, y) in enumerate(zip(a, b)) for d in differences(x, y, f"{path}[{i}]")]
+    if isinstance(a, float) and isinstance(b, float):
+        if a == b:
+            return []
+        return [(path, abs(a - b) / max(abs(a), abs(b)), a, b)]
+    return [] if a == b and type(a) is type(b) else [(path, None, a, b)]
+
+
 def main():
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--out", default=str(Path(__file__).resolve().parent.parent / "crates/tank/tests/data/contents_cases.json"))
     ap.add_argument("--count", type=int, default=80)
     ap.add_argument("--seed", type=int, default=20240611)
+    ap.add_argument("--check", default=None,
+                    help="compare the regenerated cases with this file instead of writing one")
     opts = ap.parse_args()
     rng = random.Random(opts.seed)
     cases = [make_case(rng, i) for i in range(opts.count)]
@@ -237,6 +266,17 @@ def main():
                  "tolerance for the engine: 1e-4 relative on every expected field",
         "cases": cases,
     }
+    if opts.check:
+        committed = json.loads(Path(opts.check).read_text())
+        fresh = json.loads(json.dumps(doc))
+        diffs = differences(committed, fresh, "")
+        worst = max((d[1] for d in diffs if d[1] is not None), default=0.0)
+        hard = [d for d in diffs if d[1] is None or d[1] > CHECK_REL]
+        for path, rel, a, b in hard[:20]:
+            print(f"differs at {path}: committed {a!r}, regenerated {b!r}")
+        print(f"{len(cases)} cases regenerated; largest relative difference {worst:.2e} "
+              f"(allowed {CHECK_REL:.0e}); {len(hard)} beyond")
+        raise SystemExit(1 if hard else 0)
     Path(opts.out).parent.mkdir(parents=True, exist_ok=True)
     Path(opts.out).write_text(json.dumps(doc, indent=1) + "\n")
     print(f"wrote {len(cases)} cases to {opts.out}")
