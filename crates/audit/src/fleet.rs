@@ -285,7 +285,7 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
     }
 
     // vehicle bias, on the final verdicts
-    let vehicles = crate::vehicles::test(
+    let mut vehicles = crate::vehicles::test(
         &vehicle_names,
         &vehicle_index,
         &tanks,
@@ -296,7 +296,7 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
         opts,
     );
     if opts.judge_with_vehicle {
-        crate::with_vehicle::apply(&mut tanks, &vehicles, opts);
+        crate::with_vehicle::apply(&mut tanks, &mut vehicles, opts);
     }
 
     let mut fills = Vec::new();

@@ -66,8 +66,12 @@ pub struct VehicleFinding {
     pub ci_beyond_legal_tolerance: bool,
     /// Fills by verdict.
     pub verdicts: BTreeMap<Verdict, usize>,
-    /// Fills judged short, of those with a verdict other than inconclusive.
+    /// Fills judged short on their own balances, of those with a verdict other than inconclusive
+    /// (the count the short-count test is run on).
     pub short_fills: usize,
+    /// Further fills judged short with the vehicle's other fills (a vehicle found biased; see
+    /// [`crate::VehicleEvidence`]).
+    pub short_with_vehicle: usize,
     /// The share of short verdicts an honest vehicle would draw (the fleet's median vehicle, at
     /// least the one-sided tail of the coverage interval).
     pub short_rate_expected: f64,
@@ -218,6 +222,7 @@ pub(crate) fn test(
             ci_beyond_legal_tolerance: false,
             verdicts,
             short_fills: short,
+            short_with_vehicle: 0,
             short_rate_expected: expected,
             short_count_p_value: None,
             test: VEHICLE_TEST,

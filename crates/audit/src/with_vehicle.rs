@@ -120,9 +120,9 @@ fn evidence(others: &[(f64, f64)], tau2: f64, own: Option<(f64, f64)>) -> Option
 
 /// Judge the fills of every biased vehicle with its other fills; a fill whose combined estimate
 /// shows it short, and whose own balance did not, becomes short with the reason in its sentence.
-pub(crate) fn apply(tanks: &mut [TankAudit], vehicles: &[VehicleFinding], opts: &AuditOptions) {
+pub(crate) fn apply(tanks: &mut [TankAudit], vehicles: &mut [VehicleFinding], opts: &AuditOptions) {
     for v in vehicles
-        .iter()
+        .iter_mut()
         .filter(|v| v.status == VehicleStatus::Biased)
     {
         // the vehicle test's points, as shortfalls
@@ -169,6 +169,7 @@ pub(crate) fn apply(tanks: &mut [TankAudit], vehicles: &[VehicleFinding], opts: 
             if e.shows_short(b.coverage_factor, opts.materiality_fraction) {
                 b.with_vehicle = Some(e);
                 set_verdict(b, opts);
+                v.short_with_vehicle += usize::from(b.verdict == Verdict::Short);
             }
         }
     }

@@ -168,6 +168,22 @@ fn scenario(short: f64) {
                 ));
             }
         }
+        // a vehicle's counts are its fills' verdicts (an identity, common practice, no source):
+        // short on their own balances plus short with the vehicle's other fills is every short
+        // verdict of a judged fill, and the second is exactly the fills that carry that evidence
+        for v in &audited.vehicles {
+            let mine = || audited.fills.iter().filter(|b| b.vehicle == v.vehicle);
+            let short = mine().filter(|b| b.verdict == Verdict::Short).count();
+            let pooled = mine()
+                .filter(|b| b.verdict == Verdict::Short && b.with_vehicle.is_some())
+                .count();
+            if pooled != v.short_with_vehicle || v.short_fills + v.short_with_vehicle != short {
+                failures.push(format!(
+                    "seed {seed}: vehicle {}: {} + {} short counted, {short} short verdicts ({pooled} with the vehicle)",
+                    v.vehicle, v.short_fills, v.short_with_vehicle
+                ));
+            }
+        }
         print(
             &format!("seed {seed}, {:.1} % short, thermal history", 100.0 * short),
             &f,

@@ -97,8 +97,12 @@ pub(crate) fn vehicle_section(
                     Cell::on("p_adjusted", Figure::Probability, v.p_adjusted),
                 ),
                 (
-                    "Fills judged short",
+                    "Fills judged short on their own balances",
                     Cell::Plain(Figure::Count, v.short_fills as f64),
+                ),
+                (
+                    "Further fills judged short with the vehicle's other fills",
+                    Cell::Plain(Figure::Count, v.short_with_vehicle as f64),
                 ),
                 (
                     "Short fills expected of an honest vehicle, %",

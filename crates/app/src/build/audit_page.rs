@@ -206,6 +206,7 @@ pub fn audit_view(
                 _ => None,
             },
             short_fills: v.short_fills,
+            short_with_vehicle: v.short_with_vehicle,
             p_adjusted: v.p_adjusted,
             tolerance_percent: v.legal_tolerance_percent,
             points: v

@@ -212,8 +212,10 @@ pub struct VehicleLine {
     pub fills: usize,
     /// Bias and its 95 % interval, %.
     pub bias: Option<(f64, f64, f64)>,
-    /// Fills judged short.
+    /// Fills judged short on their own balances.
     pub short_fills: usize,
+    /// Further fills judged short with the vehicle's other fills.
+    pub short_with_vehicle: usize,
     /// p-value after Holm's correction.
     pub p_adjusted: Option<f64>,
     /// The legal tolerance, %.

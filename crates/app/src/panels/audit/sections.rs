@@ -59,7 +59,14 @@ pub(super) fn vehicles_ui(ui: &mut Ui, a: &AuditView, out: &mut Vec<Action>) {
                     let ink = if v.flagged { style::ERROR } else { style::INK };
                     ui.label(RichText::new(&v.status).color(ink).strong());
                     ui.label(v.fills.to_string());
-                    ui.label(v.short_fills.to_string());
+                    if v.short_with_vehicle > 0 {
+                        ui.label(format!("{} + {}", v.short_fills, v.short_with_vehicle))
+                            .on_hover_text(
+                                "on their own balances + with the vehicle's other fills",
+                            );
+                    } else {
+                        ui.label(v.short_fills.to_string());
+                    }
                     ui.label(match v.bias {
                         Some((b, l, h)) => format!(
                             "{} [{}, {}]",
