@@ -94,6 +94,16 @@ fn balance_row(
                 )
             })
             .unwrap_or_else(|| "as the gauge reads (too few other fills to fit its scale)".into()),
+        with_vehicle: b.with_vehicle.map(|e| {
+            format!(
+                "short with the vehicle's other fills: {} other fills show its deliveries {:.2} % ± {:.2} % short; with this balance, this fill {:.2} % ± {:.2} % short",
+                e.fills,
+                e.vehicle_shortfall_percent,
+                e.vehicle_u_percent,
+                e.shortfall_percent,
+                e.shortfall_u_percent
+            )
+        }),
         explanation: b.explanation.clone(),
     }
 }
@@ -448,6 +458,7 @@ mod tests {
             before: None,
             after: None,
             scale: String::new(),
+            with_vehicle: None,
             explanation: String::new(),
         }
     }

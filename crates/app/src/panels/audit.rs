@@ -471,6 +471,9 @@ fn detail_ui(ui: &mut Ui, view: &ViewState, r: &BalanceRow, out: &mut Vec<Action
         line(ui, "standard uncertainty σ", r.sigma_kg);
     });
     ui.label(RichText::new(format!("gauge scale: {}", r.scale)).small());
+    if let Some(w) = &r.with_vehicle {
+        ui.label(RichText::new(w).small().color(style::ERROR));
+    }
     residual_chart(ui, r, 2.0, mass, unit);
     ui.add_space(6.0);
     ui.label(RichText::new("Uncertainty budget (standard uncertainties)").strong());

@@ -193,6 +193,8 @@ pub struct BalanceRow {
     pub after: Option<BracketView>,
     /// The gauge's scale the gain was read with, as text.
     pub scale: String,
+    /// When the verdict also rests on the vehicle's other fills: what they show, as text.
+    pub with_vehicle: Option<String>,
     /// The sentence to hand to a carrier.
     pub explanation: String,
 }
