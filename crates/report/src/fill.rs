@@ -148,6 +148,34 @@ fn balance_sections(
             Cell::n("usage_kg_per_day", Figure::MassRate, b.usage_kg_per_day),
         ),
     ]);
+    if let Some(e) = b.with_vehicle {
+        rows.extend([
+            (
+                "Short with the vehicle's other fills: their shortfall, %",
+                Cell::n(
+                    "vehicle_shortfall_percent",
+                    Figure::Percent,
+                    e.vehicle_shortfall_percent,
+                ),
+            ),
+            (
+                "Other fills of the vehicle compared",
+                Cell::Plain(Figure::Count, e.fills as f64),
+            ),
+            (
+                "This fill's shortfall with them, %",
+                Cell::n("shortfall_percent", Figure::Percent, e.shortfall_percent),
+            ),
+            (
+                "Its standard uncertainty, %",
+                Cell::n(
+                    "shortfall_u_percent",
+                    Figure::Percent,
+                    e.shortfall_u_percent,
+                ),
+            ),
+        ]);
+    }
     doc.key_values(&rows);
     let residual_shown = b.residual_kg;
     doc.figure(
