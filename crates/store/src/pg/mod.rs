@@ -6,6 +6,7 @@
 
 mod connect;
 mod import;
+mod migrate;
 mod users;
 mod walk;
 mod write;
@@ -26,6 +27,8 @@ use crate::sqlite::export;
 use crate::sqlite::rows::*;
 
 pub use connect::describe_target;
+pub use migrate::PG_MIGRATION_FILES;
+use migrate::migrate_locked;
 pub use users::{AccessRole, LedgerUser};
 use walk::{current, dump};
 pub(crate) use write::lock_chain;
@@ -33,30 +36,6 @@ use write::{
     PgChain, chain_site, insert_tank, not_found, params, record_revision, site_for, site_id_for,
     site_with, vehicle_ids, write_delivery, write_error, write_strapping,
 };
-
-/// The numbered SQL files of `migrations/postgres/`, applied in order.
-pub const PG_MIGRATION_FILES: &[(&str, &str)] = &[
-    (
-        "0001_initial.sql",
-        include_str!("../../../../migrations/postgres/0001_initial.sql"),
-    ),
-    (
-        "0002_chain.sql",
-        include_str!("../../../../migrations/postgres/0002_chain.sql"),
-    ),
-    (
-        "0003_site_time_zone.sql",
-        include_str!("../../../../migrations/postgres/0003_site_time_zone.sql"),
-    ),
-    (
-        "0004_revision.sql",
-        include_str!("../../../../migrations/postgres/0004_revision.sql"),
-    ),
-    (
-        "0005_access.sql",
-        include_str!("../../../../migrations/postgres/0005_access.sql"),
-    ),
-];
 
 /// The advisory lock every write transaction takes before it touches a row ("cryoledg").
 const CHAIN_LOCK: i64 = 0x6372_796f_6c65_6467;
@@ -165,47 +144,6 @@ impl PgStore {
         }
         Ok(Some(t))
     }
-}
-
-fn migrate_locked(c: &mut Client) -> Result<(), StoreError> {
-    // asked first, so that a user who may not create tables (an operator) can open a ledger that is
-    // up to date; the version is no secret
-    let exists: bool = c
-        .query_one("SELECT to_regclass('cryoledger_schema') IS NOT NULL", &[])?
-        .try_get(0)?;
-    if !exists {
-        c.batch_execute(
-            "CREATE TABLE cryoledger_schema (version BIGINT PRIMARY KEY, applied_at TEXT NOT NULL); \
-             GRANT SELECT ON cryoledger_schema TO PUBLIC",
-        )?;
-    }
-    let found: i64 = c
-        .query_one(
-            "SELECT COALESCE(MAX(version), 0) FROM cryoledger_schema",
-            &[],
-        )?
-        .try_get(0)?;
-    let known = PG_MIGRATION_FILES.len() as i64;
-    if found > known {
-        return Err(StoreError::NewerSchema { found, known });
-    }
-    for (n, (_, sql)) in (1..).zip(PG_MIGRATION_FILES) {
-        if n <= found {
-            continue;
-        }
-        let mut tx = c.transaction()?;
-        tx.batch_execute(sql).map_err(|e| {
-            StoreError::Migration(crate::DriverError {
-                message: StoreError::from(e).to_string(),
-            })
-        })?;
-        tx.execute(
-            "INSERT INTO cryoledger_schema (version, applied_at) VALUES ($1, $2)",
-            &[&n, &now_text()],
-        )?;
-        tx.commit()?;
-    }
-    Ok(())
 }
 
 pub(super) const DELIVERY_SELECT: &str = "FROM deliveries d JOIN carriers c ON c.id = d.carrier_id \
