@@ -13,7 +13,8 @@
 //! - each compared fill j gives x_j, its (gained + drawn) / billed less its tank's level from the
 //!   other vehicles' fills, with standard uncertainty u_j (the vehicle test's points);
 //! - τ² = max(0, (Q − (n − 1)) / (Σw − Σw²/Σw)), w_j = 1/u_j², Q the weighted sum of squares about
-//!   the weighted mean: the spread of the vehicle's shortfalls beyond the stated uncertainties. A
+//!   the weighted mean, each term held within 2.5² (one fill at a tank with an unfound fault is not
+//!   the meter's spread): the spread of the vehicle's shortfalls beyond the stated uncertainties. A
 //!   meter that is off by the same on every fill has τ ≈ 0; a vehicle short on only some fills has a
 //!   large τ, so its honest fills are not pulled toward its mean;
 //! - the prior of this fill is the vehicle's mean of its *other* fills (weights 1/(u_j² + τ²)), with
@@ -36,6 +37,9 @@ use crate::vehicles::{VehicleFinding, VehicleStatus};
 /// Fewest other compared fills of the vehicle for its evidence to be used (common practice, no
 /// source: fewer leave τ² undetermined).
 const MIN_OTHER_FILLS: usize = 5;
+
+/// A fill's standardized residual counts toward the spread up to this many standard uncertainties.
+const CLIP_Z: f64 = 2.5;
 
 /// What a fill's verdict drew from its vehicle's other fills.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
@@ -77,10 +81,13 @@ fn between_variance(points: &[(f64, f64)]) -> f64 {
     let sw: f64 = w.iter().sum();
     let sw2: f64 = w.iter().map(|w| w * w).sum();
     let mean = points.iter().zip(&w).map(|(p, w)| w * p.0).sum::<f64>() / sw;
+    // each term's standardized residual held within ±CLIP_Z, so that a few fills at a tank with a
+    // fault nobody found (an undetected gauge step, a misfit use model) do not pass for a spread
+    // of the meter itself (a Huber-type bound on Q; common practice, no source)
     let q: f64 = points
         .iter()
         .zip(&w)
-        .map(|(p, w)| w * (p.0 - mean).powi(2))
+        .map(|(p, w)| (w * (p.0 - mean).powi(2)).min(CLIP_Z * CLIP_Z))
         .sum();
     let c = sw - sw2 / sw;
     if c <= 0.0 {
@@ -179,13 +186,16 @@ pub(crate) fn apply(tanks: &mut [TankAudit], vehicles: &mut [VehicleFinding], op
 mod tests {
     use super::*;
 
-    /// τ² of three points with equal u = 1 at 0, 1, 2: Q = 2, n − 1 = 2, so τ² = 0; at 0, 3, 6:
-    /// Q = 18, c = 3 − 3/3 = 2, τ² = (18 − 2) / 2 = 8 (the DerSimonian–Laird formula worked by hand).
+    /// τ² of three points with equal u = 1 at 0, 1, 2: Q = 2, n − 1 = 2, so τ² = 0; at 0, 2, 4:
+    /// Q = 4 + 0 + 4 = 8, c = 3 − 3/3 = 2, τ² = (8 − 2) / 2 = 3 (the DerSimonian–Laird formula
+    /// worked by hand); at 0, 3, 6 each outer term 9 is held at 6.25: Q = 12.5, τ² = 5.25.
     #[test]
     fn between_variance_by_hand() {
         assert!(between_variance(&[(0.0, 1.0), (1.0, 1.0), (2.0, 1.0)]).abs() < 1e-12);
+        let t = between_variance(&[(0.0, 1.0), (2.0, 1.0), (4.0, 1.0)]);
+        assert!((t - 3.0).abs() < 1e-12, "{t}");
         let t = between_variance(&[(0.0, 1.0), (3.0, 1.0), (6.0, 1.0)]);
-        assert!((t - 8.0).abs() < 1e-12, "{t}");
+        assert!((t - 5.25).abs() < 1e-12, "{t}");
     }
 
     /// The normal-normal posterior worked by hand: prior mean 1.5 % with τ = 0 and five others at
