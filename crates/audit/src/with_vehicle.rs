@@ -26,6 +26,8 @@
 //! own balance). The fill's own residual, uncertainty and limit stay as they were, and its
 //! explanation says what the verdict rests on.
 
+use std::collections::HashMap;
+
 use serde::Serialize;
 
 use crate::AuditOptions;
@@ -96,16 +98,45 @@ fn between_variance(points: &[(f64, f64)]) -> f64 {
     ((q - (n as f64 - 1.0)) / c).max(0.0)
 }
 
-/// The evidence for one fill: `others` are the vehicle's other compared fills as shortfalls (x, u),
-/// fractions; `own` this fill's, when it has a balance.
-fn evidence(others: &[(f64, f64)], tau2: f64, own: Option<(f64, f64)>) -> Option<VehicleEvidence> {
-    if others.len() < MIN_OTHER_FILLS {
+/// The weighted sums of a vehicle's fills as shortfalls (x, u), fractions, weights 1/(u² + τ²):
+/// (Σw, Σw·x, n). A fill's "others" are these less its own term.
+#[derive(Debug, Clone, Copy, Default)]
+struct Sums {
+    w: f64,
+    wx: f64,
+    n: usize,
+}
+
+impl Sums {
+    fn of(points: &[(f64, f64)], tau2: f64) -> Sums {
+        points
+            .iter()
+            .fold(Sums::default(), |s, p| s.plus(*p, tau2, 1.0))
+    }
+
+    /// These sums with `p` added (sign 1) or taken out (sign −1).
+    fn plus(self, p: (f64, f64), tau2: f64, sign: f64) -> Sums {
+        let w = 1.0 / (p.1.powi(2) + tau2);
+        Sums {
+            w: self.w + sign * w,
+            wx: self.wx + sign * w * p.0,
+            n: if sign > 0.0 {
+                self.n + 1
+            } else {
+                self.n.saturating_sub(1)
+            },
+        }
+    }
+}
+
+/// The evidence for one fill from the sums of the vehicle's *other* compared fills, and the fill's
+/// own point, when it has a balance.
+fn evidence(others: Sums, tau2: f64, own: Option<(f64, f64)>) -> Option<VehicleEvidence> {
+    if others.n < MIN_OTHER_FILLS || others.w <= 0.0 {
         return None;
     }
-    let w: Vec<f64> = others.iter().map(|p| 1.0 / (p.1.powi(2) + tau2)).collect();
-    let sw: f64 = w.iter().sum();
-    let mean = others.iter().zip(&w).map(|(p, w)| w * p.0).sum::<f64>() / sw;
-    let prior_var = tau2 + 1.0 / sw;
+    let mean = others.wx / others.w;
+    let prior_var = tau2 + 1.0 / others.w;
     let (m, var) = match own {
         Some((y, u)) if u > 0.0 => {
             let (a, b) = (1.0 / prior_var, 1.0 / (u * u));
@@ -115,9 +146,9 @@ fn evidence(others: &[(f64, f64)], tau2: f64, own: Option<(f64, f64)>) -> Option
     };
     Some(VehicleEvidence {
         vehicle_shortfall_percent: 100.0 * mean,
-        vehicle_u_percent: 100.0 * sw.recip().sqrt(),
+        vehicle_u_percent: 100.0 * others.w.recip().sqrt(),
         spread_percent: 100.0 * tau2.sqrt(),
-        fills: others.len(),
+        fills: others.n,
         own_shortfall_percent: own.map(|o| 100.0 * o.0),
         own_u_percent: own.map(|o| 100.0 * o.1),
         shortfall_percent: 100.0 * m,
@@ -146,6 +177,9 @@ pub(crate) fn apply(tanks: &mut [TankAudit], vehicles: &mut [VehicleFinding], op
             .collect();
         let all: Vec<(f64, f64)> = points.iter().map(|p| (p.1, p.2)).collect();
         let tau2 = between_variance(&all);
+        let total = Sums::of(&all, tau2);
+        let compared: HashMap<&str, (f64, f64)> =
+            points.iter().map(|p| (p.0, (p.1, p.2))).collect();
         for b in tanks
             .iter_mut()
             .flat_map(|t| t.balances.iter_mut())
@@ -154,23 +188,16 @@ pub(crate) fn apply(tanks: &mut [TankAudit], vehicles: &mut [VehicleFinding], op
             if matches!(b.verdict, Verdict::Short | Verdict::Excess) {
                 continue;
             }
-            let others: Vec<(f64, f64)> = points
-                .iter()
-                .filter(|p| p.0 != b.ticket)
-                .map(|p| (p.1, p.2))
-                .collect();
-            // the fill's own point: the vehicle test's when it was compared, else its own balance
-            // (a fill at a tank no other vehicle fills, or whose gauge was found at fault and
-            // judged against its fitted scale)
-            let own = points
-                .iter()
-                .find(|p| p.0 == b.ticket)
-                .map(|p| (p.1, p.2))
-                .or_else(|| {
-                    (b.before.is_some() && b.after.is_some() && b.sigma_kg > 0.0)
-                        .then(|| (b.residual_kg / b.billed_kg, b.sigma_kg / b.billed_kg))
-                });
-            let Some(e) = evidence(&others, tau2, own) else {
+            // the fill's own point: the vehicle test's when it was compared (and then left out of
+            // the others), else its own balance (a fill at a tank no other vehicle fills, or whose
+            // gauge was found at fault and judged against its fitted scale)
+            let mine = compared.get(b.ticket.as_str()).copied();
+            let others = mine.map_or(total, |p| total.plus(p, tau2, -1.0));
+            let own = mine.or_else(|| {
+                (b.before.is_some() && b.after.is_some() && b.sigma_kg > 0.0)
+                    .then(|| (b.residual_kg / b.billed_kg, b.sigma_kg / b.billed_kg))
+            });
+            let Some(e) = evidence(others, tau2, own) else {
                 continue;
             };
             if e.shows_short(b.coverage_factor, opts.materiality_fraction) {
@@ -203,16 +230,22 @@ mod tests {
     /// (20·1.5 + 0.5) / 21 = 1.452 %, u = 1/√21 = 0.218 %.
     #[test]
     fn posterior_by_hand() {
-        let others = vec![(0.015, 0.005); 5];
-        let e = evidence(&others, 0.0, Some((0.005, 0.01))).expect("five others");
+        let others = [(0.015, 0.005); 5];
+        let sums = |tau2: f64, n: usize| Sums::of(&others[..n], tau2);
+        let e = evidence(sums(0.0, 5), 0.0, Some((0.005, 0.01))).expect("five others");
         assert!((e.shortfall_percent - 30.5 / 21.0).abs() < 1e-9, "{e:?}");
         assert!((e.shortfall_u_percent - (1.0 / 21.0_f64).sqrt()).abs() < 1e-9);
         assert!(e.shows_short(2.0, 0.01));
         // a spread of 3 % between the vehicle's fills: the own point dominates and shows nothing
-        let e = evidence(&others, 0.03_f64.powi(2), Some((0.0, 0.01))).expect("five others");
+        let tau2 = 0.03_f64.powi(2);
+        let e = evidence(sums(tau2, 5), tau2, Some((0.0, 0.01))).expect("five others");
         assert!(e.shortfall_percent < 0.2, "{e:?}");
         assert!(!e.shows_short(2.0, 0.01));
         // too few others: no evidence
-        assert!(evidence(&others[..4], 0.0, None).is_none());
+        assert!(evidence(sums(0.0, 4), 0.0, None).is_none());
+        // one taken out of six leaves the five
+        let six = Sums::of(&[(0.015, 0.005); 6], 0.0).plus((0.015, 0.005), 0.0, -1.0);
+        let e6 = evidence(six, 0.0, Some((0.005, 0.01))).expect("five others");
+        assert!((e6.shortfall_percent - 30.5 / 21.0).abs() < 1e-9, "{e6:?}");
     }
 }
