@@ -9,11 +9,13 @@ use crate::balance::set_verdict;
 use crate::calibration::{self, Obs, ScaleModel};
 use crate::effects::{Row, groups, two_way};
 use crate::gauge_faults::{self, FaultTest, Point};
-use crate::records::{Balance, Finding, Forecast, GaugeStep, TankAudit};
+use crate::records::{Balance, Finding, FindingKind, Forecast, GaugeStep, Jump, TankAudit};
 use crate::stats::holm_adjust;
 pub use crate::vehicles::{AdjustedFill, VehicleFinding, VehicleStatus};
 
 const YEAR_MS: f64 = 365.0 * 86_400_000.0;
+/// A loss beyond use reaching within this of a gauge step's time is taken for the step.
+const STEP_LOSS_MARGIN_MS: i64 = 86_400_000;
 
 /// Gauge status.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize)]
@@ -110,6 +112,16 @@ fn usable(b: &Balance, findings: &[Finding]) -> bool {
             .any(|f| f.from_ms < after.time_ms && f.to_ms > before.time_ms)
 }
 
+/// Leave out the losses beyond use that reach within [`STEP_LOSS_MARGIN_MS`] of a gauge step at
+/// `at_ms`.
+fn drop_losses_at_step(findings: &mut Vec<Finding>, at_ms: i64) {
+    findings.retain(|f| {
+        f.kind != FindingKind::LossBeyondUse
+            || f.to_ms < at_ms - STEP_LOSS_MARGIN_MS
+            || f.from_ms > at_ms + STEP_LOSS_MARGIN_MS
+    });
+}
+
 /// Fleet statistics over every tank's audit.
 pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
     let mut tanks = tanks;
@@ -183,7 +195,20 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
         };
         let mut found = None;
         if pts.len() >= opts.drift_min_fills.max(3) && span_years > 60.0 / 365.0 {
-            let ft = gauge_faults::test(&pts, &t.jumps);
+            // a jump that is an unexplained gain (an unlogged fill) says nothing of the gauge
+            let jumps: Vec<Jump> = t
+                .jumps
+                .iter()
+                .copied()
+                .filter(|j| {
+                    !t.findings.iter().any(|f| {
+                        f.kind == FindingKind::UnexplainedGain
+                            && f.from_ms < j.to_ms
+                            && f.to_ms > j.from_ms
+                    })
+                })
+                .collect();
+            let ft = gauge_faults::test(&pts, &jumps);
             g.drift_percent_per_year = ft.drift.map(|d| 100.0 * d.0);
             g.drift_se_percent_per_year = ft.drift.map(|d| 100.0 * d.1);
             g.step_percent = ft.step.map(|s| 100.0 * s.0);
@@ -259,6 +284,13 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
             calibration::apply(t, o, ScaleModel::from_status(g.status, g.step_ms), opts);
         }
     }
+    // a loss beyond use at the hour a gauge's span stepped down is the step itself (the readings
+    // dropped at once, the tank lost nothing): the gauge's finding reports it
+    for (t, g) in tanks.iter_mut().zip(&gauges) {
+        if let (GaugeStatus::Step, Some(at_ms)) = (g.status, g.step_ms) {
+            drop_losses_at_step(&mut t.findings, at_ms);
+        }
+    }
     // fills after a gauge fault are marked
     for (t, g) in tanks.iter_mut().zip(&gauges) {
         let drift = Some(g)
@@ -321,5 +353,51 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
         vehicles,
         findings,
         tanks: summaries,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn finding(kind: FindingKind, from_day: i64, to_day: i64) -> Finding {
+        Finding {
+            kind,
+            tank: "T".into(),
+            from_ms: from_day * 86_400_000,
+            to_ms: to_day * 86_400_000,
+            mass_kg: 100.0,
+            excess_rate_kg_per_day: None,
+            usage_kg_per_day: 50.0,
+            explanation: String::new(),
+        }
+    }
+
+    /// Constructed: with a step on day 10, the loss over days 8–10 and the one over days 10.5–12
+    /// (within a day) are the step's; a loss over days 2–5, one from day 12, and a gain over days
+    /// 9–11 stay.
+    #[test]
+    fn a_loss_at_a_step_is_the_step() {
+        let mut f = vec![
+            finding(FindingKind::LossBeyondUse, 2, 5),
+            finding(FindingKind::LossBeyondUse, 8, 10),
+            finding(FindingKind::UnexplainedGain, 9, 11),
+            finding(FindingKind::LossBeyondUse, 12, 14),
+        ];
+        f.push(Finding {
+            from_ms: 10 * 86_400_000 + 43_200_000,
+            ..finding(FindingKind::LossBeyondUse, 0, 12)
+        });
+        drop_losses_at_step(&mut f, 10 * 86_400_000);
+        let kept: Vec<(FindingKind, i64)> =
+            f.iter().map(|x| (x.kind, x.from_ms / 86_400_000)).collect();
+        assert_eq!(
+            kept,
+            vec![
+                (FindingKind::LossBeyondUse, 2),
+                (FindingKind::UnexplainedGain, 9),
+                (FindingKind::LossBeyondUse, 12)
+            ]
+        );
     }
 }

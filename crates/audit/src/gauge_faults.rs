@@ -6,7 +6,11 @@
 //!   use model (a step shows there at once), else at every possible split; the difference of the two
 //!   means and its t-test, Bonferroni-adjusted over the candidate splits (a conservative bound for the
 //!   maximum of the split statistics; Worsley, "On the likelihood ratio test for a shift in location
-//!   of normal populations", JASA 74, 1979).
+//!   of normal populations", JASA 74, 1979). Where the readings between the two fills of that split
+//!   jumped with the step's sign, the jump's p-value (normal tail, Bonferroni over the stretch's
+//!   intervals) is combined with the split's by Fisher's method (the readings between fills and the
+//!   fills' balances are separate data), and the smaller of the split's p and the combined one is
+//!   doubled.
 //! - The tank's p-value is the smaller of the two, doubled (Bonferroni over the two models); the
 //!   fault named is the model Schwarz's criterion prefers (Schwarz, "Estimating the dimension of a
 //!   model", Ann. Statist. 6, 1978; the step's position counts as a parameter).
@@ -20,7 +24,7 @@
 //! when.
 
 use crate::records::Jump;
-use crate::stats::{mad_sigma, t_two_sided_p, weighted_line};
+use crate::stats::{fisher_combined_p, mad_sigma, normal_upper_p, t_two_sided_p, weighted_line};
 
 const YEAR_MS: f64 = 365.0 * 86_400_000.0;
 /// Fewest fills on each side of a step (with two, one short fill at either end of the data passed for
@@ -29,6 +33,10 @@ const YEAR_MS: f64 = 365.0 * 86_400_000.0;
 const STEP_SIDE: usize = 3;
 /// A jump of the readings this many standard uncertainties from the use model places a step.
 const JUMP_Z: f64 = 4.0;
+/// Intervals between readings counted per day of a stretch, for the Bonferroni bound of its largest
+/// jump (most sites read once a weekday, a few twice a day).
+const INTERVALS_PER_DAY: f64 = 2.0;
+const DAY_MS: f64 = 86_400_000.0;
 
 /// One fill's point: (time ms, ratio with vehicle effect removed, weight).
 pub(crate) type Point = (i64, f64, f64);
@@ -169,10 +177,15 @@ pub(crate) fn test(pts: &[Point], jumps: &[Jump]) -> FaultTest {
                 best_pts = q;
             }
         }
-        if let Some((k, r, p)) = best {
+        if let Some((k, r, p_fills)) = best {
             let (m1, _) = weighted_mean(&best_pts[..k]);
             let (m2, _) = weighted_mean(&best_pts[k..]);
             let size = m2 - m1;
+            // the readings' own evidence: the largest jump of the step's sign between the two fills
+            // that split, independent of the fills' balances, combined with them by Fisher's
+            // method; the smaller of the fills' p and the combined one, doubled (Bonferroni)
+            let p_jump = jump_p(pts[k - 1].0, pts[k].0, size, jumps);
+            let p = (2.0 * p_fills.min(fisher_combined_p(&[p_fills, p_jump]))).min(1.0);
             out.step = Some((size, date(pts[k - 1].0, pts[k].0, size, jumps), p));
             // Schwarz's criterion: the step has one parameter more than the line (where it falls),
             // unless the readings placed it
@@ -190,6 +203,25 @@ pub(crate) fn test(pts: &[Point], jumps: &[Jump]) -> FaultTest {
     };
     out.p = best_p.map(|p| (2.0 * p).min(1.0));
     out
+}
+
+/// The p-value of the largest jump of the readings between fills at `from` and `to` with the sign a
+/// step of `size` gives (a span reading low makes the tank seem to lose): its one-sided normal
+/// tail, Bonferroni over the stretch's intervals ([`INTERVALS_PER_DAY`]); 1 without such a jump
+/// (jumps under 3 standard uncertainties are not kept).
+fn jump_p(from: i64, to: i64, size: f64, jumps: &[Jump]) -> f64 {
+    let z = jumps
+        .iter()
+        .filter(|j| j.from_ms >= from && j.to_ms <= to && j.z * size < 0.0)
+        .map(|j| j.z.abs())
+        .fold(0.0, f64::max);
+    if z <= 0.0 {
+        return 1.0;
+    }
+    let n = ((to - from) as f64 / DAY_MS * INTERVALS_PER_DAY)
+        .ceil()
+        .max(1.0);
+    (n * normal_upper_p(z)).min(1.0)
 }
 
 /// When a step of `size` happened between fills at `from` and `to`: the end of the interval in that

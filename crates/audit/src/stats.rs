@@ -1,7 +1,7 @@
 //! Small statistics: medians, Student's t distribution (through statrs), least squares, Holm's
 //! procedure.
 
-use statrs::distribution::{ContinuousCDF, StudentsT};
+use statrs::distribution::{ChiSquared, ContinuousCDF, Normal, StudentsT};
 
 /// The median of `values` (NaN-free); None when empty. Sorts a copy.
 pub fn median(values: &[f64]) -> Option<f64> {
@@ -38,6 +38,18 @@ pub fn t_two_sided_p(t: f64, dof: f64) -> f64 {
         return 0.0;
     }
     students_t(dof).map_or(f64::NAN, |d| (2.0 * d.sf(t.abs())).clamp(0.0, 1.0))
+}
+
+/// P(Z ≥ z) of a standard normal variable (statrs' normal distribution).
+pub fn normal_upper_p(z: f64) -> f64 {
+    Normal::new(0.0, 1.0).map_or(f64::NAN, |d| d.sf(z))
+}
+
+/// Fisher's combination of independent p-values: P(χ²₂ₖ ≥ −2 Σ ln pᵢ) (Fisher, "Statistical
+/// Methods for Research Workers", 1932, §21.1).
+pub fn fisher_combined_p(p: &[f64]) -> f64 {
+    let stat: f64 = p.iter().map(|x| -2.0 * x.max(1e-300).ln()).sum();
+    ChiSquared::new(2.0 * p.len() as f64).map_or(f64::NAN, |d| d.sf(stat).clamp(0.0, 1.0))
 }
 
 /// The two-sided critical value t with P(|T| ≥ t) = `p` (statrs' inverse distribution function).
@@ -107,6 +119,20 @@ pub fn holm_adjust(p: &[f64]) -> Vec<f64> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// Normal tail from a standard table (NIST/SEMATECH e-Handbook of Statistical Methods, §1.3.6.7.1:
+    /// P(Z ≥ 1.96) = 0.0250, P(Z ≥ 3) = 0.00135), and Fisher's combination of 0.05 and 0.05 worked
+    /// by hand: −2 Σ ln p = −4 ln 0.05 = 11.983, and χ²₄'s tail is e^(−x/2)(1 + x/2) =
+    /// 0.0025 × 6.9915 = 0.017479.
+    #[test]
+    fn normal_tail_and_fisher_combination() {
+        assert!((normal_upper_p(1.96) - 0.0250).abs() < 5e-5);
+        assert!((normal_upper_p(3.0) - 0.00135).abs() < 5e-6);
+        let p = fisher_combined_p(&[0.05, 0.05]);
+        let x = -4.0 * 0.05_f64.ln();
+        assert!((p - 0.0025 * (1.0 + x / 2.0)).abs() < 1e-9, "{p}");
+        assert!((p - 0.017479).abs() < 1e-6, "{p}");
+    }
 
     /// Student t critical values from a standard table (e.g. NIST/SEMATECH e-Handbook of Statistical
     /// Methods, 1.3.6.7.2): t(0.975, 10) = 2.228, t(0.975, 30) = 2.042, t(0.995, 5) = 4.032;
