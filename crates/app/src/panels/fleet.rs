@@ -144,22 +144,25 @@ fn tank_line(ui: &mut Ui, t: &crate::view::FleetTank, selected: bool, as_of_ms: 
     } else {
         p.circle_filled(marker, 4.5, style::CAUTION);
     }
-    p.text(
+    let name_rect = p.text(
         pos2(rect.left() + 26.0, y),
         Align2::LEFT_CENTER,
         &t.name,
         FontId::proportional(13.5),
         style::INK,
     );
-    p.text(
-        pos2(rect.left() + 100.0, y),
-        Align2::LEFT_CENTER,
-        short_fluid(&t.fluid),
+    // Fill bar with the reorder tick.
+    let bar = Rect::from_min_size(pos2(rect.left() + 138.0, y - 4.0), vec2(54.0, 8.0));
+    // the fluid after the name, where a long name leaves room before the bar
+    let fluid = p.layout_no_wrap(
+        short_fluid(&t.fluid).to_owned(),
         FontId::proportional(11.0),
         style::MUTED,
     );
-    // Fill bar with the reorder tick.
-    let bar = Rect::from_min_size(pos2(rect.left() + 138.0, y - 4.0), vec2(54.0, 8.0));
+    let fluid_x = (rect.left() + 100.0).max(name_rect.right() + 5.0);
+    if fluid_x + fluid.size().x <= bar.left() - 3.0 {
+        p.galley(pos2(fluid_x, y - fluid.size().y / 2.0), fluid, style::MUTED);
+    }
     p.rect_filled(bar, 2.0, style::VAPOUR);
     if let Some(fill) = t.fill {
         let mut b = bar;
