@@ -41,6 +41,9 @@ pub(crate) struct Interval {
     pub(crate) clean: bool,
 }
 
+/// Half the 95th percentile of χ² with one degree of freedom (3.841 / 2; a standard table value).
+const NER_LR_MIN: f64 = 1.92;
+
 pub(crate) fn huber(x: f64) -> f64 {
     const C: f64 = 1.5;
     let a = x.abs();
@@ -188,7 +191,14 @@ pub fn audit_tank(input: &TankInput, opts: &AuditOptions) -> Result<TankAudit, A
                 f2 = objective(x2);
             }
         }
-        let best = (0.5 * (lo + hi)).exp();
+        let mut best = (0.5 * (lo + hi)).exp();
+        // the setting stands unless the fills support another NER: the objective is a negative
+        // log-likelihood (Huber's ρ for a heavy-tailed one), and a fitted NER is kept only where it
+        // lowers it by χ²₁(0.95) / 2 = 1.92 from the setting's (Wilks' likelihood-ratio test at the
+        // 5 % level; Wilks, Ann. Math. Statist. 9, 1938)
+        if objective(ner_setting.ln()) - objective(best.ln()) < NER_LR_MIN {
+            best = ner_setting;
+        }
         ner_fitted = Some(best);
         // the bracketing readings with the fitted NER; the daily readings keep the first pass's
         // state (the NER moves their masses far less than the usage model's scatter)

@@ -1,10 +1,13 @@
 //! The customer's use between any two instants, from the tank's own readings.
 //!
 //! Use follows the customer's week: a factory on shifts draws a fraction of its weekday rate at
-//! weekends, a hospital nearly the same every day. The model has one rate (kg/h) for each of four
-//! blocks of the week — weekday day, weekday night, weekend day, weekend night — so the use over an
-//! interval is the hours it spends in each block times that block's rate, a linear model of the mass a
-//! tank loses between two readings however far apart they are.
+//! weekends (often a Saturday morning shift and a still Sunday), a hospital nearly the same every day.
+//! The model has one rate (kg/h) for each of six blocks of the week — weekday day, weekday night,
+//! Saturday day, Saturday night, Sunday day, Sunday night — so the use over an interval is the hours it
+//! spends in each block times that block's rate, a linear model of the mass a tank loses between two
+//! readings however far apart they are. A site read only on weekdays sees Saturday and Sunday only
+//! together; the prior shares their sum between them, and a prediction over a whole weekend needs
+//! only the sum.
 //!
 //! The rates are fitted by weighted least squares with a Gaussian prior centred on a flat profile (the
 //! median rate of the tank's intervals; Bayesian linear regression, Gelman et al., "Bayesian Data
@@ -22,8 +25,9 @@
 
 use crate::stats::median;
 
-/// Blocks of the week, in this order: weekday day, weekday night, weekend day, weekend night.
-pub(crate) const BLOCKS: usize = 4;
+/// Blocks of the week, in this order: weekday day, weekday night, Saturday day, Saturday night,
+/// Sunday day, Sunday night.
+pub(crate) const BLOCKS: usize = 6;
 /// The day block runs from this hour (UTC) ...
 const DAY_START_H: i64 = 6;
 /// ... to this one.
@@ -50,8 +54,11 @@ pub(crate) fn block_hours(t0_ms: i64, t1_ms: i64) -> [f64; BLOCKS] {
     while day <= last {
         let start = day * DAY_MS;
         // days since the epoch: 0 = Thursday, so Saturday is 2 and Sunday 3 (mod 7)
-        let weekend = matches!(day.rem_euclid(7), 2 | 3);
-        let base = if weekend { 2 } else { 0 };
+        let base = match day.rem_euclid(7) {
+            2 => 2,
+            3 => 4,
+            _ => 0,
+        };
         let overlap = |a: i64, b: i64| {
             let (lo, hi) = (
                 t0_ms.max(start + a * HOUR_MS),
@@ -118,7 +125,10 @@ impl UseFit {
         let day_h = (DAY_END_H - DAY_START_H) as f64;
         let night_h = 24.0 - day_h;
         let r = &self.rate_kg_h;
-        (5.0 * (day_h * r[0] + night_h * r[1]) + 2.0 * (day_h * r[2] + night_h * r[3])) / 7.0
+        (5.0 * (day_h * r[0] + night_h * r[1])
+            + (day_h * r[2] + night_h * r[3])
+            + (day_h * r[4] + night_h * r[5]))
+            / 7.0
     }
 }
 
@@ -334,19 +344,63 @@ mod tests {
     use super::*;
 
     /// 2026-01-05 was a Monday (a calendar identity): a day from its 00:00 UTC has 12 day hours and
-    /// 12 night hours on a weekday; Saturday 2026-01-03 counts as weekend; a week has 5 × 12 weekday
-    /// day hours and 2 × 12 weekend day hours.
+    /// 12 night hours on a weekday; Saturday 2026-01-03 and Sunday 2026-01-04 have blocks of their
+    /// own; a week has 5 × 12 weekday day hours and 12 day hours on each weekend day.
     #[test]
     fn hours_fall_in_their_blocks() {
         let monday = 1_767_571_200_000; // 2026-01-05T00:00:00Z
-        assert_eq!(block_hours(monday, monday + DAY_MS), [12.0, 12.0, 0.0, 0.0]);
+        assert_eq!(
+            block_hours(monday, monday + DAY_MS),
+            [12.0, 12.0, 0.0, 0.0, 0.0, 0.0]
+        );
         let saturday = monday - 2 * DAY_MS;
-        assert_eq!(block_hours(saturday, monday), [0.0, 0.0, 24.0, 24.0]);
+        assert_eq!(
+            block_hours(saturday, monday),
+            [0.0, 0.0, 12.0, 12.0, 12.0, 12.0]
+        );
         let week = block_hours(monday, monday + 7 * DAY_MS);
-        assert_eq!(week, [60.0, 60.0, 24.0, 24.0]);
+        assert_eq!(week, [60.0, 60.0, 12.0, 12.0, 12.0, 12.0]);
         // 07:30 to 09:00: 1.5 day hours
         let h = block_hours(monday + 7 * HOUR_MS + HOUR_MS / 2, monday + 9 * HOUR_MS);
         assert!((h[0] - 1.5).abs() < 1e-12 && h[1] == 0.0);
+    }
+
+    /// A plant read every day that draws 40 kg/h on weekdays, 20 kg/h on Saturdays and 2 kg/h on
+    /// Sundays (exact, no noise): Saturday 09:00 to Sunday 09:00 UTC is predicted at
+    /// 15 × 20 + 9 × 2 = 318 kg and Sunday to Monday at 15 × 2 + 9 × 40 = 390 kg, within 2 % (an
+    /// identity of the linear model; one weekend rate would put both near their mean).
+    #[test]
+    fn a_saturday_shift_and_a_still_sunday_are_told_apart() {
+        let monday = 1_767_571_200_000_i64;
+        let rate = |t: i64| {
+            let h = block_hours(t, t + HOUR_MS);
+            if h[2] + h[3] > 0.0 {
+                20.0
+            } else if h[4] + h[5] > 0.0 {
+                2.0
+            } else {
+                40.0
+            }
+        };
+        // read at 09:00 and 15:00 on alternate days, so that day and night and the two parts of
+        // the variance can be told apart
+        let times: Vec<i64> = (0..56)
+            .map(|d| monday + d * DAY_MS + if d % 2 == 0 { 9 } else { 15 } * HOUR_MS)
+            .collect();
+        let observed: Vec<Observed> = times
+            .windows(2)
+            .map(|w| Observed {
+                from_ms: w[0],
+                to_ms: w[1],
+                lost_kg: (w[0]..w[1]).step_by(HOUR_MS as usize).map(rate).sum(),
+            })
+            .collect();
+        let model = UseModel::fit(&observed, 20_000.0);
+        let sat = monday + 5 * DAY_MS + 9 * HOUR_MS;
+        let (sat_sun, _) = model.predict(sat, sat + DAY_MS).unwrap();
+        assert!((sat_sun - 318.0).abs() < 0.02 * 318.0, "{sat_sun}");
+        let (sun_mon, _) = model.predict(sat + DAY_MS, sat + 2 * DAY_MS).unwrap();
+        assert!((sun_mon - 390.0).abs() < 0.02 * 390.0, "{sun_mon}");
     }
 
     /// A weekday-only record of a plant that draws 40 kg/h on weekdays and 8 kg/h at weekends
@@ -358,7 +412,11 @@ mod tests {
         let monday = 1_767_571_200_000_i64;
         let rate = |t: i64| {
             let h = block_hours(t, t + HOUR_MS);
-            if h[2] + h[3] > 0.0 { 8.0 } else { 40.0 }
+            if h[2] + h[3] + h[4] + h[5] > 0.0 {
+                8.0
+            } else {
+                40.0
+            }
         };
         let mut times = Vec::new();
         for week in 0..8 {
