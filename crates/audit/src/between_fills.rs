@@ -39,6 +39,8 @@ pub(crate) fn findings(
                 from_ms: iv.from_ms,
                 to_ms: iv.to_ms,
                 z,
+                sd_kg: sd,
+                contents_kg: iv.from_kg,
             });
         }
         let gain = expected - lost;

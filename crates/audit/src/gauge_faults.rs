@@ -37,6 +37,9 @@ const JUMP_Z: f64 = 4.0;
 /// jump (most sites read once a weekday, a few twice a day).
 const INTERVALS_PER_DAY: f64 = 2.0;
 const DAY_MS: f64 = 86_400_000.0;
+/// A jump explains a step when it lies within this many standard uncertainties of the size the step
+/// gives it (a two-sided 99 % band of a normal variable; common practice, no source).
+const JUMP_FIT_Z: f64 = 2.576;
 
 /// One fill's point: (time ms, ratio with vehicle effect removed, weight).
 pub(crate) type Point = (i64, f64, f64);
@@ -205,14 +208,20 @@ pub(crate) fn test(pts: &[Point], jumps: &[Jump]) -> FaultTest {
     out
 }
 
-/// The p-value of the largest jump of the readings between fills at `from` and `to` with the sign a
-/// step of `size` gives (a span reading low makes the tank seem to lose): its one-sided normal
+/// The p-value of the largest jump of the readings between fills at `from` and `to` that a step of
+/// `size` explains: of the sign it gives (a span reading low makes the tank seem to lose) and within
+/// [`JUMP_FIT_Z`] standard uncertainties of the size it gives (the step times the mass read then),
+/// so a swing of use far larger or smaller than the step is not taken for it. Its one-sided normal
 /// tail, Bonferroni over the stretch's intervals ([`INTERVALS_PER_DAY`]); 1 without such a jump
 /// (jumps under 3 standard uncertainties are not kept).
 fn jump_p(from: i64, to: i64, size: f64, jumps: &[Jump]) -> f64 {
     let z = jumps
         .iter()
         .filter(|j| j.from_ms >= from && j.to_ms <= to && j.z * size < 0.0)
+        .filter(|j| {
+            let expected = size.abs() * j.contents_kg / j.sd_kg.max(1e-9);
+            (j.z.abs() - expected).abs() <= JUMP_FIT_Z
+        })
         .map(|j| j.z.abs())
         .fold(0.0, f64::max);
     if z <= 0.0 {
@@ -255,6 +264,8 @@ mod tests {
             from_ms: 5 * month + 86_400_000,
             to_ms: 5 * month + 2 * 86_400_000,
             z: 6.0,
+            sd_kg: 50.0,
+            contents_kg: 10_000.0,
         };
         let t = test(&pts, &[jump]);
         let (size, at, p) = t.step.unwrap();

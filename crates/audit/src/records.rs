@@ -152,6 +152,10 @@ pub struct Jump {
     pub to_ms: i64,
     /// (lost − expected) / its standard uncertainty: positive when the tank seemed to lose.
     pub z: f64,
+    /// That standard uncertainty, kg.
+    pub sd_kg: f64,
+    /// The mass read at its start, kg (a span's step moves the reading by its size times this).
+    pub contents_kg: f64,
 }
 
 /// What a finding between fills is.
