@@ -77,7 +77,6 @@ fn input_of(
             supply_pressure_pa: Some(p_pa),
             meter_repeatability_percent: None,
         }],
-        zone: units::Zone::UTC,
     }
 }
 

@@ -80,7 +80,6 @@ pub fn inputs(fleet: &simulate::Fleet) -> Vec<TankInput> {
                 dp_noise_u_pa: dp_noise_u_pa(t),
                 readings,
                 deliveries,
-                zone: units::Zone::UTC,
             }
         })
         .collect()
