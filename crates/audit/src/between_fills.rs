@@ -103,7 +103,7 @@ pub(crate) fn findings(
                 excess_rate_kg_per_day: Some(rate),
                 usage_kg_per_day: usage,
                 explanation: format!(
-                    "Loss beyond use: over {:.0} days the tank lost {} kg more than its use model expects ({} kg/day beside a usual {} kg/day): a leak or venting?",
+                    "Loss beyond use: over {:.0} days the tank lost {} kg more than its use in the six weeks either side accounts for ({} kg/day beside a usual {} kg/day): a leak or venting?",
                     days,
                     fmt_kg(excess),
                     fmt_kg(rate),

@@ -35,9 +35,9 @@ const DAY_END_H: i64 = 18;
 const HOUR_MS: i64 = 3_600_000;
 const DAY_MS: i64 = 24 * HOUR_MS;
 /// Anchors of the fitted profiles are this far apart.
-pub(crate) const ANCHOR_STEP_MS: i64 = 14 * DAY_MS;
+const ANCHOR_STEP_MS: i64 = 14 * DAY_MS;
 /// A profile uses the intervals within this distance of its anchor (all of them when too few).
-pub(crate) const WINDOW_MS: i64 = 45 * DAY_MS;
+const WINDOW_MS: i64 = 45 * DAY_MS;
 /// Intervals longer than this say little about the weekly pattern and are left out of the fit.
 const LONGEST_INTERVAL_MS: i64 = 15 * DAY_MS;
 /// Huber's tuning constant for the robust reweighting.
