@@ -34,15 +34,6 @@ pub(crate) fn findings(
         let lost = iv.from_kg - iv.to_kg;
         let usage = fit.weekly_mean_kg_day();
         let z = (lost - expected) / sd;
-        if z.abs() >= 3.0 {
-            jumps.push(Jump {
-                from_ms: iv.from_ms,
-                to_ms: iv.to_ms,
-                z,
-                sd_kg: sd,
-                contents_kg: iv.from_kg,
-            });
-        }
         let gain = expected - lost;
         let limit = (opts.gain_sigmas * sd).max(opts.gain_min_fraction * ctx.full_mass_kg);
         if gain > limit {
@@ -62,6 +53,16 @@ pub(crate) fn findings(
                 ),
             });
             continue;
+        }
+        // a jump that is an unexplained gain (an unlogged fill) says nothing of the gauge
+        if z.abs() >= 3.0 {
+            jumps.push(Jump {
+                from_ms: iv.from_ms,
+                to_ms: iv.to_ms,
+                z,
+                sd_kg: sd,
+                contents_kg: iv.from_kg,
+            });
         }
         judged.push((iv.from_ms, iv.to_ms, lost - expected, z, usage, lost));
     }

@@ -9,7 +9,7 @@ use crate::balance::set_verdict;
 use crate::calibration::{self, Obs, ScaleModel};
 use crate::effects::{Row, groups, two_way};
 use crate::gauge_faults::{self, FaultTest, Point};
-use crate::records::{Balance, Finding, FindingKind, Forecast, GaugeStep, Jump, TankAudit};
+use crate::records::{Balance, Finding, FindingKind, Forecast, GaugeStep, TankAudit};
 use crate::stats::holm_adjust;
 pub use crate::vehicles::{AdjustedFill, VehicleFinding, VehicleStatus};
 
@@ -195,20 +195,7 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
         };
         let mut found = None;
         if pts.len() >= opts.drift_min_fills.max(3) && span_years > 60.0 / 365.0 {
-            // a jump that is an unexplained gain (an unlogged fill) says nothing of the gauge
-            let jumps: Vec<Jump> = t
-                .jumps
-                .iter()
-                .copied()
-                .filter(|j| {
-                    !t.findings.iter().any(|f| {
-                        f.kind == FindingKind::UnexplainedGain
-                            && f.from_ms < j.to_ms
-                            && f.to_ms > j.from_ms
-                    })
-                })
-                .collect();
-            let ft = gauge_faults::test(&pts, &jumps);
+            let ft = gauge_faults::test(&pts, &t.jumps);
             g.drift_percent_per_year = ft.drift.map(|d| 100.0 * d.0);
             g.drift_se_percent_per_year = ft.drift.map(|d| 100.0 * d.1);
             g.step_percent = ft.step.map(|s| 100.0 * s.0);
