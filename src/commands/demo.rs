@@ -35,9 +35,10 @@ pub fn write_demo(db: &Location) -> Result<ImportSummary> {
     write_demo_dated(db, true)
 }
 
-/// The demo's CSV texts with every time moved by whole days so that the latest reading falls on the
-/// day of `now_ms`, or on the day before when its time of day is still to come (times of day kept; UTC):
-/// nothing in the demo lies in the future.
+/// The demo's CSV texts with every time moved by whole weeks so that the latest reading falls within
+/// the seven days before `now_ms` (times of day and weekdays kept; UTC): nothing in the demo lies in
+/// the future, and its customers' weekends stay on Saturdays and Sundays, where their use model
+/// looks for them.
 pub fn moved_to(now_ms: i64) -> Result<(String, String)> {
     let day_ms = 86_400_000_i64;
     let mut times = read_times(READINGS_CSV, &["time"])?;
@@ -46,9 +47,9 @@ pub fn moved_to(now_ms: i64) -> Result<(String, String)> {
         .into_iter()
         .max()
         .context("the demo has no readings")?;
-    let mut shift_days = now_ms.div_euclid(day_ms) - latest.div_euclid(day_ms);
+    let mut shift_days = (now_ms.div_euclid(day_ms) - latest.div_euclid(day_ms)).div_euclid(7) * 7;
     while latest + shift_days * day_ms > now_ms {
-        shift_days -= 1;
+        shift_days -= 7;
     }
     Ok((
         shift_times(READINGS_CSV, &["time"], shift_days)?,

@@ -43,9 +43,10 @@ fn latest_reading(db: &std::path::Path) -> String {
         .unwrap()
 }
 
-/// A new user's demo is alive: its dates are moved by whole days so that the latest reading is from the
-/// last 24 hours and none is in the future (UTC); `--keep-dates` keeps the scenario's own (its last
-/// reading day is 2026-11-30, demo-data/readings.csv). The clock is read before and after the run.
+/// A new user's demo is alive: its dates are moved by whole weeks (weekdays kept) so that the latest
+/// reading is from the last seven days and none is in the future (UTC); `--keep-dates` keeps the
+/// scenario's own (its last reading day is 2026-11-30, a Monday, demo-data/readings.csv). The clock is
+/// read before and after the run.
 #[test]
 fn demo_dates_end_today_unless_kept() {
     let dir = tempfile::tempdir().unwrap();
@@ -57,8 +58,14 @@ fn demo_dates_end_today_unless_kept() {
         .to_utc();
     assert!(latest <= after, "{latest} is after {after}");
     assert!(
-        latest > before - chrono::Duration::hours(24),
-        "{latest} is more than a day before {before}"
+        latest > before - chrono::Duration::days(7),
+        "{latest} is more than a week before {before}"
+    );
+    // whole weeks: the scenario's last reading day, a Monday (2026-11-30), is still a Monday
+    assert_eq!(
+        chrono::Datelike::weekday(&latest),
+        chrono::Weekday::Mon,
+        "{latest}"
     );
     // nor any delivery
     let out = bin()

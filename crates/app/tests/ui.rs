@@ -375,8 +375,8 @@ fn the_fleet_list_search_filters_tanks() {
 #[test]
 fn an_edited_delivery_keeps_its_history_and_a_short_fill_marks_the_tank() {
     let mut h = harness(common::demo_store());
-    select(&mut h, "ASB-N2-1");
-    let id = tank_id(&h, "ASB-N2-1");
+    select(&mut h, "CHB-N2-5");
+    let id = tank_id(&h, "CHB-N2-5");
     assert!(
         !h.state()
             .view()
@@ -386,7 +386,7 @@ fn an_edited_delivery_keeps_its_history_and_a_short_fill_marks_the_tank() {
             .attention
             .iter()
             .any(|a| matches!(a, Attention::OpenFinding(_))),
-        "ASB-N2-1 has no open finding in the demo (demo-data/README.md: no fault planted there)"
+        "CHB-N2-5 has no open finding in the demo (demo-data/README.md: no fault planted there)"
     );
     tab(&mut h, "Deliveries");
     let d = h
@@ -402,7 +402,7 @@ fn an_edited_delivery_keeps_its_history_and_a_short_fill_marks_the_tank() {
     h.run();
     assert_eq!(h.state().view().delivery_editor.form.editing, Some(d.id.0));
     // Billed 6 % more than the tank gained: the audit must call this fill short (its limit is the
-    // larger of 2 standard uncertainties and 1 % of the ticket; its last fill, by BH-T21, is honest in the demo).
+    // larger of 2 standard uncertainties and 1 % of the ticket; its last fill, by MC-T24, is honest in the demo).
     type_into(&mut h, "Quantity", &format!("{}", billed * 1.06));
     type_into(
         &mut h,

@@ -1,6 +1,7 @@
 //! Between fills: gains no ticket explains, losses beyond use, and the forecast of the next fill.
 
 use crate::balance::fmt_kg;
+use crate::loss_scan::{LEVEL_SIDE_MS, scan, standing, winsorize};
 use crate::records::*;
 use crate::tank_audit::*;
 use crate::thermal::*;
@@ -10,11 +11,14 @@ use crate::use_model::UseModel;
 /// - a gain no ticket explains: an interval whose mass rose beyond the model's use by more than
 ///   `gain_sigmas` standard uncertainties and `gain_min_fraction` of a full tank;
 /// - a loss beyond use (a leak or venting): a run of intervals losing more than the model says,
-///   found by a one-sided CUSUM of the standardized excess losses (Page, "Continuous inspection
-///   schemes", Biometrika 41, 1954) with reference value `leak_cusum_k` and decision interval
-///   `leak_cusum_h`; runs a fill or a day of ordinary use splits are joined; reported once, from
-///   the start of the run to its end, with its rate beyond the use the six weeks either side show (the
-///   model, fitted over weeks that include a leak, has taken in part of it).
+///   found by a scan of windows of 5 to 14 days against this tank's own swings of use over windows
+///   of the same length (see `loss_scan`), each interval's excess first winsorized; a window is
+///   reported when it stands `leak_scan_z` robust standard deviations above the model, then
+///   `leak_standing_z` above the use both before and after it, by at least `leak_min_rate_fraction`
+///   of that use and `leak_min_fraction` of a full tank; windows a fill or a day of ordinary use
+///   splits are joined; reported once, from its start to its end, with its rate beyond the use the
+///   six weeks either side show (the model, fitted over weeks that include a leak, has taken in
+///   part of it).
 pub(crate) fn findings(
     ctx: &Ctx<'_>,
     intervals: &[Interval],
@@ -66,20 +70,13 @@ pub(crate) fn findings(
         }
         judged.push((iv.from_ms, iv.to_ms, lost - expected, z, usage, lost));
     }
-    // Consecutive intervals' excesses are correlated where the customer's use swings slowly (a busy
-    // fortnight, a slack one): their sums vary more than independent terms would, and a CUSUM
-    // tuned for independent terms alarms on every swing. The standardized excesses are scaled by
-    // √((1 − ρ)/(1 + ρ)), ρ their lag-one autocorrelation (the variance of a long sum of an AR(1)
-    // series relative to independent terms; Montgomery, "Introduction to Statistical Quality
-    // Control", 7th ed., §10.4, monitoring autocorrelated data), estimated from this tank's own
-    // intervals with each term clipped at ±2.5 so that a leak's own run does not inflate it.
-    let rho = lag_one_autocorrelation(&judged);
-    let scale = ((1.0 - rho) / (1.0 + rho)).sqrt();
-    for j in &mut judged {
-        j.3 *= scale;
-    }
-    let runs = merge_runs(
-        cusum_runs(&judged, opts.leak_cusum_k, opts.leak_cusum_h),
+    // one reading's slip or one busy day is a single interval, not a run
+    winsorize(&mut judged);
+    let runs: Vec<(usize, usize)> = merge_runs(
+        scan(&judged, opts.leak_scan_z)
+            .into_iter()
+            .map(|h| (h.0, h.1))
+            .collect(),
         &judged,
     );
     for &(first, last) in &runs {
@@ -92,9 +89,10 @@ pub(crate) fn findings(
         let days = part.iter().map(|p| (p.1 - p.0) as f64).sum::<f64>() / (DAY_S * 1000.0);
         let usage = level * part.iter().map(|p| p.4).sum::<f64>() / part.len() as f64;
         let rate = excess / days.max(1e-9);
-        if excess >= opts.leak_min_fraction * ctx.full_mass_kg
-            && rate >= opts.leak_min_rate_fraction * usage
-        {
+        let stands = standing(&judged, (first, last)).is_some_and(|(z, share)| {
+            z >= opts.leak_standing_z && share >= opts.leak_min_rate_fraction
+        });
+        if excess >= opts.leak_min_fraction * ctx.full_mass_kg && stands {
             out.push(Finding {
                 kind: FindingKind::LossBeyondUse,
                 tank: ctx.input.name.clone(),
@@ -118,41 +116,7 @@ pub(crate) fn findings(
 }
 
 /// One judged interval: (from ms, to ms, excess loss kg, standardized excess, use kg/day, loss kg).
-type Judged = (i64, i64, f64, f64, f64, f64);
-
-/// The runs a one-sided CUSUM of the standardized excesses alarms on (Page 1954), as index ranges:
-/// a run starts where the sum leaves zero and goes on, once the sum passes `h`, while the excesses
-/// stay above `k`; the sum starts again after it.
-fn cusum_runs(judged: &[Judged], k: f64, h: f64) -> Vec<(usize, usize)> {
-    let mut runs = Vec::new();
-    let mut s = 0.0;
-    let mut run: Option<usize> = None;
-    let mut i = 0;
-    while i < judged.len() {
-        let before = s;
-        s = (s + judged[i].3 - k).max(0.0);
-        if before == 0.0 && s > 0.0 {
-            run = Some(i);
-        } else if s == 0.0 {
-            run = None;
-        }
-        if s > h
-            && let Some(first) = run
-        {
-            let mut last = i;
-            while last + 1 < judged.len() && judged[last + 1].3 > k {
-                last += 1;
-            }
-            runs.push((first, last));
-            s = 0.0;
-            run = None;
-            i = last + 1;
-            continue;
-        }
-        i += 1;
-    }
-    runs
-}
+pub(crate) type Judged = (i64, i64, f64, f64, f64, f64);
 
 /// Runs less than this apart are one loss (a fill's interval, or a day of ordinary use, inside a
 /// leak splits its run).
@@ -170,9 +134,6 @@ fn merge_runs(runs: Vec<(usize, usize)>, judged: &[Judged]) -> Vec<(usize, usize
     }
     out
 }
-
-/// Neighbours of a run within this distance set its local level.
-const LEVEL_SIDE_MS: i64 = 42 * 86_400_000;
 
 /// The tank's use near a run relative to the model: what the judged intervals within
 /// [`LEVEL_SIDE_MS`] (six weeks) either side of [from, to), outside every run, lost over what the model expects
@@ -195,34 +156,6 @@ fn local_level(judged: &[Judged], runs: &[(usize, usize)], from: i64, to: i64) -
     } else {
         1.0
     }
-}
-
-/// The lag-one autocorrelation of the standardized excesses of adjacent intervals (sharing a
-/// reading), each clipped at ±2.5, within [0, 0.9]: none is assumed below 12 adjacent pairs.
-fn lag_one_autocorrelation(judged: &[Judged]) -> f64 {
-    let clip = |z: f64| z.clamp(-2.5, 2.5);
-    let pairs: Vec<(f64, f64)> = judged
-        .windows(2)
-        .filter(|w| w[0].1 == w[1].0)
-        .map(|w| (clip(w[0].3), clip(w[1].3)))
-        .collect();
-    if pairs.len() < 12 {
-        return 0.0;
-    }
-    let n = pairs.len() as f64;
-    let (ma, mb) = pairs
-        .iter()
-        .fold((0.0, 0.0), |acc, p| (acc.0 + p.0 / n, acc.1 + p.1 / n));
-    let (mut sab, mut saa, mut sbb) = (0.0, 0.0, 0.0);
-    for (a, b) in &pairs {
-        sab += (a - ma) * (b - mb);
-        saa += (a - ma).powi(2);
-        sbb += (b - mb).powi(2);
-    }
-    if saa <= 0.0 || sbb <= 0.0 {
-        return 0.0;
-    }
-    (sab / (saa * sbb).sqrt()).clamp(0.0, 0.9)
 }
 
 pub(crate) fn forecast(
@@ -270,16 +203,6 @@ pub(crate) fn forecast(
 mod tests {
     use super::*;
 
-    fn series(z: &[f64], adjacent: bool) -> Vec<Judged> {
-        z.iter()
-            .enumerate()
-            .map(|(i, &z)| {
-                let from = i as i64 * 10 + if adjacent { 0 } else { i as i64 };
-                (from, from + 10, 0.0, z, 0.0, 0.0)
-            })
-            .collect()
-    }
-
     /// Worked by hand: runs 2–3 and 5–6 of daily intervals are 1 day apart (merged, with the
     /// interval between); run 11 starts 4 days after the end of day 6 (kept apart).
     #[test]
@@ -321,19 +244,5 @@ mod tests {
         );
         let high: Vec<Judged> = (0..5).map(|d| iv(d, 300.0, 100.0)).collect();
         assert_eq!(local_level(&high, &[(2, 2)], 2 * day, 3 * day), 1.5);
-    }
-
-    /// Worked by hand: a rising run 0, 0.1, …, 1.3 pairs each term with the next, a perfect
-    /// correlation (r = 1, held at 0.9); alternating ±1 gives r = −1 (held at 0); the same terms
-    /// from intervals that share no reading give no pairs, so none is assumed.
-    #[test]
-    fn lag_one_autocorrelation_by_hand() {
-        let rising: Vec<f64> = (0..14).map(|i| i as f64 / 10.0).collect();
-        assert!((lag_one_autocorrelation(&series(&rising, true)) - 0.9).abs() < 1e-12);
-        let alternating: Vec<f64> = (0..14)
-            .map(|i| if i % 2 == 0 { 1.0 } else { -1.0 })
-            .collect();
-        assert_eq!(lag_one_autocorrelation(&series(&alternating, true)), 0.0);
-        assert_eq!(lag_one_autocorrelation(&series(&rising, false)), 0.0);
     }
 }

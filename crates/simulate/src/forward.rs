@@ -71,14 +71,15 @@ impl TankSim<'_> {
             let day = usize::try_from(rel.div_euclid(DAY_MS)).unwrap_or(0);
             let hour = rel.rem_euclid(DAY_MS) / HOUR_MS;
             let factor = self.day_factor.get(day).copied().unwrap_or(1.0);
-            let mut draw = self.t.usage_kg_per_day / 86_400.0 * factor * hourly_shape(hour) * dt_s;
+            let draw = self.t.usage_kg_per_day / 86_400.0 * factor * hourly_shape(hour) * dt_s;
+            let mut lost = draw;
             if let Some((from, to, kg_day)) = self.leak
                 && s.time_ms >= from
                 && s.time_ms < to
             {
-                draw += kg_day / 86_400.0 * dt_s;
+                lost += kg_day / 86_400.0 * dt_s;
             }
-            s.mass_kg = (s.mass_kg - draw).max(1.0);
+            s.mass_kg = (s.mass_kg - lost).max(1.0);
             let m_liquid = (s.mass_kg * s.liquid_fraction).max(1.0);
             s.liquid_h_j_kg += self.heat_w * dt_s / m_liquid;
             let sat = self
@@ -89,7 +90,10 @@ impl TankSim<'_> {
                 // the heat beyond saturation boils liquid away
                 let boiled = (s.liquid_h_j_kg - sat.liquid_enthalpy_j_kg) * m_liquid
                     / sat.latent_heat_j_kg();
-                s.mass_kg = (s.mass_kg - boiled).max(1.0);
+                // the economiser sends the boiled vapour down the customer's line first: it meets
+                // part of the draw (already taken), and only what exceeds the draw leaves by the
+                // relief valve
+                s.mass_kg = (s.mass_kg - (boiled - draw).max(0.0)).max(1.0);
                 s.liquid_h_j_kg = sat.liquid_enthalpy_j_kg;
             }
             // the pressure builder brings the pressure back to its set point (time constant 6 h)

@@ -9,7 +9,8 @@
 //! - the tank pressure sits in a control band and drops just after a top fill, recovering in hours;
 //! - the liquid is warmed by a heat leak Q = NER × full-tank liquid mass × latent heat / 1 day, with a
 //!   true NER that differs from the nameplate NER written to the tanks file, its enthalpy capped at
-//!   saturation at the tank pressure (beyond that the heat boils liquid away);
+//!   saturation at the tank pressure (beyond that the heat boils liquid away, and the economiser
+//!   sends that vapour to the customer first, so only what exceeds the draw is vented);
 //! - when a daily check finds the liquid below the reorder level a trailer comes the next day; the
 //!   delivered liquid (saturated at the trailer's pressure) mixes adiabatically, by enthalpy, with the
 //!   liquid left in the tank; the ticket bills the trailer meter's figure, with meter noise;
