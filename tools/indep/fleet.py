@@ -61,6 +61,7 @@ class Settings:
     gauge_static: bool = True  # small span/zero calibration errors within the accuracy class
     odd_units: bool = True  # a few tickets in lb or Nm3
     line_temp_swing_c: float = 0.0  # seasonal swing of the true sensing-line temperature
+    time_zones: bool = False  # write each site's time zone to tanks.csv (blank: UTC to the reader)
 
 
 # ---------------------------------------------------------------------------------------------
@@ -812,18 +813,26 @@ def _num(x: float, nd: int) -> str:
     return s
 
 
+def zone_name(offset_h: float) -> str:
+    """The IANA name of a fixed offset from UTC (whole hours): the Etc/GMT zones count west as
+    positive, so UTC+1 is Etc/GMT-1."""
+    h = int(round(offset_h))
+    return "Etc/GMT" if h == 0 else f"Etc/GMT{-h:+d}"
+
+
 def write_outputs(out_dir, cfg, sites, tanks, vehicles, fills, readings_rows, truth_rows, leak,
                   t_drift, t_step, t_unlogged, t0, t1, driver_share):
     with open(os.path.join(out_dir, "tanks.csv"), "w", newline="") as fh:
         w = csv.writer(fh)
         w.writerow(["site", "tank", "fluid", "orientation", "diameter_m", "length_m", "heads",
                     "line_temperature_c", "elevation_m", "dp_unit", "gauge_span", "gauge_accuracy_percent",
-                    "relief_pressure", "relief_pressure_unit", "reorder_percent", "ner_percent_per_day"])
+                    "relief_pressure", "relief_pressure_unit", "reorder_percent", "ner_percent_per_day",
+                    "time_zone"])
         for t in tanks:
             w.writerow([t.site.name, t.name, t.fluid, t.orientation, _num(t.diameter, 3), _num(t.length, 3),
                         t.heads, _num(t.line_c, 1), _num(t.site.elevation_m, 0), t.dp_unit, _num(t.span, 1),
                         _num(t.accuracy, 2), _num(t.relief_barg, 1), "barg", _num(t.reorder, 1),
-                        _num(t.ner_nameplate, 3)])
+                        _num(t.ner_nameplate, 3), zone_name(t.site.utc_offset_h) if cfg.time_zones else ""])
     rows = sorted(readings_rows, key=lambda r: (r[0], r[1]))
     with open(os.path.join(out_dir, "readings.csv"), "w", newline="") as fh:
         w = csv.writer(fh)
@@ -859,7 +868,7 @@ def write_outputs(out_dir, cfg, sites, tanks, vehicles, fills, readings_rows, tr
             "short_some_range": list(cfg.short_some), "short_some_share": cfg.short_some_share,
             "drift_per_year": cfg.drift_per_year, "step": cfg.step, "leak_fraction_range": list(cfg.leak_fraction),
             "leak_days": cfg.leak_days, "driver_share": driver_share, "gauge_static": cfg.gauge_static,
-            "odd_units": cfg.odd_units, "line_temp_swing_c": cfg.line_temp_swing_c,
+            "odd_units": cfg.odd_units, "line_temp_swing_c": cfg.line_temp_swing_c, "time_zones": cfg.time_zones,
         },
         "tanks": [{
             "tank": t.name, "site": t.site.name, "fluid": t.fluid, "orientation": t.orientation,
@@ -931,6 +940,8 @@ def add_fleet_args(ap):
     ap.add_argument("--no-gauge-static", action="store_true", help="no span/zero calibration errors")
     ap.add_argument("--kg-only", action="store_true", help="every ticket in kg")
     ap.add_argument("--line-temp-swing", type=float, default=0.0, help="seasonal swing (degC) of line temperature")
+    ap.add_argument("--time-zones", action="store_true",
+                    help="write each site's time zone to tanks.csv (default blank, read as UTC)")
 
 
 def settings_from(a, default_short_all: float = 0.015) -> Settings:
@@ -940,7 +951,7 @@ def settings_from(a, default_short_all: float = 0.015) -> Settings:
         short_all=a.short_all if a.short_all is not None else default_short_all,
         short_some=tuple(a.short_some), short_some_share=a.short_some_share,
         drift_per_year=a.drift, step=a.step, gauge_static=not a.no_gauge_static,
-        odd_units=not a.kg_only, line_temp_swing_c=a.line_temp_swing,
+        odd_units=not a.kg_only, line_temp_swing_c=a.line_temp_swing, time_zones=a.time_zones,
     )
 
 

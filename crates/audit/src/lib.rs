@@ -52,6 +52,7 @@
 //!     deliveries: vec![DeliveryInput { ticket: "K1".into(), vehicle: "V1".into(), carrier: "C".into(),
 //!         start_ms: h / 2, end_ms: h, billed_kg: arrived, supply_pressure_pa: Some(p),
 //!         meter_repeatability_percent: None }],
+//!     zone: units::Zone::UTC,
 //! };
 //! // liquid saturated at the tank pressure throughout (delivered at the tank pressure, no NER fit)
 //! let options = AuditOptions { fit_ner: false, ..AuditOptions::default() };
@@ -119,6 +120,9 @@ pub struct TankInput {
     pub readings: Vec<ReadingInput>,
     /// Deliveries, any order.
     pub deliveries: Vec<DeliveryInput>,
+    /// The site's clock: the use model's days, nights and weekends are the site's (UTC when the site
+    /// names no time zone).
+    pub zone: units::Zone,
 }
 
 /// One reading, SI.

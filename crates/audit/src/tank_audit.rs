@@ -294,5 +294,5 @@ pub(crate) fn use_model(ctx: &Ctx<'_>, intervals: &[Interval]) -> UseModel {
             lost_kg: iv.from_kg - iv.to_kg,
         })
         .collect();
-    UseModel::fit(&observed, ctx.full_mass_kg)
+    UseModel::fit(&observed, ctx.full_mass_kg, ctx.input.zone)
 }

@@ -92,5 +92,11 @@ pub fn tank_input(
         tank: engine,
         readings,
         deliveries,
+        // a zone the store holds was checked when it was written; an unreadable one counts as UTC
+        zone: t
+            .time_zone
+            .as_deref()
+            .and_then(|z| z.parse().ok())
+            .unwrap_or_default(),
     })
 }

@@ -38,12 +38,9 @@ impl Fleet {
             "ner_percent_per_day",
             "time_zone",
         ]);
-        // the demo's sites keep UK time (their readings are taken around 08:00-09:00 UTC, the
-        // morning round); numbered test fleets name no zone
-        let zone = match self.config.naming {
-            crate::fleet::Naming::Demo => "Europe/London",
-            crate::fleet::Naming::Numbered => "",
-        };
+        // the demo's sites keep UK time (their use follows it; their readings are taken around
+        // 08:00-09:00 UTC, the morning round); numbered test fleets name no zone
+        let zone = self.config.naming.zone_name();
         let mut sites = std::collections::BTreeSet::new();
         for t in &self.tanks {
             // the store keeps a site's elevation once: give it with the site's first tank only

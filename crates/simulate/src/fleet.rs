@@ -69,6 +69,24 @@ pub enum Naming {
     Demo,
 }
 
+impl Naming {
+    /// The time zone of the fleet's sites: the demo's keep UK time; numbered fleets name none (UTC).
+    pub fn zone(self) -> units::Zone {
+        match self {
+            Naming::Numbered => units::Zone::UTC,
+            Naming::Demo => units::Zone::LONDON,
+        }
+    }
+
+    /// The IANA name written to the tanks file ("" for none).
+    pub fn zone_name(self) -> &'static str {
+        match self {
+            Naming::Numbered => "",
+            Naming::Demo => "Europe/London",
+        }
+    }
+}
+
 /// How the fleet is built.
 #[derive(Debug, Clone, PartialEq)]
 pub struct FleetConfig {

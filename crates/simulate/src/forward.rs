@@ -37,6 +37,8 @@ pub(crate) struct TankSim<'a> {
     pub(crate) span_drift_per_ms: f64,
     pub(crate) zero_offset_pa: f64,
     pub(crate) start_ms: i64,
+    /// The site's clock: use follows the customer's hours and days on it.
+    pub(crate) zone: units::Zone,
 }
 
 impl TankSim<'_> {
@@ -67,7 +69,8 @@ impl TankSim<'_> {
             let next = ((s.time_ms / HOUR_MS) + 1) * HOUR_MS;
             let step_end = next.min(to_ms);
             let dt_s = (step_end - s.time_ms) as f64 / 1000.0;
-            let rel = s.time_ms - self.start_ms;
+            // the customer's day and hour on the site's clock
+            let rel = s.time_ms + self.zone.offset_ms(s.time_ms) - self.start_ms;
             let day = usize::try_from(rel.div_euclid(DAY_MS)).unwrap_or(0);
             let hour = rel.rem_euclid(DAY_MS) / HOUR_MS;
             let factor = self.day_factor.get(day).copied().unwrap_or(1.0);
@@ -266,6 +269,7 @@ pub(crate) fn simulate_tank(
             span_drift_per_ms,
             zero_offset_pa,
             start_ms: cfg.start_ms,
+            zone: cfg.naming.zone(),
         };
         // start half full, the liquid part-way between supply and tank saturation
         let supply_pa = supply_pressure_pa(t.fluid, &mut rng);

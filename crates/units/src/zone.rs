@@ -76,6 +76,8 @@ impl Default for Zone {
 impl Zone {
     /// Coordinated Universal Time.
     pub const UTC: Zone = Zone(chrono_tz::UTC);
+    /// UK time (GMT in winter, BST in summer).
+    pub const LONDON: Zone = Zone(chrono_tz::Europe::London);
 
     /// The IANA name.
     pub fn name(&self) -> &'static str {
@@ -101,6 +103,12 @@ impl Zone {
                 t.minute()
             )
         })
+    }
+
+    /// The zone's offset from UTC at an instant, ms (the site's clock shows UTC plus this).
+    pub fn offset_ms(&self, ms: i64) -> i64 {
+        self.at(ms)
+            .map_or(0, |t| i64::from(t.offset().fix().local_minus_utc()) * 1000)
     }
 
     /// The day as the site's calendar shows it: `YYYY-MM-DD`.
@@ -194,6 +202,20 @@ mod tests {
         assert_eq!(second, Ok(1_792_891_800_000));
         assert_eq!(z.text(1_792_888_200_000), "2026-10-25 01:30 BST");
         assert_eq!(z.text(1_792_891_800_000), "2026-10-25 01:30 GMT");
+    }
+
+    #[test]
+    fn offsets_follow_the_zone_and_its_season() {
+        // IANA time zone database: Chicago is UTC−6 in January and UTC−5 (daylight saving) in July;
+        // the POSIX-style Etc/GMT+6 is UTC−6 all year (its sign is inverted by convention)
+        let chicago: Zone = "America/Chicago".parse().unwrap();
+        let jan = 1_768_478_400_000; // 2026-01-15T12:00:00Z
+        let jul = 1_784_116_800_000; // 2026-07-15T12:00:00Z
+        assert_eq!(chicago.offset_ms(jan), -6 * 3_600_000);
+        assert_eq!(chicago.offset_ms(jul), -5 * 3_600_000);
+        let fixed: Zone = "Etc/GMT+6".parse().unwrap();
+        assert_eq!(fixed.offset_ms(jul), -6 * 3_600_000);
+        assert_eq!(Zone::UTC.offset_ms(jan), 0);
     }
 
     #[test]
