@@ -393,25 +393,30 @@ mod tests {
                 40.0
             }
         };
-        // read at 09:00 and 15:00 on alternate days, so that day and night and the two parts of
-        // the variance can be told apart
-        let times: Vec<i64> = (0..56)
-            .map(|d| monday + d * DAY_MS + if d % 2 == 0 { 9 } else { 15 } * HOUR_MS)
-            .collect();
-        let observed: Vec<Observed> = times
-            .windows(2)
-            .map(|w| Observed {
-                from_ms: w[0],
-                to_ms: w[1],
-                lost_kg: (w[0]..w[1]).step_by(HOUR_MS as usize).map(rate).sum(),
-            })
-            .collect();
+        let observed = alternate_reads(monday, rate);
         let model = UseModel::fit(&observed, 20_000.0, Zone::UTC);
         let sat = monday + 5 * DAY_MS + 9 * HOUR_MS;
         let (sat_sun, _) = model.predict(sat, sat + DAY_MS).unwrap();
         assert!((sat_sun - 318.0).abs() < 0.02 * 318.0, "{sat_sun}");
         let (sun_mon, _) = model.predict(sat + DAY_MS, sat + 2 * DAY_MS).unwrap();
         assert!((sun_mon - 390.0).abs() < 0.02 * 390.0, "{sun_mon}");
+    }
+
+    /// Eight weeks of readings from `start`, at 09:00 and 15:00 on alternate days (so that day and
+    /// night and the two parts of the variance can be told apart), each interval losing what the
+    /// hourly `rate` gives (exact, no noise).
+    fn alternate_reads(start: i64, rate: impl Fn(i64) -> f64) -> Vec<Observed> {
+        let times: Vec<i64> = (0..56)
+            .map(|d| start + d * DAY_MS + if d % 2 == 0 { 9 } else { 15 } * HOUR_MS)
+            .collect();
+        times
+            .windows(2)
+            .map(|w| Observed {
+                from_ms: w[0],
+                to_ms: w[1],
+                lost_kg: (w[0]..w[1]).step_by(HOUR_MS as usize).map(&rate).sum(),
+            })
+            .collect()
     }
 
     /// A plant on UTC−6 (Etc/GMT+6) that draws 40 kg/h from 06:00 to 18:00 on its own clock and
@@ -428,17 +433,7 @@ mod tests {
             let h = block_hours(t - off, t - off + HOUR_MS);
             if h[0] + h[2] + h[4] > 0.0 { 40.0 } else { 4.0 }
         };
-        let times: Vec<i64> = (0..56)
-            .map(|d| monday + off + d * DAY_MS + if d % 2 == 0 { 9 } else { 15 } * HOUR_MS)
-            .collect();
-        let observed: Vec<Observed> = times
-            .windows(2)
-            .map(|w| Observed {
-                from_ms: w[0],
-                to_ms: w[1],
-                lost_kg: (w[0]..w[1]).step_by(HOUR_MS as usize).map(rate).sum(),
-            })
-            .collect();
+        let observed = alternate_reads(monday + off, rate);
         let tuesday_06_local = monday + DAY_MS + 6 * HOUR_MS + off;
         let day = |z: Zone| {
             UseModel::fit(&observed, 20_000.0, z)
