@@ -35,25 +35,24 @@ pub fn write_demo(db: &Location) -> Result<ImportSummary> {
     write_demo_dated(db, true)
 }
 
-/// The demo's CSV texts with every time moved by whole weeks so that the latest reading falls within
-/// the seven days before `now_ms` (times of day and weekdays kept; UTC): nothing in the demo lies in
-/// the future, and its customers' weekends stay on Saturdays and Sundays, where their use model
-/// looks for them.
+/// The demo's CSV texts with every time moved forward by whole weeks until the scenario reaches the
+/// day of `now_ms`, and what would then lie after `now_ms` left out (a reading, or a fill not ended
+/// by then): the latest readings are from the last day (the scenario is read daily), nothing lies in
+/// the future, and the customers' weekends stay on Saturdays and Sundays, where their use model
+/// looks for them (times of day kept; UTC).
 pub fn moved_to(now_ms: i64) -> Result<(String, String)> {
-    let day_ms = 86_400_000_i64;
+    let week_ms = 7 * 86_400_000_i64;
     let mut times = read_times(READINGS_CSV, &["time"])?;
     times.extend(read_times(DELIVERIES_CSV, &["start", "end"])?);
     let latest = times
         .into_iter()
         .max()
         .context("the demo has no readings")?;
-    let mut shift_days = (now_ms.div_euclid(day_ms) - latest.div_euclid(day_ms)).div_euclid(7) * 7;
-    while latest + shift_days * day_ms > now_ms {
-        shift_days -= 7;
-    }
+    // the fewest whole weeks that bring the scenario's last instant to now or past it
+    let weeks = (now_ms - latest + week_ms - 1).div_euclid(week_ms);
     Ok((
-        shift_times(READINGS_CSV, &["time"], shift_days)?,
-        shift_times(DELIVERIES_CSV, &["start", "end"], shift_days)?,
+        shift_times(READINGS_CSV, &["time"], weeks * 7, now_ms)?,
+        shift_times(DELIVERIES_CSV, &["start", "end"], weeks * 7, now_ms)?,
     ))
 }
 
@@ -86,8 +85,9 @@ fn read_times(text: &str, columns: &[&str]) -> Result<Vec<i64>> {
     Ok(out)
 }
 
-/// The CSV text with the named columns' times moved by whole days (RFC 3339 in UTC, seconds).
-fn shift_times(text: &str, columns: &[&str], days: i64) -> Result<String> {
+/// The CSV text with the named columns' times moved by whole days (RFC 3339 in UTC, seconds), rows
+/// with a moved time after `until_ms` left out.
+fn shift_times(text: &str, columns: &[&str], days: i64, until_ms: i64) -> Result<String> {
     let mut r = csv::Reader::from_reader(text.as_bytes());
     let header = r.headers()?.clone();
     let idx = column_indexes(&header, columns);
@@ -96,15 +96,19 @@ fn shift_times(text: &str, columns: &[&str], days: i64) -> Result<String> {
     for row in r.records() {
         let row = row?;
         let mut out: Vec<String> = row.iter().map(str::to_owned).collect();
+        let mut after = false;
         for &i in &idx {
             if let Some(cell) = out.get_mut(i) {
                 let t = parse_time(cell)? + chrono::Duration::days(days);
+                after |= t.timestamp_millis() > until_ms;
                 *cell = t
                     .with_timezone(&chrono::Utc)
                     .to_rfc3339_opts(chrono::SecondsFormat::Secs, true);
             }
         }
-        w.write_record(&out)?;
+        if !after {
+            w.write_record(&out)?;
+        }
     }
     String::from_utf8(w.into_inner().context("writing the demo CSV")?)
         .context("the demo CSV is not UTF-8")

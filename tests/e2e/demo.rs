@@ -18,6 +18,11 @@ fn demo_writes_once() {
 
 /// The latest reading of an export: its time as written (RFC 3339).
 fn latest_reading(db: &std::path::Path) -> String {
+    reading_time(db, true)
+}
+
+/// The latest (or earliest) reading time of an export (RFC 3339 in UTC).
+fn reading_time(db: &std::path::Path, latest: bool) -> String {
     let out = bin()
         .args(["export", "--what", "readings", "--db"])
         .arg(db)
@@ -32,21 +37,20 @@ fn latest_reading(db: &std::path::Path) -> String {
         .iter()
         .position(|h| h == "time")
         .unwrap();
-    r.records()
-        .map(|x| {
-            chrono::DateTime::parse_from_rfc3339(&x.unwrap()[col])
-                .unwrap()
-                .to_utc()
-                .to_rfc3339_opts(chrono::SecondsFormat::Secs, true)
-        })
-        .max()
-        .unwrap()
+    let times = r.records().map(|x| {
+        chrono::DateTime::parse_from_rfc3339(&x.unwrap()[col])
+            .unwrap()
+            .to_utc()
+            .to_rfc3339_opts(chrono::SecondsFormat::Secs, true)
+    });
+    if latest { times.max() } else { times.min() }.unwrap()
 }
 
-/// A new user's demo is alive: its dates are moved by whole weeks (weekdays kept) so that the latest
-/// reading is from the last seven days and none is in the future (UTC); `--keep-dates` keeps the
-/// scenario's own (its last reading day is 2026-11-30, a Monday, demo-data/readings.csv). The clock is
-/// read before and after the run.
+/// A new user's demo is alive: its dates are moved forward by whole weeks (weekdays kept: its first
+/// reading, 2026-01-01 in demo-data/readings.csv, a Thursday, stays on a Thursday) so that the latest
+/// reading is from the last 24 hours, and what would fall after now is left out (UTC); `--keep-dates`
+/// keeps the scenario's own (its last reading day is 2026-11-30). The clock is read before and after
+/// the run.
 #[test]
 fn demo_dates_end_today_unless_kept() {
     let dir = tempfile::tempdir().unwrap();
@@ -58,14 +62,16 @@ fn demo_dates_end_today_unless_kept() {
         .to_utc();
     assert!(latest <= after, "{latest} is after {after}");
     assert!(
-        latest > before - chrono::Duration::days(7),
-        "{latest} is more than a week before {before}"
+        latest > before - chrono::Duration::hours(24),
+        "{latest} is more than a day before {before}"
     );
-    // whole weeks: the scenario's last reading day, a Monday (2026-11-30), is still a Monday
+    let earliest = chrono::DateTime::parse_from_rfc3339(&reading_time(&db, false))
+        .unwrap()
+        .to_utc();
     assert_eq!(
-        chrono::Datelike::weekday(&latest),
-        chrono::Weekday::Mon,
-        "{latest}"
+        chrono::Datelike::weekday(&earliest),
+        chrono::Weekday::Thu,
+        "{earliest}"
     );
     // nor any delivery
     let out = bin()
