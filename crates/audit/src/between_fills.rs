@@ -1,7 +1,7 @@
 //! Between fills: gains no ticket explains, losses beyond use, and the forecast of the next fill.
 
 use crate::balance::fmt_kg;
-use crate::loss_scan::{LEVEL_SIDE_MS, scan, standing, winsorize};
+use crate::loss_scan::{LEVEL_SIDE_MS, Sums, scan, standing, winsorize};
 use crate::records::*;
 use crate::tank_audit::*;
 use crate::thermal::*;
@@ -72,8 +72,9 @@ pub(crate) fn findings(
     }
     // one reading's slip or one busy day is a single interval, not a run
     winsorize(&mut judged);
+    let sums = Sums::new(&judged);
     let runs: Vec<(usize, usize)> = merge_runs(
-        scan(&judged, opts.leak_scan_z)
+        scan(&sums, &judged, opts.leak_scan_z)
             .into_iter()
             .map(|h| (h.0, h.1))
             .collect(),
@@ -89,7 +90,7 @@ pub(crate) fn findings(
         let days = part.iter().map(|p| (p.1 - p.0) as f64).sum::<f64>() / (DAY_S * 1000.0);
         let usage = level * part.iter().map(|p| p.4).sum::<f64>() / part.len() as f64;
         let rate = excess / days.max(1e-9);
-        let stands = standing(&judged, (first, last)).is_some_and(|(z, share)| {
+        let stands = standing(&sums, &judged, (first, last)).is_some_and(|(z, share)| {
             z >= opts.leak_standing_z && share >= opts.leak_min_rate_fraction
         });
         if excess >= opts.leak_min_fraction * ctx.full_mass_kg && stands {

@@ -195,12 +195,10 @@ fn swing(
 /// The windows whose loss beyond use stands `z_crit` or more robust standard deviations above
 /// this tank's windows of their length: where such windows overlap (a leak alarms windows of
 /// several lengths and starts), the one standing highest, as (first, last, z).
-pub(crate) fn scan(judged: &[Judged], z_crit: f64) -> Vec<Window> {
-    let sums = Sums::new(judged);
+pub(crate) fn scan(sums: &Sums, judged: &[Judged], z_crit: f64) -> Vec<Window> {
     let mut hits: Vec<Window> = Vec::new();
     for days in SCAN_DAYS {
-        let Some((centre, sd, w)) =
-            swing(&sums, judged, days * DAY_MS, Measure::Model, |_, _| true)
+        let Some((centre, sd, w)) = swing(sums, judged, days * DAY_MS, Measure::Model, |_, _| true)
         else {
             continue;
         };
@@ -236,8 +234,7 @@ pub(crate) fn scan(judged: &[Judged], z_crit: f64) -> Vec<Window> {
 /// lower of the two sides (a leak starts and stops, so its loss stands above the use both before
 /// and after it; a swing of use that ends in a shutdown stands above only the shutdown). One side
 /// only where the other has no neighbours; None when neither can be judged.
-pub(crate) fn standing(judged: &[Judged], run: (usize, usize)) -> Option<(f64, f64)> {
-    let sums = Sums::new(judged);
+pub(crate) fn standing(sums: &Sums, judged: &[Judged], run: (usize, usize)) -> Option<(f64, f64)> {
     let span = judged[run.1].1 - judged[run.0].0;
     let expected = Sums::sum(&sums.expected, run.0, run.1 + 1);
     let mut out: Option<(f64, f64)> = None;
@@ -246,7 +243,7 @@ pub(crate) fn standing(judged: &[Judged], run: (usize, usize)) -> Option<(f64, f
             continue;
         };
         let excess = sums.excess_at(run.0, run.1, level);
-        let Some((centre, sd, _)) = swing(&sums, judged, span, Measure::Level(side), |i, k| {
+        let Some((centre, sd, _)) = swing(sums, judged, span, Measure::Level(side), |i, k| {
             i > run.1 || k < run.0
         }) else {
             continue;
@@ -318,14 +315,15 @@ mod tests {
     fn a_ten_day_leak_is_found_and_dated() {
         let e = noise(200);
         let quiet: Vec<Judged> = (0..200).map(|d| day(d, 100.0 + e[d as usize])).collect();
-        assert_eq!(scan(&quiet, 4.5), vec![]);
+        assert_eq!(scan(&Sums::new(&quiet), &quiet, 4.5), vec![]);
         let leaking: Vec<Judged> = (0..200)
             .map(|d| {
                 let leak = if (100..110).contains(&d) { 40.0 } else { 0.0 };
                 day(d, 100.0 + e[d as usize] + leak)
             })
             .collect();
-        let found = scan(&leaking, 4.5);
+        let sums = Sums::new(&leaking);
+        let found = scan(&sums, &leaking, 4.5);
         assert_eq!(found.len(), 1, "{found:?}");
         let (first, last, z) = found[0];
         assert!(
@@ -333,7 +331,7 @@ mod tests {
             "{found:?}"
         );
         assert!(z > 10.0, "{found:?}");
-        let (stands, share) = standing(&leaking, (first, last)).unwrap();
+        let (stands, share) = standing(&sums, &leaking, (first, last)).unwrap();
         assert!(stands > 10.0, "{stands}");
         assert!((share - 0.4).abs() < 0.05, "{share}");
     }
@@ -355,7 +353,7 @@ mod tests {
                 day(d, lost + wobble)
             })
             .collect();
-        let (_, share) = standing(&judged, (100, 113)).unwrap();
+        let (_, share) = standing(&Sums::new(&judged), &judged, (100, 113)).unwrap();
         assert!((share - 0.1).abs() < 0.002, "{share}");
     }
 }
