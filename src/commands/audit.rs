@@ -45,6 +45,10 @@ pub struct AuditArgs {
     /// Coverage factor k of the verdicts
     #[arg(long, default_value_t = 2.0, value_name = "K")]
     pub coverage_factor: f64,
+    /// Coverage factor of the short and excess verdicts of a vehicle the fleet test clears (no
+    /// bias found across its fills); equal to --coverage-factor judges every fill alike
+    #[arg(long, default_value_t = 2.5, value_name = "K")]
+    pub cleared_coverage_factor: f64,
     /// Smallest residual that can make a fill short or excess, % of billed
     #[arg(long, default_value_t = 1.0, value_name = "PERCENT")]
     pub materiality_percent: f64,
@@ -69,7 +73,7 @@ pub struct AuditArgs {
     #[arg(long)]
     pub no_gauge_scale: bool,
     /// Judge every fill on its own balance only: a fill of a vehicle found biased is not also
-    /// judged with that vehicle's other fills
+    /// judged with that vehicle's other fills, nor a cleared vehicle's at the wider factor
     #[arg(long)]
     pub own_balance_only: bool,
     /// Worker threads (default: the machine's cores)
@@ -97,6 +101,11 @@ fn options(a: &AuditArgs) -> AuditOptions {
         calibrate_gauges: !a.no_gauge_scale,
         judge_with_vehicle: !a.own_balance_only,
         coverage_factor: a.coverage_factor,
+        cleared_coverage_factor: if a.own_balance_only {
+            a.coverage_factor
+        } else {
+            a.cleared_coverage_factor
+        },
         materiality_fraction: a.materiality_percent / 100.0,
         meter_repeatability_percent: a.meter_repeatability_percent,
         legal_tolerance: a.legal_tolerance_percent / 100.0,

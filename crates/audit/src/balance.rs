@@ -260,6 +260,8 @@ fn with_vehicle_sentence(
 /// Decide the verdict and write the explanation (also used when a drift note is added).
 pub(crate) fn set_verdict(b: &mut Balance, opts: &AuditOptions) {
     let k = b.coverage_factor;
+    // whether the balance can judge the fill at all does not depend on its vehicle's record
+    let base_k = opts.coverage_factor.min(k);
     let bracket = match (b.before_hours, b.after_hours) {
         (Some(bh), Some(ah)) if bh.max(ah) <= 2.0 => "the readings taken at the fill".to_owned(),
         (Some(bh), Some(ah)) => {
@@ -323,11 +325,11 @@ pub(crate) fn set_verdict(b: &mut Balance, opts: &AuditOptions) {
                 100.0 * opts.materiality_fraction
             ),
         )
-    } else if k * b.sigma_kg > opts.inconclusive_fraction * b.billed_kg.abs() {
+    } else if base_k * b.sigma_kg > opts.inconclusive_fraction * b.billed_kg.abs() {
         (
             Verdict::Inconclusive,
             format!(
-                "Inconclusive: {numbers}, leaving {} kg ({:.1} % of the ticket), but k = {k} times the standard uncertainty {} kg exceeds {:.1} % of the ticket, too wide to judge.",
+                "Inconclusive: {numbers}, leaving {} kg ({:.1} % of the ticket), but k = {base_k} times the standard uncertainty {} kg exceeds {:.1} % of the ticket, too wide to judge.",
                 fmt_kg(b.residual_kg),
                 b.residual_percent,
                 fmt_kg(b.sigma_kg),
@@ -355,6 +357,16 @@ pub(crate) fn set_verdict(b: &mut Balance, opts: &AuditOptions) {
     {
         b.verdict = Verdict::Short;
         b.explanation = with_vehicle_sentence(b, &e, opts);
+    }
+    if k > opts.coverage_factor
+        && matches!(
+            b.verdict,
+            Verdict::Short | Verdict::Consistent | Verdict::Excess
+        )
+    {
+        b.explanation.push_str(&format!(
+            " Its vehicle's fills as a whole show no bias, so each of them is judged at the wider k = {k}."
+        ));
     }
     let followed = if b.gauge_scale.is_some() {
         "its scale at this fill is fitted from the fills around it"

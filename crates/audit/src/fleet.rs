@@ -317,6 +317,11 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
     if opts.judge_with_vehicle {
         crate::with_vehicle::apply(&mut tanks, &mut vehicles, opts);
     }
+    crate::vehicles::judge_cleared(
+        tanks.iter_mut().flat_map(|t| t.balances.iter_mut()),
+        &mut vehicles,
+        opts,
+    );
 
     let mut fills = Vec::new();
     let mut findings = Vec::new();

@@ -20,8 +20,9 @@ use statrs::distribution::{Binomial, DiscreteCDF};
 
 use crate::AuditOptions;
 use crate::Verdict;
+use crate::balance::rejudge;
 use crate::effects::{Effects, Row, groups};
-use crate::records::TankAudit;
+use crate::records::{Balance, TankAudit};
 use crate::stats::{holm_adjust, median, t_critical, t_two_sided_p};
 
 /// Vehicle status.
@@ -271,6 +272,41 @@ pub(crate) fn test(
     vehicles
 }
 
+/// The fills of every vehicle the test cleared (status ok) judged at the wider coverage factor
+/// (see [`AuditOptions::cleared_coverage_factor`]); the vehicles' counts of verdicts and of short
+/// fills then follow the fills (the short-count test was run on the counts at the base factor).
+pub(crate) fn judge_cleared<'a>(
+    balances: impl Iterator<Item = &'a mut Balance>,
+    vehicles: &mut [VehicleFinding],
+    opts: &AuditOptions,
+) {
+    let k = opts.cleared_coverage_factor;
+    if k.is_nan() || k <= opts.coverage_factor {
+        return;
+    }
+    let cleared: BTreeMap<&str, usize> = vehicles
+        .iter()
+        .enumerate()
+        .filter(|(_, v)| v.status == VehicleStatus::Ok)
+        .map(|(i, v)| (v.vehicle.as_str(), i))
+        .collect();
+    let mut counts: BTreeMap<usize, BTreeMap<Verdict, usize>> = BTreeMap::new();
+    for b in balances {
+        let Some(&vi) = cleared.get(b.vehicle.as_str()) else {
+            continue;
+        };
+        b.coverage_factor = k;
+        rejudge(b, opts);
+        *counts.entry(vi).or_default().entry(b.verdict).or_default() += 1;
+    }
+    for (vi, c) in counts {
+        if let Some(v) = vehicles.get_mut(vi) {
+            v.short_fills = c.get(&Verdict::Short).copied().unwrap_or(0);
+            v.verdicts = c;
+        }
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -282,6 +318,140 @@ mod tests {
         assert!((binomial_upper(2, 3, 0.5) - 0.5).abs() < 1e-12);
         assert!((binomial_upper(3, 3, 0.5) - 0.125).abs() < 1e-12);
         assert_eq!(binomial_upper(0, 3, 0.5), 1.0);
+    }
+
+    /// A balance with the given residual and standard uncertainty (kg) on a 10 t ticket.
+    fn balance(vehicle: &str, residual_kg: f64, sigma_kg: f64) -> Balance {
+        let mut b = Balance {
+            ticket: format!("{vehicle}-{residual_kg}"),
+            tank: "T".into(),
+            vehicle: vehicle.into(),
+            carrier: "C".into(),
+            start_ms: 0,
+            end_ms: 0,
+            verdict: Verdict::Inconclusive,
+            billed_kg: 10_000.0,
+            gained_kg: 10_000.0 - residual_kg,
+            drawn_kg: 0.0,
+            residual_kg,
+            residual_percent: residual_kg / 100.0,
+            sigma_kg: 0.0,
+            sigma_readings_shared_kg: 0.0,
+            sigma_readings_independent_kg: sigma_kg,
+            sigma_usage_kg: 0.0,
+            sigma_meter_kg: 0.0,
+            coverage_factor: 2.0,
+            limit_kg: 0.0,
+            inconclusive_limit_percent: 5.0,
+            ratio: 1.0 - residual_kg / 10_000.0,
+            usage_kg_per_day: 0.0,
+            before: None,
+            after: None,
+            bracket_window_h: 744.0,
+            before_hours: Some(1.0),
+            after_hours: Some(1.0),
+            other_fills_kg: 0.0,
+            sigma_other_tickets_kg: 0.0,
+            meter_percent: 0.5,
+            usage_share_percent: None,
+            gauge_drift_percent_per_year: None,
+            gauge_step: None,
+            gauge_scale: None,
+            sigma_gauge_scale_kg: 0.0,
+            with_vehicle: None,
+            explanation: String::new(),
+        };
+        rejudge(&mut b, &AuditOptions::default());
+        b
+    }
+
+    fn finding(vehicle: &str, status: VehicleStatus) -> VehicleFinding {
+        VehicleFinding {
+            vehicle: vehicle.into(),
+            carrier: "C".into(),
+            status,
+            fills: 0,
+            bias_percent: None,
+            ci95_low_percent: None,
+            ci95_high_percent: None,
+            p_value: None,
+            p_adjusted: None,
+            legal_tolerance_percent: 1.5,
+            exceeds_legal_tolerance: false,
+            ci_beyond_legal_tolerance: false,
+            verdicts: BTreeMap::new(),
+            short_fills: 0,
+            short_with_vehicle: 0,
+            short_rate_expected: 0.0,
+            short_count_p_value: None,
+            test: VEHICLE_TEST,
+            adjusted: Vec::new(),
+        }
+    }
+
+    /// With σ = 100 kg on a 10 t ticket, a residual of 230 kg is 2.3 σ: short at k = 2, consistent
+    /// at k = 2.5 (limit 250 kg); 300 kg (3 σ) is short at either. A vehicle cleared by the fleet
+    /// test is judged at 2.5, one found biased (or not tested) at 2; an inconclusive balance
+    /// (σ = 300 kg: 2 σ = 6 % > 5 %) stays inconclusive whatever the factor (the limits worked by
+    /// hand).
+    #[test]
+    fn a_cleared_vehicle_s_fills_are_judged_at_the_wider_factor() {
+        let opts = AuditOptions::default();
+        let mut fills = [
+            balance("OK", 230.0, 100.0),
+            balance("OK", 300.0, 100.0),
+            balance("OK", -230.0, 100.0),
+            balance("OK", 100.0, 300.0),
+            balance("BIASED", 230.0, 100.0),
+            balance("FEW", 230.0, 100.0),
+        ];
+        let before: Vec<Verdict> = fills.iter().map(|b| b.verdict).collect();
+        assert_eq!(
+            before,
+            [
+                Verdict::Short,
+                Verdict::Short,
+                Verdict::Excess,
+                Verdict::Inconclusive,
+                Verdict::Short,
+                Verdict::Short
+            ]
+        );
+        let mut vehicles = vec![
+            finding("OK", VehicleStatus::Ok),
+            finding("BIASED", VehicleStatus::Biased),
+            finding("FEW", VehicleStatus::NotEnoughData),
+        ];
+        judge_cleared(fills.iter_mut(), &mut vehicles, &opts);
+        let after: Vec<Verdict> = fills.iter().map(|b| b.verdict).collect();
+        assert_eq!(
+            after,
+            [
+                Verdict::Consistent,
+                Verdict::Short,
+                Verdict::Consistent,
+                Verdict::Inconclusive,
+                Verdict::Short,
+                Verdict::Short
+            ]
+        );
+        assert!(
+            (fills[0].limit_kg - 250.0).abs() < 1e-9,
+            "{}",
+            fills[0].limit_kg
+        );
+        assert!(fills[0].explanation.contains("judged at the wider k = 2.5"));
+        // the cleared vehicle's counts follow its fills
+        assert_eq!(vehicles[0].short_fills, 1);
+        assert_eq!(vehicles[0].verdicts.get(&Verdict::Consistent), Some(&2));
+        // equal factors judge every fill alike
+        let same = AuditOptions {
+            cleared_coverage_factor: 2.0,
+            ..AuditOptions::default()
+        };
+        let mut one = [balance("OK", 230.0, 100.0)];
+        judge_cleared(one.iter_mut(), &mut vehicles, &same);
+        assert_eq!(one[0].verdict, Verdict::Short);
     }
 
     /// 1 − Φ(2) = 0.0227501 (Abramowitz and Stegun, table 26.1).

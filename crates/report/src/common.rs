@@ -100,6 +100,14 @@ pub(crate) fn data_section(
             Cell::n("coverage_factor", Figure::Factor, o.coverage_factor),
         ));
         rows.push((
+            "Coverage factor k, fills of a vehicle the fleet test clears",
+            Cell::n(
+                "cleared_coverage_factor",
+                Figure::Factor,
+                o.cleared_coverage_factor,
+            ),
+        ));
+        rows.push((
             "Materiality, % of billed",
             Cell::n(
                 "materiality_percent",
