@@ -81,19 +81,12 @@ pub(crate) fn fmt_kg(x: f64) -> String {
     format!("{:.0}", x)
 }
 
-pub(crate) fn balance(
-    ctx: &Ctx<'_>,
-    d: &DeliveryInput,
-    (b, a): (Option<usize>, Option<usize>),
-    evals: &[Option<Eval>],
-    model: &UseModel,
-) -> Balance {
-    let opts = ctx.opts;
-    let k = opts.coverage_factor;
-    let window_h = opts.bracket_window_s / 3600.0;
-    let mut out = Balance {
+/// The balance of delivery `d` at `tank` before any reading is read: nothing gained or drawn, no
+/// uncertainty yet, inconclusive.
+pub(crate) fn unjudged(d: &DeliveryInput, tank: &str, opts: &AuditOptions) -> Balance {
+    Balance {
         ticket: d.ticket.clone(),
-        tank: ctx.input.name.clone(),
+        tank: tank.to_owned(),
         vehicle: d.vehicle.clone(),
         carrier: d.carrier.clone(),
         start_ms: d.start_ms,
@@ -109,14 +102,14 @@ pub(crate) fn balance(
         sigma_readings_independent_kg: 0.0,
         sigma_usage_kg: 0.0,
         sigma_meter_kg: 0.0,
-        coverage_factor: k,
+        coverage_factor: opts.coverage_factor,
         limit_kg: 0.0,
         inconclusive_limit_percent: 100.0 * opts.inconclusive_fraction,
         ratio: f64::NAN,
         usage_kg_per_day: 0.0,
         before: None,
         after: None,
-        bracket_window_h: window_h,
+        bracket_window_h: opts.bracket_window_s / 3600.0,
         before_hours: None,
         after_hours: None,
         other_fills_kg: 0.0,
@@ -131,7 +124,20 @@ pub(crate) fn balance(
         sigma_gauge_scale_kg: 0.0,
         with_vehicle: None,
         explanation: String::new(),
-    };
+    }
+}
+
+pub(crate) fn balance(
+    ctx: &Ctx<'_>,
+    d: &DeliveryInput,
+    (b, a): (Option<usize>, Option<usize>),
+    evals: &[Option<Eval>],
+    model: &UseModel,
+) -> Balance {
+    let opts = ctx.opts;
+    let k = opts.coverage_factor;
+    let window_h = opts.bracket_window_s / 3600.0;
+    let mut out = unjudged(d, &ctx.input.name, opts);
     let eb = b.and_then(|i| evals.get(i).copied().flatten().map(|e| (i, e)));
     let ea = a.and_then(|i| evals.get(i).copied().flatten().map(|e| (i, e)));
     let (Some((ib, eb)), Some((ia, ea))) = (eb, ea) else {

@@ -322,45 +322,25 @@ mod tests {
 
     /// A balance with the given residual and standard uncertainty (kg) on a 10 t ticket.
     fn balance(vehicle: &str, residual_kg: f64, sigma_kg: f64) -> Balance {
-        let mut b = Balance {
+        let d = crate::DeliveryInput {
             ticket: format!("{vehicle}-{residual_kg}"),
-            tank: "T".into(),
             vehicle: vehicle.into(),
             carrier: "C".into(),
             start_ms: 0,
             end_ms: 0,
-            verdict: Verdict::Inconclusive,
             billed_kg: 10_000.0,
-            gained_kg: 10_000.0 - residual_kg,
-            drawn_kg: 0.0,
-            residual_kg,
-            residual_percent: residual_kg / 100.0,
-            sigma_kg: 0.0,
-            sigma_readings_shared_kg: 0.0,
-            sigma_readings_independent_kg: sigma_kg,
-            sigma_usage_kg: 0.0,
-            sigma_meter_kg: 0.0,
-            coverage_factor: 2.0,
-            limit_kg: 0.0,
-            inconclusive_limit_percent: 5.0,
-            ratio: 1.0 - residual_kg / 10_000.0,
-            usage_kg_per_day: 0.0,
-            before: None,
-            after: None,
-            bracket_window_h: 744.0,
-            before_hours: Some(1.0),
-            after_hours: Some(1.0),
-            other_fills_kg: 0.0,
-            sigma_other_tickets_kg: 0.0,
-            meter_percent: 0.5,
-            usage_share_percent: None,
-            gauge_drift_percent_per_year: None,
-            gauge_step: None,
-            gauge_scale: None,
-            sigma_gauge_scale_kg: 0.0,
-            with_vehicle: None,
-            explanation: String::new(),
+            supply_pressure_pa: None,
+            meter_repeatability_percent: None,
         };
+        let opts = AuditOptions::default();
+        let mut b = crate::balance::unjudged(&d, "T", &opts);
+        b.gained_kg = 10_000.0 - residual_kg;
+        b.residual_kg = residual_kg;
+        b.residual_percent = residual_kg / 100.0;
+        b.sigma_readings_independent_kg = sigma_kg;
+        b.ratio = 1.0 - residual_kg / 10_000.0;
+        b.before_hours = Some(1.0);
+        b.after_hours = Some(1.0);
         rejudge(&mut b, &AuditOptions::default());
         b
     }
