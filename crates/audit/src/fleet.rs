@@ -126,9 +126,11 @@ fn drop_losses_at_step(findings: &mut Vec<Finding>, at_ms: i64) {
 pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
     let mut tanks = tanks;
     tanks.sort_by(|a, b| a.tank.cmp(&b.tank));
-    if opts.type_a {
-        crate::precision::refine(&mut tanks, opts);
-    }
+    let spread = if opts.type_a {
+        crate::precision::refine(&mut tanks, opts)
+    } else {
+        BTreeMap::new()
+    };
     let mut vehicle_names: Vec<(String, String)> = tanks
         .iter()
         .flat_map(|t| {
@@ -161,6 +163,15 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
         })
         .collect();
     let plain: Vec<Row> = rows.iter().map(|r| (r.0, r.1, r.2)).collect();
+    // a fill of a vehicle short on only some fills says less about its tank's gauge: its ratio
+    // carries the spread of that vehicle's deliveries (the Type A step's figure) as well
+    let extra: Vec<f64> = vehicle_names
+        .iter()
+        .map(|v| spread.get(&v.0).copied().unwrap_or(0.0))
+        .collect();
+    let gauge_var = |r: &(usize, usize, f64, f64, i64, usize)| {
+        r.3.max(1e-4).powi(2) + extra.get(r.1).copied().unwrap_or(0.0)
+    };
     let veff = two_way(&plain, tanks.len(), vehicle_names.len()).vehicle;
 
     // gauge faults per tank
@@ -172,7 +183,7 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
         let mut pts: Vec<Point> = rows_of_tank[ti]
             .iter()
             .map(|&k| &rows[k])
-            .map(|r| (r.4, r.2 - veff[r.1], 1.0 / r.3.max(1e-4).powi(2)))
+            .map(|r| (r.4, r.2 - veff[r.1], 1.0 / gauge_var(r)))
             .collect();
         pts.sort_by_key(|p| p.0);
         let span_years = match (pts.first(), pts.last()) {
@@ -258,7 +269,7 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
             };
             let veh = kept_fit.vehicle.get(r.1).copied().unwrap_or(0.0);
             let n_v = n_of_vehicle.get(r.1).copied().unwrap_or(0).max(1) as f64;
-            let ratio_var = r.3.max(1e-4).powi(2);
+            let ratio_var = gauge_var(r);
             obs[r.0].push((
                 r.5,
                 r.4,

@@ -24,6 +24,8 @@
 //! its meter only, and the factors are fitted again. Then every balance's uncertainty, limit and
 //! verdict are recomputed.
 
+use std::collections::BTreeMap;
+
 use crate::AuditOptions;
 use crate::balance::rejudge;
 use crate::effects::{Row, two_way};
@@ -56,7 +58,10 @@ fn readings_var(b: &Balance) -> f64 {
 }
 
 /// Re-estimate the noise of readings and meters from the balances and re-judge every balance.
-pub(crate) fn refine(tanks: &mut [TankAudit], opts: &AuditOptions) {
+/// Returns the vehicles set apart, each with the variance its deliveries add to its fills' ratios
+/// (fraction²) beyond the stated figures: a fill of such a vehicle says that much less about its
+/// tank's gauge.
+pub(crate) fn refine(tanks: &mut [TankAudit], opts: &AuditOptions) -> BTreeMap<String, f64> {
     // vehicle index by name
     let mut names: Vec<String> = tanks
         .iter()
@@ -78,7 +83,7 @@ pub(crate) fn refine(tanks: &mut [TankAudit], opts: &AuditOptions) {
         }
     }
     if rows.len() < 8 {
-        return;
+        return BTreeMap::new();
     }
     let effects = two_way(&rows, tanks.len(), names.len());
     // the meters' priors
@@ -136,7 +141,8 @@ pub(crate) fn refine(tanks: &mut [TankAudit], opts: &AuditOptions) {
         })
         .collect();
     let mut fit = fit_factors(&samples, &class, &meter_prior, tanks.len(), &[]);
-    let scattered = scattered_vehicles(&samples, &fit, &meter_prior, &effects.vehicle, tanks.len());
+    let spread = scattered_vehicles(&samples, &fit, &meter_prior, &effects.vehicle, tanks.len());
+    let scattered: Vec<bool> = spread.iter().map(Option::is_some).collect();
     if scattered.iter().any(|&x| x) {
         fit = fit_factors(&samples, &class, &meter_prior, tanks.len(), &scattered);
     }
@@ -166,6 +172,11 @@ pub(crate) fn refine(tanks: &mut [TankAudit], opts: &AuditOptions) {
             rejudge(b, opts);
         }
     }
+    names
+        .into_iter()
+        .zip(spread)
+        .filter_map(|(name, x)| Some((name, x?)))
+        .collect()
 }
 
 /// The fitted factors: per tank on the readings' and on the use model's stated variance, per
@@ -281,7 +292,7 @@ fn scattered_vehicles(
     meter_prior: &[f64],
     effect: &[f64],
     n_tanks: usize,
-) -> Vec<bool> {
+) -> Vec<Option<f64>> {
     let n_vehicles = meter_prior.len();
     // each readings-class sample's contribution to its tank's factor, as in the fit
     let part = |s: &Sample| -> Option<f64> {
@@ -330,8 +341,9 @@ fn scattered_vehicles(
         }
     }
     // per vehicle: Σ z² (each held within SCATTER_CLIP²), n, Σ w·d and Σ w (d its ratio less the
-    // level the other vehicles show, w = 1 / d's variance) for its mean shortfall
-    let mut stat = vec![(0.0, 0usize, 0.0, 0.0); n_vehicles];
+    // level the other vehicles show, w = 1 / d's variance) for its mean shortfall, Σ z²·v and Σ v
+    // (v the balance's variance as a fraction² of its ticket) for its spread beyond the figures
+    let mut stat = vec![(0.0, 0usize, 0.0, 0.0, 0.0, 0.0); n_vehicles];
     for s in samples {
         let (Some(t), Some(usage), Some(meter)) =
             (tank_sums.get(s.0), fit.usage.get(s.0), fit.meter.get(s.1))
@@ -359,11 +371,15 @@ fn scattered_vehicles(
         };
         if let Some(v) = stat.get_mut(s.1) {
             let (wd, w) = d.map_or((0.0, 0.0), |(d, dv)| (d / dv, 1.0 / dv));
+            let z2 = (s.2 / var).min(SCATTER_CLIP * SCATTER_CLIP);
+            let frac = if s.5 > 0.0 { var / s.5 } else { 0.0 };
             *v = (
-                v.0 + (s.2 / var).min(SCATTER_CLIP * SCATTER_CLIP),
+                v.0 + z2,
                 v.1 + 1,
                 v.2 + wd,
                 v.3 + w,
+                v.4 + z2 * frac,
+                v.5 + frac,
             );
         }
     }
@@ -376,14 +392,15 @@ fn scattered_vehicles(
         .collect();
     let typical = median(&dispersion).unwrap_or(1.0).clamp(0.25, 4.0);
     stat.iter()
-        .map(|&(chi2, n, swd, sw)| {
+        .map(|&(chi2, n, swd, sw, z2v, v)| {
             // short on average (one-sided, at the same calibration) and scattered
             let short = sw > 0.0 && swd / sw * (sw / typical).sqrt() < -SHORT_Z;
             let scattered = n >= SCATTER_MIN
                 && statrs::distribution::ChiSquared::new(n as f64).is_ok_and(|d| {
                     statrs::distribution::ContinuousCDF::sf(&d, chi2 / typical) < SCATTER_ALPHA
                 });
-            short && scattered
+            // its spread beyond the figures: the mean of (z² / typical − 1) · v
+            (short && scattered).then(|| ((z2v / typical - v) / n.max(1) as f64).max(0.0))
         })
         .collect()
 }
@@ -451,8 +468,13 @@ mod tests {
         // the readings' 1 %², spread over its tanks' balances, a quarter of them its own
         let mean = |f: &[f64]| f[..7].iter().sum::<f64>() / 7.0;
         assert!(mean(&fit.tank) > 1.4, "{:?}", fit.tank);
-        let apart = scattered_vehicles(&samples, &fit, &prior, &effect, 8);
+        let spread = scattered_vehicles(&samples, &fit, &prior, &effect, 8);
+        let apart: Vec<bool> = spread.iter().map(Option::is_some).collect();
         assert_eq!(apart, vec![true, false, false, false]);
+        // its spread beyond the figures: 0.4 × 0.6 × 3.5² = 2.94 %² by construction, read against
+        // the tank factors the other vehicles show, within a factor of 2
+        let tau2 = spread[0].unwrap_or(0.0) * 1e4;
+        assert!(tau2 > 1.47 && tau2 < 5.9, "{tau2} %²");
         // set apart, its tanks' readings are measured by the others: about their stated figure
         // (1 within the mean's scatter, about ±0.12 for some 100 balances)
         let refit = fit_factors(&samples, &class, &prior, 8, &apart);
@@ -463,7 +485,7 @@ mod tests {
         // an honest fleet: nobody set apart
         let (samples, effect) = fleet(0.0);
         let fit = fit_factors(&samples, &class, &prior, 8, &[]);
-        let apart = scattered_vehicles(&samples, &fit, &prior, &effect, 8);
-        assert_eq!(apart, vec![false; 4]);
+        let spread = scattered_vehicles(&samples, &fit, &prior, &effect, 8);
+        assert_eq!(spread, vec![None; 4]);
     }
 }
