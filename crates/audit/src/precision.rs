@@ -19,9 +19,9 @@
 //! A vehicle short by a few percent on only some fills scatters by more than that trim: its
 //! balances would pass for its tanks' reading noise and widen every limit there, its own short
 //! fills' included. So each vehicle's scatter is tested against its tanks' factors fitted without
-//! its balances (χ², calibrated by the fleet's median vehicle), and a vehicle both scattered and
-//! short on average against the level the other vehicles show is set apart: its balances measure
-//! its meter only, and the factors are fitted again. Then every balance's uncertainty, limit and
+//! its balances (χ², calibrated by the fleet's median vehicle), and a vehicle scattered, and short
+//! on average against the level the other vehicles show or scattered at two or more of its tanks,
+//! is set apart: its balances measure its meter only, and the factors are fitted again. Then every balance's uncertainty, limit and
 //! verdict are recomputed.
 
 use std::collections::BTreeMap;
@@ -277,6 +277,13 @@ const SCATTER_CLIP: f64 = 3.0;
 /// by this many standard errors (one-sided 1 %; common practice, no source): scatter alone may be
 /// a noisy tank the vehicle fills most often.
 const SHORT_Z: f64 = 2.326;
+/// ... or, where its mean is hidden in its tanks' levels (the tanks it fills most), when it is
+/// scattered at this many of its tanks, each by χ² at [`TANK_SCATTER_ALPHA`] (a vehicle short on
+/// some fills is so wherever it delivers; one noisy tank it fills often is one tank; common
+/// practice, no source).
+const SCATTER_TANKS: usize = 2;
+/// The per-tank level of that test.
+const TANK_SCATTER_ALPHA: f64 = 0.05;
 /// Fewest balances of a vehicle to test its scatter.
 const SCATTER_MIN: usize = 8;
 
@@ -344,6 +351,10 @@ fn scattered_vehicles(
     // level the other vehicles show, w = 1 / d's variance) for its mean shortfall, Σ z²·v and Σ v
     // (v the balance's variance as a fraction² of its ticket) for its spread beyond the figures
     let mut stat = vec![(0.0, 0usize, 0.0, 0.0, 0.0, 0.0); n_vehicles];
+    // and Σ z², n per (vehicle, tank): a vehicle scattered at several of its tanks is not one noisy
+    // tank it fills most often
+    let mut per_tank: std::collections::HashMap<(usize, usize), (f64, usize)> =
+        std::collections::HashMap::new();
     for s in samples {
         let (Some(t), Some(usage), Some(meter)) =
             (tank_sums.get(s.0), fit.usage.get(s.0), fit.meter.get(s.1))
@@ -373,6 +384,8 @@ fn scattered_vehicles(
             let (wd, w) = d.map_or((0.0, 0.0), |(d, dv)| (d / dv, 1.0 / dv));
             let z2 = (s.2 / var).min(SCATTER_CLIP * SCATTER_CLIP);
             let frac = if s.5 > 0.0 { var / s.5 } else { 0.0 };
+            let pt = per_tank.entry((s.1, s.0)).or_default();
+            *pt = (pt.0 + z2, pt.1 + 1);
             *v = (
                 v.0 + z2,
                 v.1 + 1,
@@ -391,16 +404,29 @@ fn scattered_vehicles(
         .map(|x| x.0 / x.1 as f64)
         .collect();
     let typical = median(&dispersion).unwrap_or(1.0).clamp(0.25, 4.0);
+    let beyond = |chi2: f64, n: usize, alpha: f64| {
+        statrs::distribution::ChiSquared::new(n as f64)
+            .is_ok_and(|d| statrs::distribution::ContinuousCDF::sf(&d, chi2 / typical) < alpha)
+    };
+    let mut tanks_scattered = vec![0usize; n_vehicles];
+    for (&(v, _), &(chi2, n)) in &per_tank {
+        if n >= 2
+            && beyond(chi2, n, TANK_SCATTER_ALPHA)
+            && let Some(c) = tanks_scattered.get_mut(v)
+        {
+            *c += 1;
+        }
+    }
     stat.iter()
-        .map(|&(chi2, n, swd, sw, z2v, v)| {
-            // short on average (one-sided, at the same calibration) and scattered
+        .zip(&tanks_scattered)
+        .map(|(&(chi2, n, swd, sw, z2v, v), &at_tanks)| {
+            // scattered, and short on average (one-sided, at the same calibration) or scattered at
+            // several of its tanks
             let short = sw > 0.0 && swd / sw * (sw / typical).sqrt() < -SHORT_Z;
-            let scattered = n >= SCATTER_MIN
-                && statrs::distribution::ChiSquared::new(n as f64).is_ok_and(|d| {
-                    statrs::distribution::ContinuousCDF::sf(&d, chi2 / typical) < SCATTER_ALPHA
-                });
+            let scattered = n >= SCATTER_MIN && beyond(chi2, n, SCATTER_ALPHA);
             // its spread beyond the figures: the mean of (z² / typical − 1) · v
-            (short && scattered).then(|| ((z2v / typical - v) / n.max(1) as f64).max(0.0))
+            (scattered && (short || at_tanks >= SCATTER_TANKS))
+                .then(|| ((z2v / typical - v) / n.max(1) as f64).max(0.0))
         })
         .collect()
 }
@@ -482,6 +508,22 @@ mod tests {
         // the noisy tank stays noisy: 9 times its stated variance, of which the first trim at 3
         // stated standard uncertainties keeps under half, so well above 1
         assert!(refit.tank[7] > 3.0, "{:?}", refit.tank);
+        // the same vehicle with its mean hidden (its ratios raised by its mean shortfall, as where
+        // the tanks it fills most carry its level): still set apart, being scattered at each of its
+        // tanks
+        let hidden: Vec<Sample> = samples
+            .iter()
+            .map(|s| {
+                let mut s = *s;
+                if s.1 == 0 {
+                    s.6 += 0.4 * 0.035;
+                }
+                s
+            })
+            .collect();
+        let spread = scattered_vehicles(&hidden, &fit, &prior, &[0.0; 4], 8);
+        assert!(spread[0].is_some(), "{spread:?}");
+        assert!(spread[1..].iter().all(Option::is_none), "{spread:?}");
         // an honest fleet: nobody set apart
         let (samples, effect) = fleet(0.0);
         let fit = fit_factors(&samples, &class, &prior, 8, &[]);
