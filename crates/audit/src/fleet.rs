@@ -9,6 +9,7 @@ use crate::balance::set_verdict;
 use crate::calibration::{self, Obs, ScaleModel};
 use crate::effects::{Row, groups, two_way};
 use crate::gauge_faults::{self, FaultTest, Point};
+use crate::mixture::Mixture;
 use crate::records::{Balance, Finding, FindingKind, Forecast, GaugeStep, TankAudit};
 use crate::stats::holm_adjust;
 pub use crate::vehicles::{AdjustedFill, VehicleFinding, VehicleStatus};
@@ -163,16 +164,39 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
         })
         .collect();
     let plain: Vec<Row> = rows.iter().map(|r| (r.0, r.1, r.2)).collect();
-    // a fill of a vehicle short on only some fills says less about its tank's gauge: its ratio
-    // carries the spread of that vehicle's deliveries (the Type A step's figure) as well
+    let all_fit = two_way(&plain, tanks.len(), vehicle_names.len());
+    let veff = &all_fit.vehicle;
+    // a vehicle short on only some fills (set apart by the Type A step) as a mixture of honest and
+    // short deliveries: each of its fills is put on its tank's level less its expected shortfall,
+    // with the doubt that leaves (see the mixture module); its spread where no mixture fits
+    let mut mixtures: Vec<Option<Mixture>> = vec![None; vehicle_names.len()];
     let extra: Vec<f64> = vehicle_names
         .iter()
         .map(|v| spread.get(&v.0).copied().unwrap_or(0.0))
         .collect();
-    let gauge_var = |r: &(usize, usize, f64, f64, i64, usize)| {
-        r.3.max(1e-4).powi(2) + extra.get(r.1).copied().unwrap_or(0.0)
+    for (vi, m) in mixtures.iter_mut().enumerate() {
+        if extra.get(vi).is_some_and(|x| *x > 0.0) {
+            let pts: Vec<(f64, f64)> = rows
+                .iter()
+                .filter(|r| r.1 == vi)
+                .filter_map(|r| Some((r.2 - all_fit.tank.get(r.0)?, r.3.max(1e-4))))
+                .collect();
+            *m = Mixture::fit(&pts);
+        }
+    }
+    // (the ratio less what the fill's vehicle adds, its variance) for the gauge's tests and scale;
+    // `effect` is the vehicle's effect used where no mixture applies
+    let gauge_point = |r: &(usize, usize, f64, f64, i64, usize), effect: f64| -> (f64, f64) {
+        let u2 = r.3.max(1e-4).powi(2);
+        let level = all_fit.tank.get(r.0).copied().unwrap_or(1.0);
+        match mixtures.get(r.1).copied().flatten() {
+            Some(m) => {
+                let (e, v) = m.effect(r.2 - level, r.3.max(1e-4));
+                (r.2 - e, u2 + v)
+            }
+            None => (r.2 - effect, u2 + extra.get(r.1).copied().unwrap_or(0.0)),
+        }
     };
-    let veff = two_way(&plain, tanks.len(), vehicle_names.len()).vehicle;
 
     // gauge faults per tank
     let mut gauges: Vec<GaugeFinding> = Vec::new();
@@ -183,7 +207,10 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
         let mut pts: Vec<Point> = rows_of_tank[ti]
             .iter()
             .map(|&k| &rows[k])
-            .map(|r| (r.4, r.2 - veff[r.1], 1.0 / gauge_var(r)))
+            .map(|r| {
+                let (x, var) = gauge_point(r, veff.get(r.1).copied().unwrap_or(0.0));
+                (r.4, x, 1.0 / var)
+            })
             .collect();
         pts.sort_by_key(|p| p.0);
         let span_years = match (pts.first(), pts.last()) {
@@ -269,11 +296,11 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
             };
             let veh = kept_fit.vehicle.get(r.1).copied().unwrap_or(0.0);
             let n_v = n_of_vehicle.get(r.1).copied().unwrap_or(0).max(1) as f64;
-            let ratio_var = gauge_var(r);
+            let (x, ratio_var) = gauge_point(r, veh);
             obs[r.0].push((
                 r.5,
                 r.4,
-                r.2 - veh,
+                x,
                 weight / ratio_var,
                 kept_fit.scale.powi(2) / n_v,
             ));

@@ -77,6 +77,7 @@ mod effects;
 mod fleet;
 mod gauge_faults;
 mod loss_scan;
+mod mixture;
 mod precision;
 mod props;
 mod records;
