@@ -123,6 +123,9 @@ fn drop_losses_at_step(findings: &mut Vec<Finding>, at_ms: i64) {
     });
 }
 
+/// Rounds of fitting the set-apart vehicles' mixtures and the tanks' levels in turn.
+const MIXTURE_ROUNDS: usize = 3;
+
 /// Fleet statistics over every tank's audit.
 pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
     let mut tanks = tanks;
@@ -164,26 +167,43 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
         })
         .collect();
     let plain: Vec<Row> = rows.iter().map(|r| (r.0, r.1, r.2)).collect();
-    let all_fit = two_way(&plain, tanks.len(), vehicle_names.len());
-    let veff = &all_fit.vehicle;
     // a vehicle short on only some fills (set apart by the Type A step) as a mixture of honest and
     // short deliveries: each of its fills is put on its tank's level less its expected shortfall,
-    // with the doubt that leaves (see the mixture module); its spread where no mixture fits
+    // with the doubt that leaves (see the mixture module); its spread where no mixture fits. The
+    // tanks' levels are fitted again with those fills raised by their expected shortfall (a few
+    // rounds), so the vehicle's short deliveries do not pull the levels of the tanks it fills most
+    let mut all_fit = two_way(&plain, tanks.len(), vehicle_names.len());
     let mut mixtures: Vec<Option<Mixture>> = vec![None; vehicle_names.len()];
     let extra: Vec<f64> = vehicle_names
         .iter()
         .map(|v| spread.get(&v.0).copied().unwrap_or(0.0))
         .collect();
-    for (vi, m) in mixtures.iter_mut().enumerate() {
-        if extra.get(vi).is_some_and(|x| *x > 0.0) {
-            let pts: Vec<(f64, f64)> = rows
+    if extra.iter().any(|x| *x > 0.0) {
+        for _ in 0..MIXTURE_ROUNDS {
+            for (vi, m) in mixtures.iter_mut().enumerate() {
+                if extra.get(vi).is_some_and(|x| *x > 0.0) {
+                    let pts: Vec<(f64, f64)> = rows
+                        .iter()
+                        .filter(|r| r.1 == vi)
+                        .filter_map(|r| Some((r.2 - all_fit.tank.get(r.0)?, r.3.max(1e-4))))
+                        .collect();
+                    *m = Mixture::fit(&pts);
+                }
+            }
+            let raised: Vec<Row> = rows
                 .iter()
-                .filter(|r| r.1 == vi)
-                .filter_map(|r| Some((r.2 - all_fit.tank.get(r.0)?, r.3.max(1e-4))))
+                .map(|r| {
+                    let level = all_fit.tank.get(r.0).copied().unwrap_or(1.0);
+                    let up = mixtures.get(r.1).copied().flatten().map_or(0.0, |m| {
+                        m.short_probability(r.2 - level, r.3.max(1e-4)) * m.shortfall
+                    });
+                    (r.0, r.1, r.2 + up)
+                })
                 .collect();
-            *m = Mixture::fit(&pts);
+            all_fit = two_way(&raised, tanks.len(), vehicle_names.len());
         }
     }
+    let veff = &all_fit.vehicle;
     // (the ratio less what the fill's vehicle adds, its variance) for the gauge's tests and scale;
     // `effect` is the vehicle's effect used where no mixture applies
     let gauge_point = |r: &(usize, usize, f64, f64, i64, usize), effect: f64| -> (f64, f64) {
