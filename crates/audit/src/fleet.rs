@@ -362,6 +362,17 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
     }
 
     // vehicle bias, on the final verdicts
+    // a set-apart vehicle's fills enter its tanks' levels less their expected shortfall, so its
+    // short deliveries do not pull the level the other vehicles are compared with
+    let kept_mixed: Vec<Option<f64>> = rows
+        .iter()
+        .filter(|r| !faulty[r.0])
+        .map(|r| {
+            let m = mixtures.get(r.1).copied().flatten()?;
+            let level = all_fit.tank.get(r.0)?;
+            Some(m.effect(r.2 - level, r.3.max(1e-4)).0)
+        })
+        .collect();
     let mut vehicles = crate::vehicles::test(
         &vehicle_names,
         &vehicle_index,
@@ -370,6 +381,7 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
         &kept_u,
         &kept_at,
         &kept_fit,
+        &kept_mixed,
         opts,
     );
     if opts.judge_with_vehicle {

@@ -122,7 +122,10 @@ fn normal_tail(k: f64) -> f64 {
 
 /// Test every vehicle. `kept` are the fills at tanks without a gauge fault, `kept_u` their ratios'
 /// standard uncertainties, `kept_at` each one's balance (its index in its tank's balances), `fit`
-/// the levels and effects fitted from them.
+/// the levels and effects fitted from them, `mixed` what a fill of a vehicle set apart as short on
+/// some fills adds to its ratio (its honest deliveries' effect less its expected shortfall; see the
+/// mixture module), used in its tank's level in place of the vehicle's effect (its short share
+/// differs from tank to tank, so one effect per vehicle leaves the levels it fills wrong).
 #[allow(clippy::too_many_arguments)]
 pub(crate) fn test(
     names: &[(String, String)],
@@ -132,6 +135,7 @@ pub(crate) fn test(
     kept_u: &[f64],
     kept_at: &[usize],
     fit: &Effects,
+    mixed: &[Option<f64>],
     opts: &AuditOptions,
 ) -> Vec<VehicleFinding> {
     // each tank's level from its fills, vehicle effects removed, robust weights: (Σw x, Σw, n) per
@@ -140,7 +144,8 @@ pub(crate) fn test(
     let mut pair_sums: BTreeMap<(usize, usize), (f64, f64, usize)> = BTreeMap::new();
     for (k, r) in kept.iter().enumerate() {
         let w = fit.weight.get(k).copied().unwrap_or(1.0);
-        let x = r.2 - fit.vehicle.get(r.1).copied().unwrap_or(0.0);
+        let effect = mixed.get(k).copied().flatten();
+        let x = r.2 - effect.unwrap_or_else(|| fit.vehicle.get(r.1).copied().unwrap_or(0.0));
         if let Some(t) = tank_sums.get_mut(r.0) {
             *t = (t.0 + w * x, t.1 + w, t.2 + 1);
         }
