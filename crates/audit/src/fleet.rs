@@ -9,7 +9,6 @@ use crate::balance::set_verdict;
 use crate::calibration::{self, Obs, ScaleModel};
 use crate::effects::{Row, groups, two_way};
 use crate::gauge_faults::{self, FaultTest, Point};
-use crate::mixture::Mixture;
 use crate::records::{Balance, Finding, FindingKind, Forecast, GaugeStep, TankAudit};
 use crate::stats::holm_adjust;
 pub use crate::vehicles::{AdjustedFill, VehicleFinding, VehicleStatus};
@@ -123,9 +122,6 @@ fn drop_losses_at_step(findings: &mut Vec<Finding>, at_ms: i64) {
     });
 }
 
-/// Rounds of fitting the set-apart vehicles' mixtures and the tanks' levels in turn.
-const MIXTURE_ROUNDS: usize = 3;
-
 /// Fleet statistics over every tank's audit.
 pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
     let mut tanks = tanks;
@@ -168,52 +164,30 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
         .collect();
     let plain: Vec<Row> = rows.iter().map(|r| (r.0, r.1, r.2)).collect();
     // a vehicle short on only some fills (set apart by the Type A step) as a mixture of honest and
-    // short deliveries: each of its fills is put on its tank's level less its expected shortfall,
-    // with the doubt that leaves (see the mixture module); its spread where no mixture fits. The
-    // tanks' levels are fitted again with those fills raised by their expected shortfall (a few
-    // rounds), so the vehicle's short deliveries do not pull the levels of the tanks it fills most
-    let mut all_fit = two_way(&plain, tanks.len(), vehicle_names.len());
-    let mut mixtures: Vec<Option<Mixture>> = vec![None; vehicle_names.len()];
+    // short deliveries, the tanks' levels fitted with its fills raised by their expected shortfall
+    // (see the mixture module); a vehicle set apart where no mixture fits keeps its spread
     let extra: Vec<f64> = vehicle_names
         .iter()
         .map(|v| spread.get(&v.0).copied().unwrap_or(0.0))
         .collect();
-    if extra.iter().any(|x| *x > 0.0) {
-        for _ in 0..MIXTURE_ROUNDS {
-            for (vi, m) in mixtures.iter_mut().enumerate() {
-                if extra.get(vi).is_some_and(|x| *x > 0.0) {
-                    let pts: Vec<(f64, f64)> = rows
-                        .iter()
-                        .filter(|r| r.1 == vi)
-                        .filter_map(|r| Some((r.2 - all_fit.tank.get(r.0)?, r.3.max(1e-4))))
-                        .collect();
-                    *m = Mixture::fit(&pts);
-                }
-            }
-            let raised: Vec<Row> = rows
-                .iter()
-                .map(|r| {
-                    let level = all_fit.tank.get(r.0).copied().unwrap_or(1.0);
-                    let up = mixtures.get(r.1).copied().flatten().map_or(0.0, |m| {
-                        m.short_probability(r.2 - level, r.3.max(1e-4)) * m.shortfall
-                    });
-                    (r.0, r.1, r.2 + up)
-                })
-                .collect();
-            all_fit = two_way(&raised, tanks.len(), vehicle_names.len());
-        }
-    }
+    let apart: Vec<bool> = extra.iter().map(|x| *x > 0.0).collect();
+    let u: Vec<f64> = rows.iter().map(|r| r.3.max(1e-4)).collect();
+    let fitted = crate::mixture::with_levels(&plain, &u, &apart, tanks.len(), vehicle_names.len());
+    let (all_fit, mixtures) = (&fitted.levels, &fitted.mixtures);
     let veff = &all_fit.vehicle;
+    // what a set-apart vehicle adds to one of its fills' ratio (its honest deliveries' effect less
+    // the fill's expected shortfall) and the variance that leaves
+    let mixed = |r: &(usize, usize, f64, f64, i64, usize)| -> Option<(f64, f64)> {
+        let m = mixtures.get(r.1).copied().flatten()?;
+        let level = all_fit.tank.get(r.0)?;
+        Some(m.effect(r.2 - level, r.3.max(1e-4)))
+    };
     // (the ratio less what the fill's vehicle adds, its variance) for the gauge's tests and scale;
     // `effect` is the vehicle's effect used where no mixture applies
     let gauge_point = |r: &(usize, usize, f64, f64, i64, usize), effect: f64| -> (f64, f64) {
         let u2 = r.3.max(1e-4).powi(2);
-        let level = all_fit.tank.get(r.0).copied().unwrap_or(1.0);
-        match mixtures.get(r.1).copied().flatten() {
-            Some(m) => {
-                let (e, v) = m.effect(r.2 - level, r.3.max(1e-4));
-                (r.2 - e, u2 + v)
-            }
+        match mixed(r) {
+            Some((e, v)) => (r.2 - e, u2 + v),
             None => (r.2 - effect, u2 + extra.get(r.1).copied().unwrap_or(0.0)),
         }
     };
@@ -297,7 +271,14 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
     let kept: Vec<Row> = plain.iter().copied().filter(|r| !faulty[r.0]).collect();
     let kept_u: Vec<f64> = rows.iter().filter(|r| !faulty[r.0]).map(|r| r.3).collect();
     let kept_at: Vec<usize> = rows.iter().filter(|r| !faulty[r.0]).map(|r| r.5).collect();
-    let kept_fit = two_way(&kept, tanks.len(), vehicle_names.len());
+    // the levels and effects fitted with the set-apart vehicles' fills raised, as above
+    let kept_raised: Vec<Row> = fitted
+        .raised
+        .iter()
+        .copied()
+        .filter(|r| !faulty[r.0])
+        .collect();
+    let kept_fit = two_way(&kept_raised, tanks.len(), vehicle_names.len());
     let kept_of_vehicle = groups(kept.iter().map(|r| r.1), vehicle_names.len());
 
     // each gauge's scale from the tank's other fills, vehicle effects removed; the rows of faulty
@@ -367,11 +348,7 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
     let kept_mixed: Vec<Option<f64>> = rows
         .iter()
         .filter(|r| !faulty[r.0])
-        .map(|r| {
-            let m = mixtures.get(r.1).copied().flatten()?;
-            let level = all_fit.tank.get(r.0)?;
-            Some(m.effect(r.2 - level, r.3.max(1e-4)).0)
-        })
+        .map(|r| mixed(r).map(|m| m.0))
         .collect();
     let mut vehicles = crate::vehicles::test(
         &vehicle_names,
