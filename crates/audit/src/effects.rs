@@ -41,6 +41,47 @@ pub(crate) fn groups(keys: impl Iterator<Item = usize>, n: usize) -> Vec<Vec<usi
     out
 }
 
+/// Weighted sums per tank and per (tank, vehicle), so that a vehicle at a tank can be compared with
+/// what the tank's *other* vehicles show there.
+#[derive(Debug, Clone)]
+pub(crate) struct LeaveOut {
+    /// (Σw·x, Σw, n) per tank ...
+    tank: Vec<(f64, f64, usize)>,
+    /// ... and per (tank, vehicle).
+    pair: std::collections::HashMap<(usize, usize), (f64, f64, usize)>,
+}
+
+impl LeaveOut {
+    pub(crate) fn new(n_tanks: usize) -> Self {
+        LeaveOut {
+            tank: vec![(0.0, 0.0, 0); n_tanks],
+            pair: Default::default(),
+        }
+    }
+
+    /// Add w·x and w for vehicle `v` at tank `t` (a tank out of range adds nothing).
+    pub(crate) fn add(&mut self, t: usize, v: usize, wx: f64, w: f64) {
+        let Some(s) = self.tank.get_mut(t) else {
+            return;
+        };
+        *s = (s.0 + wx, s.1 + w, s.2 + 1);
+        let p = self.pair.entry((t, v)).or_default();
+        *p = (p.0 + wx, p.1 + w, p.2 + 1);
+    }
+
+    /// Each tank's (Σw·x, Σw).
+    pub(crate) fn tanks(&self) -> impl Iterator<Item = (f64, f64)> + '_ {
+        self.tank.iter().map(|s| (s.0, s.1))
+    }
+
+    /// Tank `t`'s (Σw·x, Σw, n) less vehicle `v`'s; None for a tank out of range.
+    pub(crate) fn without(&self, t: usize, v: usize) -> Option<(f64, f64, usize)> {
+        let s = self.tank.get(t)?;
+        let p = self.pair.get(&(t, v)).copied().unwrap_or_default();
+        Some((s.0 - p.0, s.1 - p.1, s.2 - p.2))
+    }
+}
+
 /// Connected components of the tank–vehicle graph (a vehicle and a tank are joined when the vehicle
 /// filled the tank): (component of each tank, component of each vehicle). Effects are identified only
 /// within a component (a fleet's nitrogen trailers never meet its argon tanks), so each is centred
@@ -156,6 +197,23 @@ pub(crate) fn two_way(rows: &[Row], tanks: usize, vehicles: usize) -> Effects {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// Tank 0 holds vehicle 0's 1 and 3 (weights 1) and vehicle 1's 2 (weight 2): without vehicle 0
+    /// it is (4, 2, 1), without vehicle 1 (4, 2, 2), without an absent vehicle all of it (8, 4, 3);
+    /// a tank out of range adds nothing and has no sums (worked by hand).
+    #[test]
+    fn leave_out_sums_by_hand() {
+        let mut s = LeaveOut::new(1);
+        s.add(0, 0, 1.0, 1.0);
+        s.add(0, 0, 3.0, 1.0);
+        s.add(0, 1, 4.0, 2.0);
+        s.add(5, 0, 9.0, 1.0);
+        assert_eq!(s.without(0, 0), Some((4.0, 2.0, 1)));
+        assert_eq!(s.without(0, 1), Some((4.0, 2.0, 2)));
+        assert_eq!(s.without(0, 7), Some((8.0, 4.0, 3)));
+        assert_eq!(s.without(5, 0), None);
+        assert_eq!(s.tanks().collect::<Vec<_>>(), vec![(8.0, 4.0)]);
+    }
 
     /// Three tanks, four vehicles; vehicle 3 is short by 4 % on every other fill and shares tank 0
     /// with vehicle 0 alone. Exact ratios (no noise): the robust fit gives vehicle 0 an effect of 0

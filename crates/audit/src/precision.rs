@@ -20,15 +20,15 @@
 //! balances would pass for its tanks' reading noise and widen every limit there, its own short
 //! fills' included. So each vehicle's scatter is tested against its tanks' factors fitted without
 //! its balances (χ², calibrated by the fleet's median vehicle), and a vehicle scattered, and short
-//! on average against the level the other vehicles show or scattered at two or more of its tanks,
-//! is set apart: its balances measure its meter only, and the factors are fitted again. Then every balance's uncertainty, limit and
-//! verdict are recomputed.
+//! on average against the level the other vehicles show (or scattered at two or more of its tanks
+//! and leaning short), is set apart: its balances measure its meter only, and the factors are
+//! fitted again. Then every balance's uncertainty, limit and verdict are recomputed.
 
 use std::collections::BTreeMap;
 
 use crate::AuditOptions;
 use crate::balance::rejudge;
-use crate::effects::{Row, two_way};
+use crate::effects::{LeaveOut, Row, two_way};
 use crate::records::{Balance, TankAudit};
 use crate::stats::median;
 
@@ -313,21 +313,16 @@ fn scattered_vehicles(
         (s.3 > 0.0).then(|| ((s.2 - other) / s.3).max(0.0))
     };
     let stated = |s: &Sample| s.3 + meter_prior[s.1].powi(2) * s.5 + s.4;
-    let mut tank_sums = vec![(0.0, 0.0); n_tanks];
-    let mut pair_sums: std::collections::HashMap<(usize, usize), (f64, f64)> =
-        std::collections::HashMap::new();
+    let mut factor_sums = LeaveOut::new(n_tanks);
     for s in samples {
         if s.4 >= READINGS_CLASS * stated(s) {
             continue;
         }
-        if let (Some(x), Some(t)) = (part(s), tank_sums.get_mut(s.0)) {
-            let x = x.min(TRIM_Z * TRIM_Z);
-            *t = (t.0 + x, t.1 + 1.0);
-            let p = pair_sums.entry((s.0, s.1)).or_default();
-            *p = (p.0 + x, p.1 + 1.0);
+        if let Some(x) = part(s) {
+            factor_sums.add(s.0, s.1, x.min(TRIM_Z * TRIM_Z), 1.0);
         }
     }
-    let fleet_s = shrink(tank_sums.iter().copied(), 1.0);
+    let fleet_s = shrink(factor_sums.tanks(), 1.0);
     // each tank's level from its balances, vehicle effects removed, weights 1 / the ratio's
     // variance: (Σw·x, Σw) per tank and per (tank, vehicle), so that a vehicle is compared with the
     // level the *other* vehicles show (a vehicle that fills a tank most often carries its level)
@@ -338,17 +333,10 @@ fn scattered_vehicles(
         let var = full * s.3 + meter * meter * s.5 + usage * s.4;
         (var > 0.0 && s.5 > 0.0).then(|| var / s.5)
     };
-    let mut level_sums = vec![(0.0, 0.0); n_tanks];
-    let mut level_pairs: std::collections::HashMap<(usize, usize), (f64, f64)> =
-        std::collections::HashMap::new();
+    let mut levels = LeaveOut::new(n_tanks);
     for s in samples {
-        if let (Some(rv), Some(e), Some(l)) =
-            (ratio_var(s), effect.get(s.1), level_sums.get_mut(s.0))
-        {
-            let x = s.6 - e;
-            *l = (l.0 + x / rv, l.1 + 1.0 / rv);
-            let p = level_pairs.entry((s.0, s.1)).or_default();
-            *p = (p.0 + x / rv, p.1 + 1.0 / rv);
+        if let (Some(rv), Some(e)) = (ratio_var(s), effect.get(s.1)) {
+            levels.add(s.0, s.1, (s.6 - e) / rv, 1.0 / rv);
         }
     }
     // per vehicle: Σ z² (each held within SCATTER_CLIP²), n, Σ w·d and Σ w (d its ratio less the
@@ -360,13 +348,14 @@ fn scattered_vehicles(
     let mut per_tank: std::collections::HashMap<(usize, usize), (f64, usize)> =
         std::collections::HashMap::new();
     for s in samples {
-        let (Some(t), Some(usage), Some(meter)) =
-            (tank_sums.get(s.0), fit.usage.get(s.0), fit.meter.get(s.1))
-        else {
+        let (Some(t), Some(usage), Some(meter)) = (
+            factor_sums.without(s.0, s.1),
+            fit.usage.get(s.0),
+            fit.meter.get(s.1),
+        ) else {
             continue;
         };
-        let p = pair_sums.get(&(s.0, s.1)).copied().unwrap_or_default();
-        let without = shrink(std::iter::once((t.0 - p.0, t.1 - p.1)), fleet_s).clamp(0.05, 20.0);
+        let without = shrink(std::iter::once((t.0, t.1)), fleet_s).clamp(0.05, 20.0);
         let var = without * s.3 + meter * meter * s.5 + usage * s.4;
         if var.is_nan() || var <= 0.0 {
             continue;
@@ -374,12 +363,8 @@ fn scattered_vehicles(
         // the mean is weighed with the tank's factor from all its balances (a tank noisier than
         // its other vehicles show does not make a vehicle's mean look significant), and with the
         // others' level's own variance
-        let others = level_sums.get(s.0).map(|l| {
-            let p = level_pairs.get(&(s.0, s.1)).copied().unwrap_or_default();
-            (l.0 - p.0, l.1 - p.1)
-        });
-        let d = match (others, ratio_var(s)) {
-            (Some((sx, sw)), Some(rv)) if sw > 1e-9 * (1.0 / rv) => {
+        let d = match (levels.without(s.0, s.1), ratio_var(s)) {
+            (Some((sx, sw, _)), Some(rv)) if sw > 1e-9 * (1.0 / rv) => {
                 Some((s.6 - sx / sw, rv + 1.0 / sw))
             }
             _ => None,
@@ -424,14 +409,18 @@ fn scattered_vehicles(
     stat.iter()
         .zip(&tanks_scattered)
         .map(|(&(chi2, n, swd, sw, z2v, v), &at_tanks)| {
-            // scattered, and short on average (one-sided, at the same calibration) or scattered at
-            // several of its tanks and leaning short
-            let short = sw > 0.0 && swd / sw * (sw / typical).sqrt() < -SHORT_Z;
+            // its mean against the others' level in standard errors (at the same calibration)
+            let z = if sw > 0.0 {
+                swd / sw * (sw / typical).sqrt()
+            } else {
+                0.0
+            };
+            // scattered, and short on average (one-sided) or scattered at several of its tanks and
+            // leaning short
             let scattered = n >= SCATTER_MIN && beyond(chi2, n, SCATTER_ALPHA);
+            let short = z < -SHORT_Z || (at_tanks >= SCATTER_TANKS && z < -LEANING_Z);
             // its spread beyond the figures: the mean of (z² / typical − 1) · v
-            let leaning = sw > 0.0 && swd / sw * (sw / typical).sqrt() < -LEANING_Z;
-            (scattered && (short || (at_tanks >= SCATTER_TANKS && leaning)))
-                .then(|| ((z2v / typical - v) / n.max(1) as f64).max(0.0))
+            (scattered && short).then(|| ((z2v / typical - v) / n.max(1) as f64).max(0.0))
         })
         .collect()
 }

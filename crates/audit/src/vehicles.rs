@@ -21,7 +21,7 @@ use statrs::distribution::{Binomial, DiscreteCDF};
 use crate::AuditOptions;
 use crate::Verdict;
 use crate::balance::rejudge;
-use crate::effects::{Effects, Row, groups};
+use crate::effects::{Effects, LeaveOut, Row, groups};
 use crate::records::{Balance, TankAudit};
 use crate::stats::{holm_adjust, median, t_critical, t_two_sided_p};
 
@@ -140,22 +140,15 @@ pub(crate) fn test(
 ) -> Vec<VehicleFinding> {
     // each tank's level from its fills, vehicle effects removed, robust weights: (Σw x, Σw, n) per
     // tank and per (tank, vehicle), so a vehicle is compared with the level the others show
-    let mut tank_sums = vec![(0.0, 0.0, 0usize); tanks.len()];
-    let mut pair_sums: BTreeMap<(usize, usize), (f64, f64, usize)> = BTreeMap::new();
+    let mut levels = LeaveOut::new(tanks.len());
     for (k, r) in kept.iter().enumerate() {
         let w = fit.weight.get(k).copied().unwrap_or(1.0);
         let effect = mixed.get(k).copied().flatten();
         let x = r.2 - effect.unwrap_or_else(|| fit.vehicle.get(r.1).copied().unwrap_or(0.0));
-        if let Some(t) = tank_sums.get_mut(r.0) {
-            *t = (t.0 + w * x, t.1 + w, t.2 + 1);
-        }
-        let p = pair_sums.entry((r.0, r.1)).or_default();
-        *p = (p.0 + w * x, p.1 + w, p.2 + 1);
+        levels.add(r.0, r.1, w * x, w);
     }
     let level_without = |ti: usize, vi: usize| -> Option<f64> {
-        let t = tank_sums.get(ti)?;
-        let p = pair_sums.get(&(ti, vi)).copied().unwrap_or_default();
-        let (sx, sw, n) = (t.0 - p.0, t.1 - p.1, t.2 - p.2);
+        let (sx, sw, n) = levels.without(ti, vi)?;
         (n >= 2 && sw > 1e-9).then(|| sx / sw)
     };
     let kept_of_vehicle = groups(kept.iter().map(|r| r.1), names.len());
