@@ -197,20 +197,38 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
     let mut raw_p: Vec<(usize, f64)> = Vec::new();
     let mut tests: Vec<Option<FaultTest>> = Vec::new();
     let rows_of_tank = groups(rows.iter().map(|r| r.0), tanks.len());
-    for (ti, t) in tanks.iter().enumerate() {
-        let mut pts: Vec<Point> = rows_of_tank[ti]
-            .iter()
-            .map(|&k| &rows[k])
-            .map(|r| {
-                let (x, var) = gauge_point(r, veff.get(r.1).copied().unwrap_or(0.0));
-                (r.4, x, 1.0 / var)
-            })
-            .collect();
-        pts.sort_by_key(|p| p.0);
+    let tank_points: Vec<Vec<Point>> = rows_of_tank
+        .iter()
+        .map(|ks| {
+            let mut pts: Vec<Point> = ks
+                .iter()
+                .map(|&k| &rows[k])
+                .map(|r| {
+                    let (x, var) = gauge_point(r, veff.get(r.1).copied().unwrap_or(0.0));
+                    (r.4, x, 1.0 / var)
+                })
+                .collect();
+            pts.sort_by_key(|p| p.0);
+            pts
+        })
+        .collect();
+    let testable = |pts: &[Point]| {
         let span_years = match (pts.first(), pts.last()) {
             (Some(a), Some(b)) => (b.0 - a.0) as f64 / YEAR_MS,
             _ => 0.0,
         };
+        pts.len() >= opts.drift_min_fills.max(3) && span_years > 60.0 / 365.0
+    };
+    // the fleet's prior for the scatter about each tank's line, a floor under each tank's own
+    // (Smyth 2004; see `moderated`)
+    let prior = crate::moderated::fit(
+        &tank_points
+            .iter()
+            .filter(|p| testable(p))
+            .filter_map(|p| gauge_faults::scatter(p))
+            .collect::<Vec<_>>(),
+    );
+    for (t, pts) in tanks.iter().zip(&tank_points) {
         let mut g = GaugeFinding {
             tank: t.tank.clone(),
             status: GaugeStatus::NotEnoughData,
@@ -226,8 +244,8 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
             ner_fitted_percent_per_day: t.ner_fitted_percent_per_day,
         };
         let mut found = None;
-        if pts.len() >= opts.drift_min_fills.max(3) && span_years > 60.0 / 365.0 {
-            let ft = gauge_faults::test(&pts, &t.jumps);
+        if testable(pts) {
+            let ft = gauge_faults::test(pts, &t.jumps, prior);
             g.drift_percent_per_year = ft.drift.map(|d| 100.0 * d.0);
             g.drift_se_percent_per_year = ft.drift.map(|d| 100.0 * d.1);
             g.step_percent = ft.step.map(|s| 100.0 * s.0);

@@ -78,6 +78,7 @@ mod fleet;
 mod gauge_faults;
 mod loss_scan;
 mod mixture;
+mod moderated;
 mod precision;
 mod props;
 mod records;

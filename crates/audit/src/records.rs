@@ -142,8 +142,8 @@ pub struct GaugeStep {
     pub size_percent: f64,
 }
 
-/// An interval whose loss departs from the use model by three standard uncertainties or more: where a
-/// gauge step shows in the readings.
+/// An interval whose loss departs from the use model by 1.5 standard uncertainties or more: where a
+/// gauge step shows in the readings (those of three or more are evidence of one; all help date it).
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
 pub struct Jump {
     /// Start, ms.
