@@ -119,11 +119,12 @@ pub(crate) fn findings(
 /// One judged interval: (from ms, to ms, excess loss kg, standardized excess, use kg/day, loss kg).
 pub(crate) type Judged = (i64, i64, f64, f64, f64, f64);
 
-/// Runs less than this apart are one loss (a fill's interval, or a day of ordinary use, inside a
-/// leak splits its run).
 /// Intervals departing from the use model by this many standard uncertainties are kept as jumps:
 /// the gauge test weighs those of three or more as evidence of a step and uses all to date one.
 const JUMP_KEPT_Z: f64 = 1.5;
+
+/// Runs less than this apart are one loss (a fill's interval, or a day of ordinary use, inside a
+/// leak splits its run).
 const RUN_MERGE_GAP_MS: i64 = 4 * 86_400_000;
 
 /// Runs whose gap (from the end of one to the start of the next) is under [`RUN_MERGE_GAP_MS`]
