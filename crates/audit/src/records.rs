@@ -235,7 +235,8 @@ pub struct TankAudit {
     pub readings: Vec<ReadingState>,
     /// The state behind the latest reading the engine accepted.
     pub latest: Option<ReadingState>,
-    /// Intervals departing from the use model by 3 standard uncertainties or more (to date steps).
+    /// Intervals departing from the use model by 1.5 standard uncertainties or more (to find and
+    /// date steps).
     #[serde(skip)]
     pub jumps: Vec<Jump>,
 }
