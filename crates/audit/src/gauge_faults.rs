@@ -142,7 +142,8 @@ pub(crate) fn scatter(pts: &[Point]) -> Option<(f64, f64)> {
     Some((rss / df, df))
 }
 
-/// Test one tank's points (sorted by time), its scatter moderated by the fleet's `prior`.
+/// Test one tank's points (sorted by time), its scatter floored at the moderated estimate of the
+/// fleet's `prior`.
 pub(crate) fn test(pts: &[Point], jumps: &[Jump], prior: Option<Prior>) -> FaultTest {
     let mut out = FaultTest {
         drift: None,
@@ -162,7 +163,7 @@ pub(crate) fn test(pts: &[Point], jumps: &[Jump], prior: Option<Prior>) -> Fault
         let df = fit.n as f64 - 2.0;
         let s2 = rss_line / df;
         let (s2_mod, df_mod) = Prior::moderate(prior, s2, df);
-        // the slope's standard error with the moderated scatter in place of the tank's own
+        // the slope's standard error with the tank's scatter floored at the fleet's moderated one
         let se = if s2 > 0.0 {
             fit.slope_se * (s2_mod / s2).sqrt()
         } else {
