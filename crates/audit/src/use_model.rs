@@ -206,7 +206,8 @@ impl UseModel {
     }
 }
 
-/// Solve the symmetric positive definite system `a x = b` and return `x` and `a⁻¹` (Cholesky).
+/// Solve the symmetric positive definite system `a x = b` and return `x` and `a⁻¹` (Cholesky). Only
+/// the lower triangle of `a` (j ≤ i) is read.
 // index loops read as the textbook algorithm
 #[allow(clippy::needless_range_loop)]
 fn solve_spd(
@@ -297,7 +298,8 @@ fn fit_one(rows: &[Row], scale_kg: f64, zone: Zone) -> Option<UseFit> {
             let w = w_r / (a + q * h);
             for i in 0..BLOCKS {
                 rhs[i] += w * x[i] * y;
-                for j in 0..BLOCKS {
+                // the lower triangle only: the matrix is symmetric and `solve_spd` reads no more
+                for j in 0..=i {
                     m[i][j] += w * x[i] * x[j];
                 }
             }
