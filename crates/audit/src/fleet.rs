@@ -8,7 +8,7 @@ use crate::AuditOptions;
 use crate::balance::set_verdict;
 use crate::calibration::{self, Obs, ScaleModel};
 use crate::effects::{Row, groups, two_way};
-use crate::gauge_faults::{self, FaultTest, Point};
+use crate::gauge_faults::{self, FaultTest, Point, RobustLine};
 use crate::records::{Balance, Finding, FindingKind, Forecast, GaugeStep, TankAudit};
 use crate::stats::holm_adjust;
 pub use crate::vehicles::{AdjustedFill, VehicleFinding, VehicleStatus};
@@ -221,14 +221,18 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
     };
     // the fleet's prior for the scatter about each tank's line, a floor under each tank's own
     // (Smyth 2004; see `moderated`)
+    let lines: Vec<Option<RobustLine>> = tank_points
+        .iter()
+        .map(|p| testable(p).then(|| RobustLine::of(p)).flatten())
+        .collect();
     let prior = crate::moderated::fit(
-        &tank_points
+        &lines
             .iter()
-            .filter(|p| testable(p))
-            .filter_map(|p| gauge_faults::scatter(p))
+            .flatten()
+            .map(RobustLine::scatter)
             .collect::<Vec<_>>(),
     );
-    for (t, pts) in tanks.iter().zip(&tank_points) {
+    for ((t, pts), line) in tanks.iter().zip(&tank_points).zip(&lines) {
         let mut g = GaugeFinding {
             tank: t.tank.clone(),
             status: GaugeStatus::NotEnoughData,
@@ -245,7 +249,7 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
         };
         let mut found = None;
         if testable(pts) {
-            let ft = gauge_faults::test(pts, &t.jumps, prior);
+            let ft = gauge_faults::test(pts, line.as_ref(), &t.jumps, prior);
             g.drift_percent_per_year = ft.drift.map(|d| 100.0 * d.0);
             g.drift_se_percent_per_year = ft.drift.map(|d| 100.0 * d.1);
             g.step_percent = ft.step.map(|s| 100.0 * s.0);

@@ -29,7 +29,9 @@
 
 use crate::moderated::Prior;
 use crate::records::Jump;
-use crate::stats::{fisher_combined_p, mad_sigma, normal_upper_p, t_two_sided_p, weighted_line};
+use crate::stats::{
+    LineFit, fisher_combined_p, mad_sigma, normal_upper_p, t_two_sided_p, weighted_line,
+};
 
 const YEAR_MS: f64 = 365.0 * 86_400_000.0;
 /// Fewest fills on each side of a step (with two, one short fill at either end of the data passed for
@@ -117,34 +119,48 @@ fn as_line(q: &[Point]) -> Vec<(f64, f64, f64)> {
     q.iter().map(|p| (p.0 as f64 / YEAR_MS, p.1, p.2)).collect()
 }
 
-/// The robust line through the points, Huber's weights folded in.
-fn robust_line(pts: &[Point]) -> Vec<Point> {
-    robust(pts, |q| {
-        let fit = weighted_line(&as_line(q))?;
-        Some(
-            q.iter()
-                .map(|p| fit.intercept + fit.slope * p.0 as f64 / YEAR_MS)
-                .collect(),
-        )
-    })
+/// A tank's points' robust line (Huber's weights folded in), fitted once: its scatter feeds the
+/// fleet's scale prior ([`crate::moderated`]) and its slope the drift test.
+pub(crate) struct RobustLine {
+    fit: LineFit,
+    /// Σ w e² about the line.
+    rss: f64,
 }
 
-/// The weighted scatter of the points about their robust line, s² = Σ w e² / (n − 2), and its
-/// degrees of freedom: what the fleet's scale prior is fitted to ([`crate::moderated`]).
-pub(crate) fn scatter(pts: &[Point]) -> Option<(f64, f64)> {
-    let line_pts = as_line(&robust_line(pts));
-    let fit = weighted_line(&line_pts)?;
-    let rss: f64 = line_pts
-        .iter()
-        .map(|p| p.2 * (p.1 - fit.intercept - fit.slope * p.0).powi(2))
-        .sum();
-    let df = fit.n as f64 - 2.0;
-    Some((rss / df, df))
+impl RobustLine {
+    pub(crate) fn of(pts: &[Point]) -> Option<RobustLine> {
+        let robust_pts = robust(pts, |q| {
+            let fit = weighted_line(&as_line(q))?;
+            Some(
+                q.iter()
+                    .map(|p| fit.intercept + fit.slope * p.0 as f64 / YEAR_MS)
+                    .collect(),
+            )
+        });
+        let line_pts = as_line(&robust_pts);
+        let fit = weighted_line(&line_pts)?;
+        let rss = line_pts
+            .iter()
+            .map(|p| p.2 * (p.1 - fit.intercept - fit.slope * p.0).powi(2))
+            .sum();
+        Some(RobustLine { fit, rss })
+    }
+
+    /// The weighted scatter about the line, s² = Σ w e² / (n − 2), and its degrees of freedom.
+    pub(crate) fn scatter(&self) -> (f64, f64) {
+        let df = self.fit.n as f64 - 2.0;
+        (self.rss / df, df)
+    }
 }
 
-/// Test one tank's points (sorted by time), its scatter floored at the moderated estimate of the
-/// fleet's `prior`.
-pub(crate) fn test(pts: &[Point], jumps: &[Jump], prior: Option<Prior>) -> FaultTest {
+/// Test one tank's points (sorted by time) and their robust `line`, its scatter floored at the
+/// moderated estimate of the fleet's `prior`.
+pub(crate) fn test(
+    pts: &[Point],
+    line: Option<&RobustLine>,
+    jumps: &[Jump],
+    prior: Option<Prior>,
+) -> FaultTest {
     let mut out = FaultTest {
         drift: None,
         p_drift: None,
@@ -153,15 +169,11 @@ pub(crate) fn test(pts: &[Point], jumps: &[Jump], prior: Option<Prior>) -> Fault
         step_fits_better: false,
     };
     let n = pts.len();
-    let line_pts = as_line(&robust_line(pts));
     let mut rss_line = f64::INFINITY;
-    if let Some(fit) = weighted_line(&line_pts) {
-        rss_line = line_pts
-            .iter()
-            .map(|p| p.2 * (p.1 - fit.intercept - fit.slope * p.0).powi(2))
-            .sum();
-        let df = fit.n as f64 - 2.0;
-        let s2 = rss_line / df;
+    if let Some(line) = line {
+        let fit = line.fit;
+        rss_line = line.rss;
+        let (s2, df) = line.scatter();
         let (s2_mod, df_mod) = Prior::moderate(prior, s2, df);
         // the slope's standard error with the tank's scatter floored at the fleet's moderated one
         let se = if s2 > 0.0 {
@@ -193,7 +205,7 @@ pub(crate) fn test(pts: &[Point], jumps: &[Jump], prior: Option<Prior>) -> Fault
         if !guided {
             candidates = (STEP_SIDE..=n - STEP_SIDE).collect();
         }
-        let mut best: Option<(usize, f64, f64)> = None; // split, rss, p
+        let mut best: Option<(usize, f64, f64, f64)> = None; // split, rss, p, its variance
         let split_fit = |k: usize| {
             robust(pts, |q| {
                 let (m1, _) = weighted_mean(&q[..k]);
@@ -211,12 +223,12 @@ pub(crate) fn test(pts: &[Point], jumps: &[Jump], prior: Option<Prior>) -> Fault
             let se = (s2 * (1.0 / w1 + 1.0 / w2)).sqrt();
             let t = if se > 0.0 { (m2 - m1) / se } else { 0.0 };
             let p = (candidates.len() as f64 * t_p(t, df)).min(1.0);
-            if best.is_none_or(|(_, _, bp)| p < bp) {
-                best = Some((k, r, p));
+            if best.is_none_or(|(_, _, bp, _)| p < bp) {
+                best = Some((k, r, p, s2));
                 best_pts = q;
             }
         }
-        if let Some((k, r, p_fills)) = best {
+        if let Some((k, r, p_fills, s2)) = best {
             let (m1, _) = weighted_mean(&best_pts[..k]);
             let (m2, _) = weighted_mean(&best_pts[k..]);
             let size = m2 - m1;
@@ -225,7 +237,6 @@ pub(crate) fn test(pts: &[Point], jumps: &[Jump], prior: Option<Prior>) -> Fault
             // method; the smaller of the fills' p and the combined one, doubled (Bonferroni)
             let p_jump = jump_p(pts[k - 1].0, pts[k].0, size, jumps);
             let p = (2.0 * p_fills.min(fisher_combined_p(&[p_fills, p_jump]))).min(1.0);
-            let (s2, _) = Prior::moderate(prior, r / (n as f64 - 2.0), n as f64 - 2.0);
             out.step = Some((size, date(&best_pts, k, size, s2, jumps), p));
             // Schwarz's criterion: the step has one parameter more than the line (where it falls),
             // unless the readings placed it
@@ -342,7 +353,7 @@ mod tests {
             sd_kg: 50.0,
             contents_kg: 10_000.0,
         };
-        let t = test(&pts, &[jump], None);
+        let t = test(&pts, RobustLine::of(&pts).as_ref(), &[jump], None);
         let (size, at, p) = t.step.unwrap();
         assert!((size + 0.03).abs() < 1e-12, "{size}");
         assert_eq!(at, jump.to_ms);
