@@ -33,8 +33,8 @@ pub(crate) fn findings(
         let Some(fit) = model.at(iv.from_ms + (iv.to_ms - iv.from_ms) / 2) else {
             continue;
         };
-        let (expected, _) = fit.predict(iv.from_ms, iv.to_ms);
-        let sd = fit.interval_sd(iv.from_ms, iv.to_ms).max(1e-9);
+        let (expected, sd) = fit.interval(iv.from_ms, iv.to_ms);
+        let sd = sd.max(1e-9);
         let lost = iv.from_kg - iv.to_kg;
         let usage = fit.weekly_mean_kg_day();
         let z = (lost - expected) / sd;

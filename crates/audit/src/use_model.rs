@@ -48,14 +48,8 @@ const LONGEST_INTERVAL_MS: i64 = 15 * DAY_MS;
 /// Huber's tuning constant for the robust reweighting.
 const HUBER_C: f64 = 2.0;
 
-/// Hours of [t0, t1) in each block of the week as the site's clock in `zone` shows it (its offset
-/// at the middle of the stretch: a daylight-saving change inside one moves an hour between blocks).
-pub(crate) fn local_block_hours(zone: Zone, t0_ms: i64, t1_ms: i64) -> [f64; BLOCKS] {
-    let off = zone.offset_ms(t0_ms + (t1_ms - t0_ms) / 2);
-    block_hours(t0_ms + off, t1_ms + off)
-}
-
 /// Hours of [t0, t1) in each block of the week (UTC; 1970-01-01 was a Thursday).
+#[cfg(test)]
 pub(crate) fn block_hours(t0_ms: i64, t1_ms: i64) -> [f64; BLOCKS] {
     let mut out = [0.0; BLOCKS];
     for_each_day(t0_ms, t1_ms, |base, day_h, night_h| {
@@ -95,23 +89,28 @@ fn for_each_day(t0_ms: i64, t1_ms: i64, mut f: impl FnMut(usize, f64, f64)) {
     }
 }
 
-/// The sums over the days of [t0, t1) on the site's clock of each day's hours squared, by kind of
-/// day: (day², day × night, night²) for weekdays, Saturdays and Sundays. The use of one day is
-/// `d·r_day + n·r_night`; the sum of its squares over the days is a quadratic form in the rates
-/// that these nine numbers hold (see [`squared_daily_use`]).
-pub(crate) fn local_day_squares(zone: Zone, t0_ms: i64, t1_ms: i64) -> DaySquares {
+/// Hours of [t0, t1) in each block of the week as the site's clock in `zone` shows it (its offset
+/// at the middle of the stretch: a daylight-saving change inside one moves an hour between blocks),
+/// and the sums over its days of each day's hours squared, by kind of day: (day², day × night,
+/// night²) for weekdays, Saturdays and Sundays. The use of one day is `d·r_day + n·r_night`; the sum
+/// of its squares over the days is a quadratic form in the rates that these nine numbers hold (see
+/// [`squared_daily_use`]).
+pub(crate) fn local_hours(zone: Zone, t0_ms: i64, t1_ms: i64) -> ([f64; BLOCKS], DaySquares) {
     let off = zone.offset_ms(t0_ms + (t1_ms - t0_ms) / 2);
-    let mut out = [0.0; 9];
+    let mut hours = [0.0; BLOCKS];
+    let mut squares = [0.0; 9];
     for_each_day(t0_ms + off, t1_ms + off, |base, d, n| {
+        hours[base] += d;
+        hours[base + 1] += n;
         let k = base / 2 * 3;
-        out[k] += d * d;
-        out[k + 1] += d * n;
-        out[k + 2] += n * n;
+        squares[k] += d * d;
+        squares[k + 1] += d * n;
+        squares[k + 2] += n * n;
     });
-    out
+    (hours, squares)
 }
 
-/// See [`local_day_squares`].
+/// Each day's hours squared, summed by kind of day (see [`local_hours`]).
 pub(crate) type DaySquares = [f64; 9];
 
 /// The sum over the days of an interval of the squared use each day, kg², for the rates `r`.
@@ -154,7 +153,7 @@ impl UseFit {
     /// Use over [t0, t1): the mean, kg, and its standard uncertainty, kg, without the two readings'
     /// own noise (a balance has its readings' uncertainty in its budget already).
     pub(crate) fn predict(&self, t0_ms: i64, t1_ms: i64) -> (f64, f64) {
-        let x = local_block_hours(self.zone, t0_ms, t1_ms);
+        let (x, days) = local_hours(self.zone, t0_ms, t1_ms);
         let mean: f64 = x.iter().zip(&self.rate_kg_h).map(|(h, r)| h * r).sum();
         let mut var = 0.0;
         for (i, xi) in x.iter().enumerate() {
@@ -162,15 +161,21 @@ impl UseFit {
                 var += xi * self.cov[i][j] * xj;
             }
         }
-        let days = local_day_squares(self.zone, t0_ms, t1_ms);
         var += self.daily_var_rel * squared_daily_use(&days, &self.rate_kg_h);
         (mean.max(0.0), var.max(0.0).sqrt())
     }
 
     /// The standard uncertainty of the mass lost over [t0, t1) as two readings measure it.
+    #[cfg(test)]
     pub(crate) fn interval_sd(&self, t0_ms: i64, t1_ms: i64) -> f64 {
-        let (_, sd) = self.predict(t0_ms, t1_ms);
-        (sd * sd + self.readings_var_kg2).sqrt()
+        self.interval(t0_ms, t1_ms).1
+    }
+
+    /// The use over [t0, t1), kg, and the standard uncertainty of the mass lost over it as two
+    /// readings measure it, kg.
+    pub(crate) fn interval(&self, t0_ms: i64, t1_ms: i64) -> (f64, f64) {
+        let (mean, sd) = self.predict(t0_ms, t1_ms);
+        (mean, (sd * sd + self.readings_var_kg2).sqrt())
     }
 
     /// The average use over a week, kg/day.
@@ -206,18 +211,29 @@ impl UseModel {
         // each interval's hours in the blocks, once (an interval falls in several anchors' windows)
         let all_rows: Vec<Row> = usable.iter().map(|o| row(o, zone)).collect();
         let mut anchors = Vec::new();
-        let mut near: Vec<Row> = Vec::with_capacity(all_rows.len());
+        // stretches between consecutive readings follow one another, so the stretches near an
+        // anchor are a run of them (found by bisection, no copy); otherwise they are gathered
+        let in_order = usable.windows(2).all(|w| w[0].to_ms <= w[1].from_ms);
+        let mut near: Vec<Row> = Vec::new();
         let mut t = first.from_ms;
         loop {
-            near.clear();
-            near.extend(
-                usable
-                    .iter()
-                    .zip(&all_rows)
-                    .filter(|(o, _)| o.to_ms >= t - WINDOW_MS && o.from_ms <= t + WINDOW_MS)
-                    .map(|(_, r)| *r),
-            );
-            let data = if near.len() >= 8 { &near } else { &all_rows };
+            let (lo_t, hi_t) = (t - WINDOW_MS, t + WINDOW_MS);
+            let window: &[Row] = if in_order {
+                let lo = usable.partition_point(|o| o.to_ms < lo_t);
+                let hi = usable.partition_point(|o| o.from_ms <= hi_t).max(lo);
+                &all_rows[lo..hi]
+            } else {
+                near.clear();
+                near.extend(
+                    usable
+                        .iter()
+                        .zip(&all_rows)
+                        .filter(|(o, _)| o.to_ms >= lo_t && o.from_ms <= hi_t)
+                        .map(|(_, r)| *r),
+                );
+                &near
+            };
+            let data = if window.len() >= 8 { window } else { &all_rows };
             if let Some(f) = fit_one(data, scale_kg, zone) {
                 anchors.push((t, f));
             }
@@ -342,14 +358,9 @@ fn nonnegative(
 type Row = ([f64; BLOCKS], f64, f64, DaySquares);
 
 fn row(o: &Observed, zone: Zone) -> Row {
-    let x = local_block_hours(zone, o.from_ms, o.to_ms);
+    let (x, days) = local_hours(zone, o.from_ms, o.to_ms);
     let hours: f64 = x.iter().sum();
-    (
-        x,
-        o.lost_kg,
-        hours,
-        local_day_squares(zone, o.from_ms, o.to_ms),
-    )
+    (x, o.lost_kg, hours, days)
 }
 
 /// One profile from `rows`.
