@@ -5,7 +5,8 @@
 //! the vehicles (Holm, "A simple sequentially rejective multiple test procedure", Scand. J.
 //! Statist. 6, 1979):
 //! - the bias: the weighted mean of (gained + drawn) / billed less its tank's level fitted from the
-//!   other vehicles' fills there (weights 1/u² of each ratio; its standard error from the weighted
+//!   other vehicles' fills there (weights 1/u², u that of the ratio and of the level it is compared
+//!   with, Σw²u² / (Σw)² for a level of weights w; its standard error from the weighted
 //!   scatter, the weights known up to a common factor — the external consistency of a weighted
 //!   mean, Birge, Phys. Rev. 40, 1932), by Student's t;
 //! - the short count: a vehicle short by a few percent on only some of its fills has a small mean
@@ -139,17 +140,23 @@ pub(crate) fn test(
     opts: &AuditOptions,
 ) -> Vec<VehicleFinding> {
     // each tank's level from its fills, vehicle effects removed, robust weights: (Σw x, Σw, n) per
-    // tank and per (tank, vehicle), so a vehicle is compared with the level the others show
+    // tank and per (tank, vehicle), so a vehicle is compared with the level the others show; and
+    // (Σw²u²) likewise, the variance of that level being Σw²u² / (Σw)²
     let mut levels = LeaveOut::new(tanks.len());
+    let mut spread = LeaveOut::new(tanks.len());
     for (k, r) in kept.iter().enumerate() {
         let w = fit.weight.get(k).copied().unwrap_or(1.0);
         let effect = mixed.get(k).copied().flatten();
         let x = r.2 - effect.unwrap_or_else(|| fit.vehicle.get(r.1).copied().unwrap_or(0.0));
         levels.add(r.0, r.1, w * x, w);
+        let u = kept_u.get(k).copied().unwrap_or(0.0);
+        spread.add(r.0, r.1, (w * u).powi(2), 0.0);
     }
-    let level_without = |ti: usize, vi: usize| -> Option<f64> {
+    // (level, its variance) at tank `ti` from the vehicles other than `vi`
+    let level_without = |ti: usize, vi: usize| -> Option<(f64, f64)> {
         let (sx, sw, n) = levels.without(ti, vi)?;
-        (n >= 2 && sw > 1e-9).then(|| sx / sw)
+        let (s2, _, _) = spread.without(ti, vi)?;
+        (n >= 2 && sw > 1e-9).then(|| (sx / sw, s2 / (sw * sw)))
     };
     let kept_of_vehicle = groups(kept.iter().map(|r| r.1), names.len());
     // verdicts per vehicle
@@ -182,14 +189,15 @@ pub(crate) fn test(
     let mut vehicles: Vec<VehicleFinding> = Vec::new();
     let mut vp: Vec<(usize, f64)> = Vec::new();
     for (vi, (name, carrier)) in names.iter().enumerate() {
-        // (ratio less its tank's level from the other vehicles' fills, weight 1/u² of the ratio);
-        // fills at tanks no other vehicle filled often enough have nothing to compare with
+        // (ratio less its tank's level from the other vehicles' fills, weight 1/u² with u that of
+        // the ratio and of the level together); fills at tanks no other vehicle filled often
+        // enough have nothing to compare with
         let mut adjusted = Vec::new();
         let d: Vec<(f64, f64)> = kept_of_vehicle[vi]
             .iter()
             .filter_map(|&k| {
-                let level = level_without(kept[k].0, vi)?;
-                let u = kept_u.get(k)?.max(1e-4);
+                let (level, level_var) = level_without(kept[k].0, vi)?;
+                let u = (kept_u.get(k)?.powi(2) + level_var).sqrt().max(1e-4);
                 let t = tanks.get(kept[k].0)?;
                 if let Some(b) = kept_at.get(k).and_then(|&bi| t.balances.get(bi)) {
                     adjusted.push(AdjustedFill {
@@ -436,5 +444,81 @@ mod tests {
     #[test]
     fn normal_tail_at_two() {
         assert!((normal_tail(2.0) - 0.0227501).abs() < 1e-6);
+    }
+
+    /// A vehicle's fill is compared with the level its tank's other vehicles show, and carries
+    /// that level's uncertainty as well as its own: the level is a mean of the others' ratios with
+    /// weights w (here 1) and standard uncertainties u, so its variance is Σw²u² / (Σw)² (the
+    /// variance of a weighted mean, worked by hand). Tank T0 has two other fills at u = 1 %:
+    /// 0.0002 / 4 = 5e-5, so a fill of u = 1 % carries √(1e-4 + 5e-5) = 1.2247 %; tank T1 has ten:
+    /// 0.001 / 100 = 1e-5, √1.1e-4 = 1.0488 %.
+    #[test]
+    fn a_fill_carries_its_levels_uncertainty() {
+        let opts = AuditOptions::default();
+        let tank = |name: &str, balances: Vec<Balance>| TankAudit {
+            tank: name.into(),
+            fluid: fluids::FluidId::Nitrogen,
+            ner_setting_percent_per_day: 0.2,
+            ner_fitted_percent_per_day: None,
+            full_mass_kg: 20_000.0,
+            readings_used: 0,
+            readings_refused: 0,
+            balances,
+            findings: Vec::new(),
+            forecast: None,
+            readings: Vec::new(),
+            latest: None,
+            jumps: Vec::new(),
+        };
+        // vehicle 0 fills both tanks three times; vehicle 1 fills T0 twice, vehicle 2 T1 ten times
+        let mut kept: Vec<Row> = Vec::new();
+        let mut kept_at = Vec::new();
+        let mut t0 = Vec::new();
+        let mut t1 = Vec::new();
+        for i in 0..3 {
+            kept.push((0, 0, 1.0));
+            kept_at.push(t0.len());
+            t0.push(balance("A", i as f64, 100.0));
+            kept.push((1, 0, 1.0));
+            kept_at.push(t1.len());
+            t1.push(balance("A", i as f64, 100.0));
+        }
+        for i in 0..2 {
+            kept.push((0, 1, 1.0));
+            kept_at.push(t0.len());
+            t0.push(balance("B", i as f64, 100.0));
+        }
+        for i in 0..10 {
+            kept.push((1, 2, 1.0));
+            kept_at.push(t1.len());
+            t1.push(balance("C", i as f64, 100.0));
+        }
+        let tanks = [tank("T0", t0), tank("T1", t1)];
+        let kept_u = vec![0.01; kept.len()];
+        let fit = Effects {
+            tank: vec![1.0, 1.0],
+            vehicle: vec![0.0; 3],
+            weight: vec![1.0; kept.len()],
+            scale: 0.01,
+        };
+        let names: Vec<(String, String)> = ["A", "B", "C"]
+            .iter()
+            .map(|v| (v.to_string(), "C".to_string()))
+            .collect();
+        let index: BTreeMap<&str, usize> = [("A", 0), ("B", 1), ("C", 2)].into_iter().collect();
+        let mixed = vec![None; kept.len()];
+        let found = test(
+            &names, &index, &tanks, &kept, &kept_u, &kept_at, &fit, &mixed, &opts,
+        );
+        let a = &found[0];
+        assert_eq!(a.adjusted.len(), 6);
+        for f in &a.adjusted {
+            let want = if f.tank == "T0" {
+                (1e-4_f64 + 5e-5).sqrt()
+            } else {
+                (1e-4_f64 + 1e-5).sqrt()
+            };
+            assert!((f.u_percent - 100.0 * want).abs() < 1e-9, "{f:?}");
+        }
     }
 }
