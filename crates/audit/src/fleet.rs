@@ -182,8 +182,8 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
         let level = all_fit.tank.get(r.0)?;
         Some(m.effect(r.2 - level, r.3.max(1e-4)))
     };
-    // (the ratio less what the fill's vehicle adds, its variance) for the gauge's tests and scale;
-    // `effect` is the vehicle's effect used where no mixture applies
+    // (the ratio less what the fill's vehicle adds, its variance) for the gauge's scale (and its
+    // tests where no mixture applies); `effect` is the vehicle's effect used where none does
     let gauge_point = |r: &(usize, usize, f64, f64, i64, usize), effect: f64| -> (f64, f64) {
         let u2 = r.3.max(1e-4).powi(2);
         match mixed(r) {
@@ -197,6 +197,19 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
     let mut raw_p: Vec<(usize, f64)> = Vec::new();
     let mut tests: Vec<Option<FaultTest>> = Vec::new();
     let rows_of_tank = groups(rows.iter().map(|r| r.0), tanks.len());
+    // for the tests, a set-apart vehicle's fill is put on its tank's level by the vehicle's
+    // expected shortfall, not by the one its own ratio suggests: a gauge that stepped makes every
+    // fill after the step look short, and a fill's own short probability would take the step out
+    let test_point = |r: &(usize, usize, f64, f64, i64, usize)| -> (f64, f64) {
+        let u2 = r.3.max(1e-4).powi(2);
+        match mixtures.get(r.1).copied().flatten() {
+            Some(m) => {
+                let (e, v) = m.expected();
+                (r.2 - e, u2 + v)
+            }
+            None => gauge_point(r, veff.get(r.1).copied().unwrap_or(0.0)),
+        }
+    };
     let tank_points: Vec<Vec<Point>> = rows_of_tank
         .iter()
         .map(|ks| {
@@ -204,7 +217,7 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
                 .iter()
                 .map(|&k| &rows[k])
                 .map(|r| {
-                    let (x, var) = gauge_point(r, veff.get(r.1).copied().unwrap_or(0.0));
+                    let (x, var) = test_point(r);
                     (r.4, x, 1.0 / var)
                 })
                 .collect();
