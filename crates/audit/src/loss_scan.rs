@@ -36,19 +36,31 @@ const MAX_STRETCH: f64 = 1.5;
 /// the tank's intervals from it are held at that distance before the scan.
 const WINSOR_Z: f64 = 4.0;
 
+/// A neighbour that departs from the model this many robust standard deviations the same way makes
+/// an interval part of a run, not a lone one.
+const RUN_NEIGHBOUR_Z: f64 = 1.0;
+
 /// Each interval's loss beyond the model held within [`WINSOR_Z`] robust standard deviations of
 /// the tank's standardized excesses (their 1.4826 × median absolute deviation): a winsorized
 /// series (Huber 1981, §1.2; Tukey's winsorizing), so that one reading's slip or one busy day, a
 /// single interval, does not make a run of its own. A leak is many intervals each a little
-/// beyond use, untouched.
+/// beyond use, untouched: an interval with a neighbour beyond [`RUN_NEIGHBOUR_Z`] the same way is
+/// not held (over a still weekend a leak's steady loss stands far beyond the little use expected).
 pub(crate) fn winsorize(judged: &mut [Judged]) {
     let z: Vec<f64> = judged.iter().map(|j| j.3).collect();
     let Some(spread) = mad_sigma(&z).filter(|s| *s > 0.0) else {
         return;
     };
     let limit = WINSOR_Z * spread;
-    for j in judged.iter_mut() {
-        if j.3.abs() > limit {
+    let in_run = |i: usize| {
+        let same_way = |n: usize| {
+            z.get(n)
+                .is_some_and(|x| x * z[i].signum() >= RUN_NEIGHBOUR_Z * spread)
+        };
+        (i > 0 && same_way(i - 1)) || same_way(i + 1)
+    };
+    for (i, j) in judged.iter_mut().enumerate() {
+        if j.3.abs() > limit && !in_run(i) {
             let held = j.2 * limit / j.3.abs();
             j.5 += held - j.2;
             j.2 = held;
@@ -305,6 +317,25 @@ mod tests {
         assert!((judged[8].2 - 59.304).abs() < 1e-9, "{:?}", judged[8]);
         assert!((judged[8].5 - 159.304).abs() < 1e-9, "{:?}", judged[8]);
         assert!((judged[8].3 - 5.9304).abs() < 1e-12, "{:?}", judged[8]);
+    }
+
+    /// Worked by hand: the same eight days, then one of z = 10 followed by one of z = 2: the
+    /// standardized excesses have median 0.5 and median absolute deviation 1 (spread 1.4826, limit
+    /// 5.9304), but the day beyond the limit has a neighbour 2 > 1.4826 beyond use too, so it is part
+    /// of a run (a leak over a still weekend) and nothing is held.
+    #[test]
+    fn an_interval_in_a_run_is_not_held() {
+        let mut judged: Vec<Judged> = (0..8)
+            .map(|d| {
+                let lost = if d % 2 == 0 { 105.0 } else { 95.0 };
+                day(d, lost)
+            })
+            .collect();
+        judged.push(day(8, 200.0));
+        judged.push(day(9, 120.0));
+        let before = judged.clone();
+        winsorize(&mut judged);
+        assert_eq!(judged, before);
     }
 
     /// Constructed: 200 days of use of 100 kg ± 10 kg (uniform) against a model of 100 kg; a leak
