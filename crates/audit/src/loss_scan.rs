@@ -298,18 +298,20 @@ mod tests {
             .collect()
     }
 
+    /// Eight days losing 105 and 95 kg in turn against a model of 100 kg: z = ±0.5.
+    fn eight_days() -> Vec<Judged> {
+        (0..8)
+            .map(|d| day(d, if d % 2 == 0 { 105.0 } else { 95.0 }))
+            .collect()
+    }
+
     /// Worked by hand: standardized excesses ±0.5 and one of 10 have median 0.5 and median absolute
     /// deviation 1, so the limit is 4 × 1.4826 = 5.9304; the lone interval's 100 kg excess (z = 10)
     /// is held at 100 × 5.9304 / 10 = 59.304 kg (its loss of 200 kg at 159.304), the others
     /// untouched.
     #[test]
     fn a_lone_interval_is_held_by_hand() {
-        let mut judged: Vec<Judged> = (0..8)
-            .map(|d| {
-                let lost = if d % 2 == 0 { 105.0 } else { 95.0 };
-                day(d, lost)
-            })
-            .collect();
+        let mut judged = eight_days();
         judged.push(day(8, 200.0));
         let before = judged.clone();
         winsorize(&mut judged);
@@ -325,12 +327,7 @@ mod tests {
     /// of a run (a leak over a still weekend) and nothing is held.
     #[test]
     fn an_interval_in_a_run_is_not_held() {
-        let mut judged: Vec<Judged> = (0..8)
-            .map(|d| {
-                let lost = if d % 2 == 0 { 105.0 } else { 95.0 };
-                day(d, lost)
-            })
-            .collect();
+        let mut judged = eight_days();
         judged.push(day(8, 200.0));
         judged.push(day(9, 120.0));
         let before = judged.clone();
