@@ -165,12 +165,6 @@ impl UseFit {
         (mean.max(0.0), var.max(0.0).sqrt())
     }
 
-    /// The standard uncertainty of the mass lost over [t0, t1) as two readings measure it.
-    #[cfg(test)]
-    pub(crate) fn interval_sd(&self, t0_ms: i64, t1_ms: i64) -> f64 {
-        self.interval(t0_ms, t1_ms).1
-    }
-
     /// The use over [t0, t1), kg, and the standard uncertainty of the mass lost over it as two
     /// readings measure it, kg.
     pub(crate) fn interval(&self, t0_ms: i64, t1_ms: i64) -> (f64, f64) {
@@ -719,8 +713,8 @@ mod tests {
         let (mut still, mut busy) = (Vec::new(), Vec::new());
         for o in &observed {
             let f = model.at(o.from_ms + (o.to_ms - o.from_ms) / 2).unwrap();
-            let (mean, _) = f.predict(o.from_ms, o.to_ms);
-            let z = (o.lost_kg - mean) / f.interval_sd(o.from_ms, o.to_ms);
+            let (mean, sd) = f.interval(o.from_ms, o.to_ms);
+            let z = (o.lost_kg - mean) / sd;
             match ((o.from_ms - monday) / DAY_MS) % 7 {
                 5 => still.push(z),
                 1..=3 => busy.push(z),
