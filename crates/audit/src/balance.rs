@@ -16,6 +16,7 @@ pub(crate) fn bracket_reading(ctx: &Ctx<'_>, i: usize, e: &Eval) -> Option<Brack
         pressure_pa: r.pressure_pa,
         liquid_temperature_k: e.liquid_temperature_k,
         saturation_temperature_k: e.saturation_temperature_k,
+        span_kg: e.span_kg,
     })
 }
 

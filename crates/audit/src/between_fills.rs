@@ -65,7 +65,7 @@ pub(crate) fn findings(
                 to_ms: iv.to_ms,
                 z,
                 sd_kg: sd,
-                contents_kg: iv.from_kg,
+                span_kg: iv.from_span_kg,
             });
         }
         judged.push((iv.from_ms, iv.to_ms, lost - expected, z, usage, lost));

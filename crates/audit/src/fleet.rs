@@ -40,11 +40,13 @@ pub struct GaugeFinding {
     pub status: GaugeStatus,
     /// Fills tested.
     pub fills: usize,
-    /// Trend of (gained + drawn)/billed after vehicle effects, % per year (≈ the span's drift).
+    /// The span's drift, % per year: the trend of (gained + drawn)/billed after vehicle effects, over
+    /// the fills' mean sensitivity to the span.
     pub drift_percent_per_year: Option<f64>,
     /// Its standard error, % per year.
     pub drift_se_percent_per_year: Option<f64>,
-    /// The best step of the ratios, after − before, % (≈ of span).
+    /// The best step of the span, after − before, % (the ratios' over their sensitivity, as for the
+    /// drift).
     pub step_percent: Option<f64>,
     /// When that step happened, ms (dated from the readings where they show it).
     pub step_ms: Option<i64>,
@@ -96,7 +98,11 @@ pub struct FleetAudit {
     pub tanks: Vec<TankSummary>,
 }
 
-const GAUGE_TEST: &str = "(gained+drawn)/billed over time, vehicle effects removed: weighted least-squares slope t-test (drift) and best split of two means with a Bonferroni-adjusted t-test (step), the better-fitting model named; Holm across tanks";
+/// The least sensitivity of a fill's ratio to its gauge's span taken (a fill to the top of a
+/// horizontal tank from half full can move its readings' span masses by little).
+const MIN_SENSITIVITY: f64 = 0.05;
+
+const GAUGE_TEST: &str = "(gained+drawn)/billed over time, vehicle effects removed, sizes over the fills' mean sensitivity to the span: weighted least-squares slope t-test (drift) and best split of two means with a Bonferroni-adjusted t-test (step), the better-fitting model named; Holm across tanks";
 
 /// A balance that can speak for its gauge and its vehicle: judged from two readings, and not spanning
 /// a finding between fills of its tank (a leak's or an unlogged fill's mass is in its gain, not the
@@ -162,6 +168,27 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
                 })
         })
         .collect();
+    // how far each fill's ratio moves per unit relative error of its gauge's span: its two readings'
+    // span masses' difference (see `Eval::span_kg`) per kg gained, times the ratio (the use between
+    // readings and fill comes from readings read with the same span); 1 in a vertical tank's
+    // straight shell, some 0.4–0.9 in a horizontal one
+    let sensitivity: Vec<f64> = rows
+        .iter()
+        .map(|r| {
+            let b = &tanks[r.0].balances[r.5];
+            match (&b.before, &b.after) {
+                (Some(x), Some(y)) => (y.span_kg - x.span_kg) / b.gained_kg * b.ratio,
+                _ => 1.0,
+            }
+        })
+        .map(|s| {
+            if s.is_finite() {
+                s.max(MIN_SENSITIVITY)
+            } else {
+                1.0
+            }
+        })
+        .collect();
     let plain: Vec<Row> = rows.iter().map(|r| (r.0, r.1, r.2)).collect();
     // a vehicle short on only some fills (set apart by the Type A step) as a mixture of honest and
     // short deliveries, the tanks' levels fitted with its fills raised by their expected shortfall
@@ -210,21 +237,25 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
             None => gauge_point(r, veff.get(r.1).copied().unwrap_or(0.0)),
         }
     };
-    let tank_points: Vec<Vec<Point>> = rows_of_tank
+    // each tank's points, and how far its fills' ratios move per unit relative error of its span
+    // (their sensitivities' weighted mean): a step's size in the ratios over it is the span's, which
+    // times a reading's span mass is the jump the step gives that reading
+    let (tank_points, ratio_per_span): (Vec<Vec<Point>>, Vec<f64>) = rows_of_tank
         .iter()
         .map(|ks| {
-            let mut pts: Vec<Point> = ks
-                .iter()
-                .map(|&k| &rows[k])
-                .map(|r| {
-                    let (x, var) = test_point(r);
-                    (r.4, x, 1.0 / var)
-                })
-                .collect();
+            let mut pts: Vec<Point> = Vec::with_capacity(ks.len());
+            let (mut sw, mut sws) = (0.0, 0.0);
+            for &k in ks {
+                let r = &rows[k];
+                let (x, var) = test_point(r);
+                pts.push((r.4, x, 1.0 / var));
+                sw += 1.0 / var;
+                sws += sensitivity.get(k).copied().unwrap_or(1.0) / var;
+            }
             pts.sort_by_key(|p| p.0);
-            pts
+            (pts, if sw > 0.0 { sws / sw } else { 1.0 })
         })
-        .collect();
+        .unzip();
     let testable = |pts: &[Point]| {
         let span_years = match (pts.first(), pts.last()) {
             (Some(a), Some(b)) => (b.0 - a.0) as f64 / YEAR_MS,
@@ -245,7 +276,12 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
             .map(RobustLine::scatter)
             .collect::<Vec<_>>(),
     );
-    for ((t, pts), line) in tanks.iter().zip(&tank_points).zip(&lines) {
+    for (((t, pts), line), &per_span) in tanks
+        .iter()
+        .zip(&tank_points)
+        .zip(&lines)
+        .zip(&ratio_per_span)
+    {
         let mut g = GaugeFinding {
             tank: t.tank.clone(),
             status: GaugeStatus::NotEnoughData,
@@ -262,10 +298,10 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
         };
         let mut found = None;
         if testable(pts) {
-            let ft = gauge_faults::test(pts, line.as_ref(), &t.jumps, prior);
-            g.drift_percent_per_year = ft.drift.map(|d| 100.0 * d.0);
-            g.drift_se_percent_per_year = ft.drift.map(|d| 100.0 * d.1);
-            g.step_percent = ft.step.map(|s| 100.0 * s.0);
+            let ft = gauge_faults::test(pts, line.as_ref(), &t.jumps, per_span, prior);
+            g.drift_percent_per_year = ft.drift.map(|d| 100.0 * d.0 / per_span);
+            g.drift_se_percent_per_year = ft.drift.map(|d| 100.0 * d.1 / per_span);
+            g.step_percent = ft.step.map(|s| 100.0 * s.0 / per_span);
             g.step_ms = ft.step.map(|s| s.1);
             g.p_value = ft.p;
             if let Some(p) = ft.p {
@@ -287,10 +323,14 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
         if pa >= opts.drift_alpha {
             continue;
         }
-        let step_big = ft.step.is_some_and(|s| s.0.abs() >= opts.step_min_fraction);
+        // the sizes in the span's terms (one gauge per tank, in the tanks' order)
+        let per_span = ratio_per_span.get(*gi).copied().unwrap_or(1.0);
+        let step_big = ft
+            .step
+            .is_some_and(|s| s.0.abs() / per_span >= opts.step_min_fraction);
         let drift_big = ft
             .drift
-            .is_some_and(|d| d.0.abs() >= opts.drift_min_per_year);
+            .is_some_and(|d| d.0.abs() / per_span >= opts.drift_min_per_year);
         g.status = match (ft.step_fits_better, step_big, drift_big) {
             (true, true, _) | (false, true, false) => GaugeStatus::Step,
             (_, _, true) => GaugeStatus::Drift,

@@ -19,6 +19,12 @@
 //! deviation, a few reweighting passes (Holland and Welsch 1977), so a vehicle short on some fills
 //! at the tank does not hide or fake a step.
 //!
+//! A span off by ε raises every reading by ε times its span mass, Δp·A(h)/g (the reading times
+//! dM/dΔp), and a fill's ratio by ε times its sensitivity s (the two readings' span masses'
+//! difference per kg gained): 1 in a vertical tank's straight shell, some 0.4–0.9 in a horizontal
+//! tank. The fills' tests run on the ratios; a step's size over the tank's mean sensitivity is the
+//! span's, and that times a reading's span mass is the jump the step gives the readings.
+//!
 //! A step is dated from the readings as well as the fills: the change time's likelihood over the
 //! intervals between readings near the split, from the fills either side and the interval's loss
 //! beyond use (see [`date`]).
@@ -158,11 +164,13 @@ impl RobustLine {
 }
 
 /// Test one tank's points (sorted by time) and their robust `line`, its scatter floored at the
-/// moderated estimate of the fleet's `prior`.
+/// moderated estimate of the fleet's `prior`; `ratio_per_span` is the fills' mean sensitivity to the
+/// span. Sizes come back in the ratios' terms.
 pub(crate) fn test(
     pts: &[Point],
     line: Option<&RobustLine>,
     jumps: &[Jump],
+    ratio_per_span: f64,
     prior: Option<Prior>,
 ) -> FaultTest {
     let mut out = FaultTest {
@@ -239,9 +247,11 @@ pub(crate) fn test(
             // the readings' own evidence: the largest jump of the step's sign between the two fills
             // that split, independent of the fills' balances, combined with them by Fisher's
             // method; the smaller of the fills' p and the combined one, doubled (Bonferroni)
-            let p_jump = jump_p(pts[k - 1].0, pts[k].0, size, jumps);
+            // the span's step, whose jump in the readings is it times their span mass
+            let span_step = size / ratio_per_span.max(f64::MIN_POSITIVE);
+            let p_jump = jump_p(pts[k - 1].0, pts[k].0, span_step, jumps);
             let p = (2.0 * p_fills.min(fisher_combined_p(&[p_fills, p_jump]))).min(1.0);
-            out.step = Some((size, date(&best_pts, k, size, s2, jumps), p));
+            out.step = Some((size, date(&best_pts, k, span_step, s2, jumps), p));
             // Schwarz's criterion: the step has one parameter more than the line (where it falls),
             // unless the readings placed it
             let nf = n as f64;
@@ -270,8 +280,9 @@ fn t_p(t: f64, df: f64) -> f64 {
 }
 
 /// The p-value of the largest jump of the readings between fills at `from` and `to` that a step of
-/// `size` explains: of the sign it gives (a span reading low makes the tank seem to lose) and within
-/// [`JUMP_FIT_Z`] standard uncertainties of the size it gives (the step times the mass read then),
+/// the span of `size` explains: of the sign it gives (a span reading low makes the tank seem to
+/// lose) and within [`JUMP_FIT_Z`] standard uncertainties of the size it gives (the step times the
+/// reading's span mass),
 /// so a swing of use far larger or smaller than the step is not taken for it. Its one-sided normal
 /// tail, Bonferroni over the stretch's intervals ([`INTERVALS_PER_DAY`]); 1 without such a jump
 /// (jumps under [`JUMP_EVIDENCE_Z`] do not count).
@@ -281,7 +292,7 @@ fn jump_p(from: i64, to: i64, size: f64, jumps: &[Jump]) -> f64 {
         .filter(|j| j.from_ms >= from && j.to_ms <= to && j.z * size < 0.0)
         .filter(|j| j.z.abs() >= JUMP_EVIDENCE_Z)
         .filter(|j| {
-            let expected = size.abs() * j.contents_kg / j.sd_kg.max(1e-9);
+            let expected = size.abs() * j.span_kg / j.sd_kg.max(1e-9);
             (j.z.abs() - expected).abs() <= JUMP_FIT_Z
         })
         .map(|j| j.z.abs())
@@ -298,12 +309,12 @@ fn jump_p(from: i64, to: i64, size: f64, jumps: &[Jump]) -> f64 {
 /// Stretches between fills either side of the split searched for the interval of the step.
 const DATE_STRETCHES: usize = 2;
 
-/// When a step of `size` happened, the fills split before `k`: the change time's maximum
+/// When a step of the span of `size` happened, the fills split before `k`: the change time's maximum
 /// likelihood over the intervals between readings within [`DATE_STRETCHES`] stretches of the split.
 /// A time in the stretch before fill k′ puts the fills from k′ after the step (the fills' log
 /// likelihood −ΔRSS/2s² against the best split, `s2` the scatter's variance) and the step's jump in
 /// that interval (the readings' log likelihood ratio z·e − e²/2 of a loss e standard
-/// uncertainties beyond use, e the step times the mass read over the interval's uncertainty,
+/// uncertainties beyond use, e the step times the reading's span mass over the interval's uncertainty,
 /// against none). The neighbouring stretches count only jumps of [`NEIGHBOUR_JUMP_Z`] or more (a
 /// fill or two after a step often reads between the two levels, since the use model takes in part
 /// of the step's loss, so the best split can fall a fill late; a weaker jump there is more often
@@ -324,7 +335,7 @@ fn date(q: &[Point], k: usize, size: f64, s2: f64, jumps: &[Jump]) -> i64 {
         let z_min = if kk == k { 0.0 } else { NEIGHBOUR_JUMP_Z };
         let inside = |j: &&Jump| j.from_ms >= from && j.to_ms <= to && j.z.abs() >= z_min;
         for j in jumps.iter().filter(inside) {
-            let e = -size * j.contents_kg / j.sd_kg.max(1e-9);
+            let e = -size * j.span_kg / j.sd_kg.max(1e-9);
             let score = fills + j.z * e - 0.5 * e * e;
             if score > 0.0 && best.is_none_or(|b| score > b.0) {
                 best = Some((score, j.to_ms));
@@ -355,13 +366,49 @@ mod tests {
             to_ms: 5 * month + 2 * 86_400_000,
             z: 6.0,
             sd_kg: 50.0,
-            contents_kg: 10_000.0,
+            span_kg: 10_000.0,
         };
-        let t = test(&pts, RobustLine::of(&pts).as_ref(), &[jump], None);
+        let t = test(&pts, RobustLine::of(&pts).as_ref(), &[jump], 1.0, None);
         let (size, at, p) = t.step.unwrap();
         assert!((size + 0.03).abs() < 1e-12, "{size}");
         assert_eq!(at, jump.to_ms);
         assert!(p < 1e-6 && t.step_fits_better);
+    }
+
+    /// Constructed: at a horizontal tank whose fills' ratios move by 0.6 of the span's error, a 3 %
+    /// step of the span moves them by 1.8 %. A loss of z = 7.5 at a reading of span mass 10 t read at
+    /// ±50 kg is the jump a 3 % step gives (e = 0.03 · 10,000 / 50 = 6, within 2.576 of 7.5), so the
+    /// readings' evidence joins the fills' (Fisher's method) and the step's p falls; taken as a
+    /// vertical tank's (sensitivity 1: e = 3.6, 3.9 from 7.5) the jump is not the step's and the p is
+    /// the fills' alone. The step's size stays in the ratios' terms either way.
+    #[test]
+    fn a_jump_is_matched_to_the_span_step_not_the_ratios() {
+        let month = 30 * 86_400_000_i64;
+        let pts: Vec<Point> = (0..12)
+            .map(|i| {
+                let jitter = [0.004, -0.006, 0.002, -0.003, 0.006, -0.002][i as usize % 6];
+                (i * month, if i < 6 { 1.0 } else { 0.982 } + jitter, 1e4)
+            })
+            .collect();
+        let jump = Jump {
+            from_ms: 5 * month + 86_400_000,
+            to_ms: 5 * month + 2 * 86_400_000,
+            z: 7.5,
+            sd_kg: 50.0,
+            span_kg: 10_000.0,
+        };
+        let line = RobustLine::of(&pts);
+        let horizontal = test(&pts, line.as_ref(), &[jump], 0.6, None).step.unwrap();
+        let vertical = test(&pts, line.as_ref(), &[jump], 1.0, None).step.unwrap();
+        assert!((horizontal.0 + 0.018).abs() < 1e-3, "{}", horizontal.0);
+        assert!((horizontal.0 - vertical.0).abs() < 1e-12);
+        assert!(
+            horizontal.2 < 0.1 * vertical.2,
+            "{} against {}",
+            horizontal.2,
+            vertical.2
+        );
+        assert_eq!(horizontal.1, jump.to_ms);
     }
 
     /// Dating, constructed: twelve monthly fills at 1.00, the seventh at 0.99 and the rest at 0.97
@@ -391,7 +438,7 @@ mod tests {
             to_ms: at + day,
             z,
             sd_kg: 100.0,
-            contents_kg: 10_000.0,
+            span_kg: 10_000.0,
         };
         let before_7th = 5 * month + 10 * day;
         let in_split = 6 * month + 10 * day;

@@ -35,6 +35,11 @@ pub struct BracketReading {
     pub liquid_temperature_k: f64,
     /// Saturation temperature at the tank pressure, K.
     pub saturation_temperature_k: f64,
+    /// How far the mass read moves per unit relative error of the gauge's span, kg (the reading
+    /// times the liquid surface's area over g; the gauge tests weigh a fill's evidence of the span
+    /// by the difference of its two readings').
+    #[serde(skip)]
+    pub span_kg: f64,
 }
 
 /// One delivery's reconciliation.
@@ -138,7 +143,7 @@ pub struct GaugeScale {
 pub struct GaugeStep {
     /// When it happened: between the last fill before and the first fill after, ms.
     pub at_ms: i64,
-    /// Its size, % of the fills' ratio (≈ of span for a span step).
+    /// Its size, % of span (the fills' ratios over their sensitivity to the span).
     pub size_percent: f64,
 }
 
@@ -154,8 +159,9 @@ pub struct Jump {
     pub z: f64,
     /// That standard uncertainty, kg.
     pub sd_kg: f64,
-    /// The mass read at its start, kg (a span's step moves the reading by its size times this).
-    pub contents_kg: f64,
+    /// How far the reading at its start moves per unit relative error of the gauge's span, kg (a
+    /// span's step moves the reading by its size times this).
+    pub span_kg: f64,
 }
 
 /// What a finding between fills is.

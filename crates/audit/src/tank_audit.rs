@@ -37,6 +37,8 @@ pub(crate) struct Interval {
     pub(crate) to_ms: i64,
     pub(crate) from_kg: f64,
     pub(crate) to_kg: f64,
+    /// The start's mass per unit relative error of the span, kg (see [`Eval::span_kg`]).
+    pub(crate) from_span_kg: f64,
     /// No delivery touches it.
     pub(crate) clean: bool,
 }
@@ -255,11 +257,11 @@ pub fn audit_tank(input: &TankInput, opts: &AuditOptions) -> Result<TankAudit, A
 }
 
 pub(crate) fn intervals(ctx: &Ctx<'_>, evals: &[Option<Eval>]) -> Vec<Interval> {
-    let pts: Vec<(i64, f64)> = ctx
+    let pts: Vec<(i64, f64, f64)> = ctx
         .readings
         .iter()
         .zip(evals)
-        .filter_map(|(r, e)| e.map(|e| (r.time_ms, e.contents_total_kg)))
+        .filter_map(|(r, e)| e.map(|e| (r.time_ms, e.contents_total_kg, e.span_kg)))
         .collect();
     pts.windows(2)
         .filter_map(|w| {
@@ -277,6 +279,7 @@ pub(crate) fn intervals(ctx: &Ctx<'_>, evals: &[Option<Eval>]) -> Vec<Interval> 
                 to_ms: b.0,
                 from_kg: a.1,
                 to_kg: b.1,
+                from_span_kg: a.2,
                 clean: !touched,
             })
         })
