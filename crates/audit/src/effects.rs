@@ -2,7 +2,8 @@
 //! robustly, so that one vehicle's shortfall does not leak into another's estimate.
 //!
 //! Vehicle effects are centred on the median vehicle of each connected group of tanks and vehicles
-//! (vehicles that never share a tank, directly or through others, cannot be compared).
+//! (vehicles that never share a tank, directly or through others, cannot be compared), a vehicle far
+//! from the rest left out of that median (Hampel's identifier).
 //!
 //! ratio = tank level + vehicle effect + residual, fitted by iteratively reweighted least squares with
 //! Huber's weights on the residuals scaled by their median absolute deviation (Huber, "Robust
@@ -110,6 +111,31 @@ fn components(rows: &[Row], tanks: usize, vehicles: usize) -> (Vec<usize>, Vec<u
     (roots[..tanks].to_vec(), roots[tanks..].to_vec())
 }
 
+/// Vehicles this many robust standard deviations (1.4826 × MAD) from their group's median are left
+/// out of its centre: Hampel's identifier (Davies and Gather, "The identification of multiple
+/// outliers", JASA 88, 1993, with the usual constant 3).
+const HAMPEL_Z: f64 = 3.0;
+
+/// The centre of a group's vehicle effects: the median of those Hampel's identifier does not set
+/// apart. In a group of a few vehicles, one short on every fill would otherwise pull the plain
+/// median towards itself (of four, the median is the mean of the two middle ones, one honest vehicle
+/// and the next), and the short vehicle's own effect towards zero by half their difference.
+fn typical(effects: &[f64]) -> f64 {
+    let Some(m) = median(effects) else {
+        return 0.0;
+    };
+    let spread = mad_sigma(effects).unwrap_or(0.0);
+    if spread <= 0.0 {
+        return m;
+    }
+    let kept: Vec<f64> = effects
+        .iter()
+        .copied()
+        .filter(|x| (x - m).abs() <= HAMPEL_Z * spread)
+        .collect();
+    median(&kept).unwrap_or(m)
+}
+
 fn centre(
     vehicle: &mut [f64],
     tank: &mut [f64],
@@ -122,10 +148,8 @@ fn centre(
             by_comp.entry(*c).or_default().push(*v);
         }
     }
-    let shift: std::collections::BTreeMap<usize, f64> = by_comp
-        .into_iter()
-        .map(|(c, v)| (c, median(&v).unwrap_or(0.0)))
-        .collect();
+    let shift: std::collections::BTreeMap<usize, f64> =
+        by_comp.into_iter().map(|(c, v)| (c, typical(&v))).collect();
     for (x, c) in vehicle.iter_mut().zip(&comp.1) {
         *x -= shift.get(c).copied().unwrap_or(0.0);
     }
@@ -275,6 +299,21 @@ mod tests {
         assert_ne!(tc[0], tc[2]);
         assert_eq!(vc[3], vc[4]);
         assert_eq!(vc[0], tc[0]);
+    }
+
+    /// Worked by hand: of four vehicles at −1.35, −0.09, +0.03 and +0.18 %, the plain median is
+    /// −0.03 % (the short vehicle pulls it down by half the gap between the two middle honest ones);
+    /// the deviations from it 1.32, 0.06, 0.06, 0.21 % have a median of 0.135 %, so 3 × 1.4826 ×
+    /// 0.135 = 0.60 % sets the first apart and the centre is the median of the other three, +0.03 %.
+    /// Two vehicles keep their mean; equal effects are their own centre.
+    #[test]
+    fn a_vehicle_far_from_the_rest_does_not_move_the_centre() {
+        let c = typical(&[-0.0135, -0.0009, 0.0003, 0.0018]);
+        assert!((c - 0.0003).abs() < 1e-12, "{c}");
+        let c = typical(&[-0.015, 0.002]);
+        assert!((c + 0.0065).abs() < 1e-12, "{c}");
+        assert_eq!(typical(&[0.004, 0.004, 0.004]), 0.004);
+        assert_eq!(typical(&[]), 0.0);
     }
 
     /// Centring moves each group's vehicle effects to a median of 0 and its tanks' levels by the same
