@@ -437,7 +437,12 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
         opts,
     );
     if opts.judge_with_vehicle {
-        crate::with_vehicle::apply(&mut tanks, &mut vehicles, opts);
+        let set_apart = |name: &str| {
+            vehicle_index
+                .get(name)
+                .is_some_and(|&i| apart.get(i).copied().unwrap_or(false))
+        };
+        crate::with_vehicle::apply(&mut tanks, &mut vehicles, &set_apart, opts);
     }
     crate::vehicles::judge_cleared(
         tanks.iter_mut().flat_map(|t| t.balances.iter_mut()),

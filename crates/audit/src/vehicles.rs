@@ -375,6 +375,61 @@ mod tests {
         }
     }
 
+    /// A biased vehicle whose compared fills are three 3.4 % short and three honest (u 0.5 %): the
+    /// random-effects prior of a further fill is their mean, 1.7 %, with τ² = 1.625e-4 (Q held at
+    /// 37.5, by hand) and variance 1.94e-4; that fill's own balance, 200 ± 120 kg on 10 t, is
+    /// consistent by itself (limit 240 kg) but its posterior, 1.87 ± 0.91 %, is short at k = 2. Set
+    /// apart as short on only some fills, the vehicle's other fills are no evidence and the fill
+    /// stays consistent (constructed; the posterior worked by hand).
+    #[test]
+    fn a_sometimes_short_vehicle_s_fills_stand_on_their_own() {
+        let opts = AuditOptions::default();
+        let run = |apart: bool| {
+            let mut v = finding("MIX", VehicleStatus::Biased);
+            v.adjusted = (0..6)
+                .map(|i| AdjustedFill {
+                    ticket: format!("X{i}"),
+                    tank: "U".into(),
+                    start_ms: 0,
+                    percent: if i < 3 { -3.4 } else { 0.0 },
+                    u_percent: 0.5,
+                })
+                .collect();
+            let mut vehicles = vec![v];
+            let mut tanks = vec![TankAudit {
+                tank: "T".into(),
+                fluid: fluids::FluidId::Nitrogen,
+                ner_setting_percent_per_day: 0.5,
+                ner_fitted_percent_per_day: None,
+                full_mass_kg: 20_000.0,
+                readings_used: 2,
+                readings_refused: 0,
+                balances: vec![balance("MIX", 200.0, 120.0)],
+                findings: Vec::new(),
+                forecast: None,
+                readings: Vec::new(),
+                latest: None,
+                jumps: Vec::new(),
+            }];
+            let reading = crate::records::BracketReading {
+                time_ms: 0,
+                total_mass_kg: 5_000.0,
+                fill_fraction: 0.3,
+                pressure_pa: 8e5,
+                liquid_temperature_k: 95.0,
+                saturation_temperature_k: 95.0,
+                span_kg: 5_000.0,
+            };
+            tanks[0].balances[0].before = Some(reading);
+            tanks[0].balances[0].after = Some(reading);
+            let set_apart = move |_: &str| apart;
+            crate::with_vehicle::apply(&mut tanks, &mut vehicles, &set_apart, &opts);
+            (tanks[0].balances[0].verdict, vehicles[0].short_with_vehicle)
+        };
+        assert_eq!(run(false), (Verdict::Short, 1));
+        assert_eq!(run(true), (Verdict::Consistent, 0));
+    }
+
     /// With σ = 100 kg on a 10 t ticket, a residual of 230 kg is 2.3 σ: short at k = 2, consistent
     /// at k = 2.5 (limit 250 kg); 300 kg (3 σ) is short at either. A vehicle cleared by the fleet
     /// test is judged at 2.5, one found biased (or not tested) at 2; an inconclusive balance

@@ -158,10 +158,19 @@ fn evidence(others: Sums, tau2: f64, own: Option<(f64, f64)>) -> Option<VehicleE
 
 /// Judge the fills of every biased vehicle with its other fills; a fill whose combined estimate
 /// shows it short, and whose own balance did not, becomes short with the reason in its sentence.
-pub(crate) fn apply(tanks: &mut [TankAudit], vehicles: &mut [VehicleFinding], opts: &AuditOptions) {
+/// A vehicle `set_apart` as short on only some fills is left out: its shortfalls are one of two
+/// values, not a normal spread about their mean, and the normal model's prior, that mean, pulled
+/// its honest fills over the limit (on 67 independent fleets 41 of its honest fills were called
+/// short that way against 17 of its short ones).
+pub(crate) fn apply(
+    tanks: &mut [TankAudit],
+    vehicles: &mut [VehicleFinding],
+    set_apart: &dyn Fn(&str) -> bool,
+    opts: &AuditOptions,
+) {
     for v in vehicles
         .iter_mut()
-        .filter(|v| v.status == VehicleStatus::Biased)
+        .filter(|v| v.status == VehicleStatus::Biased && !set_apart(&v.vehicle))
     {
         // the vehicle test's points, as shortfalls
         let points: Vec<(&str, f64, f64)> = v
