@@ -175,9 +175,9 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
     let sensitivity: Vec<f64> = rows
         .iter()
         .map(|r| {
-            let b = &tanks[r.0].balances[r.5];
-            match (&b.before, &b.after) {
-                (Some(x), Some(y)) => (y.span_kg - x.span_kg) / b.gained_kg * b.ratio,
+            let b = tanks.get(r.0).and_then(|t| t.balances.get(r.5));
+            match b.map(|b| (b, &b.before, &b.after)) {
+                Some((b, Some(x), Some(y))) => (y.span_kg - x.span_kg) / b.gained_kg * b.ratio,
                 _ => 1.0,
             }
         })

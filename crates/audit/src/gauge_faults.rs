@@ -349,6 +349,19 @@ fn date(q: &[Point], k: usize, size: f64, s2: f64, jumps: &[Jump]) -> i64 {
 mod tests {
     use super::*;
 
+    /// A loss of `z` standard uncertainties (±50 kg, span mass 10 t) over the second day after the
+    /// sixth of monthly fills.
+    fn day_after_sixth_fill(z: f64) -> Jump {
+        let month = 30 * 86_400_000_i64;
+        Jump {
+            from_ms: 5 * month + 86_400_000,
+            to_ms: 5 * month + 2 * 86_400_000,
+            z,
+            sd_kg: 50.0,
+            span_kg: 10_000.0,
+        }
+    }
+
     /// Twelve monthly fills at ratio 1.00, then 1.00 − 3 % from the seventh (exact): the step fits
     /// better than a line, its size is −3 % to 1e-12, and with a jump of the right sign between the
     /// sixth and seventh fill it is dated at that jump's end (constructed example).
@@ -361,13 +374,7 @@ mod tests {
                 (i * month, if i < 6 { 1.0 } else { 0.97 } + jitter, 1.0)
             })
             .collect();
-        let jump = Jump {
-            from_ms: 5 * month + 86_400_000,
-            to_ms: 5 * month + 2 * 86_400_000,
-            z: 6.0,
-            sd_kg: 50.0,
-            span_kg: 10_000.0,
-        };
+        let jump = day_after_sixth_fill(6.0);
         let t = test(&pts, RobustLine::of(&pts).as_ref(), &[jump], 1.0, None);
         let (size, at, p) = t.step.unwrap();
         assert!((size + 0.03).abs() < 1e-12, "{size}");
@@ -390,13 +397,7 @@ mod tests {
                 (i * month, if i < 6 { 1.0 } else { 0.982 } + jitter, 1e4)
             })
             .collect();
-        let jump = Jump {
-            from_ms: 5 * month + 86_400_000,
-            to_ms: 5 * month + 2 * 86_400_000,
-            z: 7.5,
-            sd_kg: 50.0,
-            span_kg: 10_000.0,
-        };
+        let jump = day_after_sixth_fill(7.5);
         let line = RobustLine::of(&pts);
         let horizontal = test(&pts, line.as_ref(), &[jump], 0.6, None).step.unwrap();
         let vertical = test(&pts, line.as_ref(), &[jump], 1.0, None).step.unwrap();
