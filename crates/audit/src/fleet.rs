@@ -118,6 +118,63 @@ fn usable(b: &Balance, findings: &[Finding]) -> bool {
             .any(|f| f.from_ms < after.time_ms && f.to_ms > before.time_ms)
 }
 
+/// A faulty gauge's tank level over time, fitted to the tank's test points (ratios less what the
+/// vehicles add): the weighted means before and after a step, or the weighted line of a drift.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub(crate) enum FaultLevel {
+    Step { at_ms: i64, before: f64, after: f64 },
+    Line { intercept: f64, slope_per_year: f64 },
+}
+
+impl FaultLevel {
+    fn fit(g: &GaugeFinding, pts: &[Point]) -> Option<FaultLevel> {
+        let mean = |q: &mut dyn Iterator<Item = &Point>| {
+            let (s, w) = q.fold((0.0, 0.0), |(s, w), p| (s + p.2 * p.1, w + p.2));
+            (w > 0.0).then(|| s / w)
+        };
+        match (g.status, g.step_ms) {
+            (GaugeStatus::Step, Some(at_ms)) => Some(FaultLevel::Step {
+                at_ms,
+                before: mean(&mut pts.iter().filter(|p| p.0 <= at_ms))?,
+                after: mean(&mut pts.iter().filter(|p| p.0 > at_ms))?,
+            }),
+            (GaugeStatus::Drift, _) => {
+                let line: Vec<(f64, f64, f64)> = pts
+                    .iter()
+                    .map(|p| (p.0 as f64 / YEAR_MS, p.1, p.2))
+                    .collect();
+                let fit = crate::stats::weighted_line(&line)?;
+                Some(FaultLevel::Line {
+                    intercept: fit.intercept,
+                    slope_per_year: fit.slope,
+                })
+            }
+            _ => None,
+        }
+    }
+
+    /// The level at `t_ms`.
+    pub(crate) fn at(self, t_ms: i64) -> f64 {
+        match self {
+            FaultLevel::Step {
+                at_ms,
+                before,
+                after,
+            } => {
+                if t_ms > at_ms {
+                    after
+                } else {
+                    before
+                }
+            }
+            FaultLevel::Line {
+                intercept,
+                slope_per_year,
+            } => intercept + slope_per_year * t_ms as f64 / YEAR_MS,
+        }
+    }
+}
+
 /// Leave out the losses beyond use that reach within [`STEP_LOSS_MARGIN_MS`] of a gauge step at
 /// `at_ms`.
 fn drop_losses_at_step(findings: &mut Vec<Finding>, at_ms: i64) {
@@ -129,11 +186,77 @@ fn drop_losses_at_step(findings: &mut Vec<Finding>, at_ms: i64) {
 }
 
 /// Fleet statistics over every tank's audit.
+///
+/// With the Type A step on, the fleet is judged in two passes. The first measures the balances'
+/// precision ([`crate::precision`]) and tests the gauges; the second measures the precision again
+/// from the tanks' own balances, each faulty tank's fills now about its level under the fault (a
+/// step's two levels, a drift's line), and judges every fill with the first pass's gauges. Measured
+/// about one level for the year, a fault passed for its tank's reading and use noise and widened
+/// every limit there: four fills in a hundred at faulty gauges inconclusive against one in a
+/// hundred elsewhere (24 independent fleets). Without a fault the second pass is the first's
+/// judgement unchanged.
 pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
     let mut tanks = tanks;
     tanks.sort_by(|a, b| a.tank.cmp(&b.tank));
+    let (gauges, vehicles) = if opts.type_a {
+        let pristine: Vec<(Vec<Balance>, Vec<Finding>)> = tanks
+            .iter()
+            .map(|t| (t.balances.clone(), t.findings.clone()))
+            .collect();
+        let first = fleet_pass(&mut tanks, opts, &[], None, true);
+        for (t, (b, f)) in tanks.iter_mut().zip(pristine) {
+            t.balances = b;
+            t.findings = f;
+        }
+        let (_, vehicles, _) = fleet_pass(&mut tanks, opts, &first.2, Some(&first.0), false);
+        (first.0, vehicles)
+    } else {
+        let (gauges, vehicles, _) = fleet_pass(&mut tanks, opts, &[], None, false);
+        (gauges, vehicles)
+    };
+    let mut fills = Vec::new();
+    let mut findings = Vec::new();
+    let mut summaries = Vec::new();
+    for t in tanks {
+        fills.extend(t.balances);
+        findings.extend(t.findings);
+        summaries.push(TankSummary {
+            tank: t.tank,
+            ner_setting_percent_per_day: t.ner_setting_percent_per_day,
+            ner_fitted_percent_per_day: t.ner_fitted_percent_per_day,
+            readings_used: t.readings_used,
+            readings_refused: t.readings_refused,
+            forecast: t.forecast,
+            latest: t.latest,
+        });
+    }
+    FleetAudit {
+        fills,
+        gauges,
+        vehicles,
+        findings,
+        tanks: summaries,
+    }
+}
+
+/// One judgement of the fleet (tanks sorted by name): the balances' precision with each tank's
+/// ratios measured about `shape` (a faulty gauge's level over time, where known), the gauge
+/// statistics (or the gauges `decided` by a first judgement) and the vehicles', every balance's
+/// final verdict. Returns the gauges, the vehicles and each
+/// faulty gauge's level over time.
+fn fleet_pass(
+    tanks: &mut [TankAudit],
+    opts: &AuditOptions,
+    shape: &[Option<FaultLevel>],
+    decided: Option<&[GaugeFinding]>,
+    gauges_only: bool,
+) -> (
+    Vec<GaugeFinding>,
+    Vec<VehicleFinding>,
+    Vec<Option<FaultLevel>>,
+) {
     let spread = if opts.type_a {
-        crate::precision::refine(&mut tanks, opts)
+        crate::precision::refine(tanks, opts, shape)
     } else {
         BTreeMap::new()
     };
@@ -267,7 +390,11 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
     // (Smyth 2004; see `moderated`)
     let lines: Vec<Option<RobustLine>> = tank_points
         .iter()
-        .map(|p| testable(p).then(|| RobustLine::of(p)).flatten())
+        .map(|p| {
+            (decided.is_none() && testable(p))
+                .then(|| RobustLine::of(p))
+                .flatten()
+        })
         .collect();
     let prior = crate::moderated::fit(
         &lines
@@ -297,7 +424,7 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
             ner_fitted_percent_per_day: t.ner_fitted_percent_per_day,
         };
         let mut found = None;
-        if testable(pts) {
+        if decided.is_none() && testable(pts) {
             let ft = gauge_faults::test(pts, line.as_ref(), &t.jumps, per_span, prior);
             g.drift_percent_per_year = ft.drift.map(|d| 100.0 * d.0 / per_span);
             g.drift_se_percent_per_year = ft.drift.map(|d| 100.0 * d.1 / per_span);
@@ -337,10 +464,24 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
             _ => GaugeStatus::Ok,
         };
     }
+    // a second judgement keeps the first one's gauges: their tests ran on precision measured
+    // without knowledge of any fault, and a fault's own shape must not feed its test
+    if let Some(first) = decided {
+        gauges = first.to_vec();
+    }
     let faulty: Vec<bool> = gauges
         .iter()
         .map(|g| matches!(g.status, GaugeStatus::Drift | GaugeStatus::Step))
         .collect();
+    // a faulty gauge's tank level over time, from its own test points
+    let fault_levels: Vec<Option<FaultLevel>> = gauges
+        .iter()
+        .zip(&tank_points)
+        .map(|(g, pts)| FaultLevel::fit(g, pts))
+        .collect();
+    if gauges_only {
+        return (gauges, Vec::new(), fault_levels);
+    }
 
     // the fleet's levels and vehicle effects, tanks with a gauge fault left out
     let kept: Vec<Row> = plain.iter().copied().filter(|r| !faulty[r.0]).collect();
@@ -372,7 +513,21 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
             };
             let veh = kept_fit.vehicle.get(r.1).copied().unwrap_or(0.0);
             let n_v = n_of_vehicle.get(r.1).copied().unwrap_or(0).max(1) as f64;
-            let (x, ratio_var) = gauge_point(r, veh);
+            // at a tank whose gauge is faulty, a set-apart vehicle's fill is judged short or
+            // honest against the tank's level at its time under the gauge's fault: against one
+            // level for the year, every honest fill after a step down would look short, and the
+            // gauge's scale would take the step for shortfalls
+            let (x, ratio_var) = match (
+                mixtures.get(r.1).copied().flatten(),
+                fault_levels.get(r.0).copied().flatten(),
+            ) {
+                (Some(m), Some(level)) => {
+                    let u = r.3.max(1e-4);
+                    let (e, v) = m.effect(r.2 - level.at(r.4), u);
+                    (r.2 - e, u * u + v)
+                }
+                _ => gauge_point(r, veh),
+            };
             obs[r.0].push((
                 r.5,
                 r.4,
@@ -428,7 +583,7 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
     let mut vehicles = crate::vehicles::test(
         &vehicle_names,
         &vehicle_index,
-        &tanks,
+        tanks,
         &kept,
         &kept_u,
         &kept_at,
@@ -442,37 +597,14 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
                 .get(name)
                 .is_some_and(|&i| apart.get(i).copied().unwrap_or(false))
         };
-        crate::with_vehicle::apply(&mut tanks, &mut vehicles, &set_apart, opts);
+        crate::with_vehicle::apply(tanks, &mut vehicles, &set_apart, opts);
     }
     crate::vehicles::judge_cleared(
         tanks.iter_mut().flat_map(|t| t.balances.iter_mut()),
         &mut vehicles,
         opts,
     );
-
-    let mut fills = Vec::new();
-    let mut findings = Vec::new();
-    let mut summaries = Vec::new();
-    for t in tanks {
-        fills.extend(t.balances);
-        findings.extend(t.findings);
-        summaries.push(TankSummary {
-            tank: t.tank,
-            ner_setting_percent_per_day: t.ner_setting_percent_per_day,
-            ner_fitted_percent_per_day: t.ner_fitted_percent_per_day,
-            readings_used: t.readings_used,
-            readings_refused: t.readings_refused,
-            forecast: t.forecast,
-            latest: t.latest,
-        });
-    }
-    FleetAudit {
-        fills,
-        gauges,
-        vehicles,
-        findings,
-        tanks: summaries,
-    }
+    (gauges, vehicles, fault_levels)
 }
 
 #[cfg(test)]
@@ -490,6 +622,61 @@ mod tests {
             usage_kg_per_day: 50.0,
             explanation: String::new(),
         }
+    }
+
+    fn gauge(status: GaugeStatus, step_ms: Option<i64>) -> GaugeFinding {
+        GaugeFinding {
+            tank: "T".into(),
+            status,
+            fills: 0,
+            drift_percent_per_year: None,
+            drift_se_percent_per_year: None,
+            step_percent: None,
+            step_ms,
+            p_value: None,
+            p_adjusted: None,
+            test: GAUGE_TEST,
+            ner_setting_percent_per_day: 0.0,
+            ner_fitted_percent_per_day: None,
+        }
+    }
+
+    /// Constructed: ten monthly points, 1.00 before a step after the fifth and 0.97 after it (the
+    /// fifth weighing three times the rest, exact values, so each side's weighted mean is exact): a
+    /// stepped gauge's level is 1.00 then 0.97; points on the line 1 − 0.04·t (t in years) give a
+    /// drifting gauge's level on that line; a healthy gauge has none. Against the step's level a
+    /// sometimes-short vehicle's honest fill after the step (ratio 0.97, u 1 %, shortfall 3.5 %,
+    /// share 0.4) is honest (short probability under 0.1, by hand: the two normal densities'
+    /// ratio e^(−0.5·3.5²)·0.4/0.6 ≈ 0.0015), where against the year's one level (1.00, the
+    /// fill 3 % below it) it would be taken for short (over 0.9: e^(0.5·(3² − 0.5²))·0.4/0.6 ≈ 53).
+    #[test]
+    fn a_faulty_gauge_s_level_follows_its_fault() {
+        let month = 30 * 86_400_000_i64;
+        let step: Vec<Point> = (0..10)
+            .map(|i| {
+                let w = if i == 4 { 3.0 } else { 1.0 };
+                (i * month, if i < 5 { 1.0 } else { 0.97 }, w)
+            })
+            .collect();
+        let at = 4 * month + month / 2;
+        let level = FaultLevel::fit(&gauge(GaugeStatus::Step, Some(at)), &step).unwrap();
+        assert!((level.at(0) - 1.0).abs() < 1e-12);
+        assert!((level.at(9 * month) - 0.97).abs() < 1e-12);
+        let line: Vec<Point> = (0..10)
+            .map(|i| (i * month, 1.0 - 0.04 * (i * month) as f64 / YEAR_MS, 1.0))
+            .collect();
+        let drift = FaultLevel::fit(&gauge(GaugeStatus::Drift, None), &line).unwrap();
+        let t = 20 * month;
+        assert!((drift.at(t) - (1.0 - 0.04 * t as f64 / YEAR_MS)).abs() < 1e-9);
+        assert!(FaultLevel::fit(&gauge(GaugeStatus::Ok, None), &step).is_none());
+        let m = crate::mixture::Mixture {
+            honest: 0.0,
+            shortfall: 0.035,
+            share: 0.4,
+        };
+        let after = 0.97;
+        assert!(m.short_probability(after - level.at(9 * month), 0.01) < 0.1);
+        assert!(m.short_probability(after - 1.0, 0.01) > 0.9);
     }
 
     /// Constructed: with a step on day 10, the loss over days 8–10 and the one over days 10.5–12

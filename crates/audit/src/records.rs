@@ -246,3 +246,25 @@ pub struct TankAudit {
     #[serde(skip)]
     pub jumps: Vec<Jump>,
 }
+
+#[cfg(test)]
+impl TankAudit {
+    /// A nitrogen tank of 20 t full with only these balances (for the fleet statistics' tests).
+    pub(crate) fn with_balances(name: &str, balances: Vec<Balance>) -> TankAudit {
+        TankAudit {
+            tank: name.into(),
+            fluid: fluids::FluidId::Nitrogen,
+            ner_setting_percent_per_day: 0.2,
+            ner_fitted_percent_per_day: None,
+            full_mass_kg: 20_000.0,
+            readings_used: 0,
+            readings_refused: 0,
+            balances,
+            findings: Vec::new(),
+            forecast: None,
+            readings: Vec::new(),
+            latest: None,
+            jumps: Vec::new(),
+        }
+    }
+}

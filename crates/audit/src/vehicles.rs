@@ -510,21 +510,7 @@ mod tests {
     #[test]
     fn a_fill_carries_its_levels_uncertainty() {
         let opts = AuditOptions::default();
-        let tank = |name: &str, balances: Vec<Balance>| TankAudit {
-            tank: name.into(),
-            fluid: fluids::FluidId::Nitrogen,
-            ner_setting_percent_per_day: 0.2,
-            ner_fitted_percent_per_day: None,
-            full_mass_kg: 20_000.0,
-            readings_used: 0,
-            readings_refused: 0,
-            balances,
-            findings: Vec::new(),
-            forecast: None,
-            readings: Vec::new(),
-            latest: None,
-            jumps: Vec::new(),
-        };
+        let tank = TankAudit::with_balances;
         // vehicle 0 fills both tanks three times; vehicle 1 fills T0 twice, vehicle 2 T1 ten times
         let mut kept: Vec<Row> = Vec::new();
         let mut kept_at = Vec::new();
