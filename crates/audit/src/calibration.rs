@@ -48,51 +48,74 @@ impl ScaleModel {
 }
 
 /// One usable fill of a tank: (balance index, time ms, ratio less its vehicle's effect, weight (the
-/// robust weight over the ratio's variance), the vehicle effect's variance).
-pub(crate) type Obs = (usize, i64, f64, f64, f64);
+/// robust weight over the ratio's variance), the vehicle effect's variance, its sensitivity to the
+/// span over the tank's mean fill's).
+pub(crate) type Obs = (usize, i64, f64, f64, f64, f64);
 
-/// A weighted least-squares fit of the scale at `at_ms` from `obs` (the fill itself left out):
-/// (scale, its standard error from the fit, observations used).
-fn fit_at(obs: &[&Obs], model: ScaleModel, at_ms: i64) -> Option<(f64, f64, usize)> {
-    let same_side: Vec<&&Obs> = match model {
-        ScaleModel::Step(s) => obs.iter().filter(|o| (o.1 > s) == (at_ms > s)).collect(),
-        _ => obs.iter().collect(),
+/// A weighted least-squares fit of the scale at `at_ms` for a fill of relative sensitivity `rel`
+/// from `obs` (the fill itself left out): (scale, its standard error from the fit, observations
+/// used). A gauge's fault moves each fill's ratio by its sensitivity to the span over the mean
+/// fill's (a fill into a horizontal tank's heads moves less than one in its middle): after a step,
+/// the scale is the mean before it plus the step scaled by `rel`, the step fitted as Σ w r (x −
+/// before) / Σ w r² over the others after it; along a drift, the line of the ratios on the
+/// sensitivity-scaled time from the others' mean time.
+fn fit_at(obs: &[&Obs], model: ScaleModel, at_ms: i64, rel: f64) -> Option<(f64, f64, usize)> {
+    let mean = |q: &mut dyn Iterator<Item = &&Obs>| {
+        let (s, w, n) = q.fold((0.0, 0.0, 0), |(s, w, n), o| {
+            (s + o.3 * o.2, w + o.3, n + 1)
+        });
+        (w > 0.0 && w.is_finite()).then(|| (s / w, w, n))
     };
-    let n = same_side.len();
-    let sw: f64 = same_side.iter().map(|o| o.3).sum();
-    if !(sw > 0.0 && sw.is_finite()) {
-        return None;
-    }
-    let mean_t = same_side.iter().map(|o| o.3 * o.1 as f64).sum::<f64>() / sw;
-    let mean_x = same_side.iter().map(|o| o.3 * o.2).sum::<f64>() / sw;
     match model {
+        ScaleModel::Step(step_ms) if at_ms > step_ms => {
+            let (before, w_before, n_before) = mean(&mut obs.iter().filter(|o| o.1 <= step_ms))?;
+            let after: Vec<&&Obs> = obs.iter().filter(|o| o.1 > step_ms).collect();
+            let (num, den) = after.iter().fold((0.0, 0.0), |(a, b), o| {
+                (a + o.3 * o.5 * (o.2 - before), b + o.3 * o.5 * o.5)
+            });
+            let sum_wr: f64 = after.iter().map(|o| o.3 * o.5).sum();
+            if after.len() < 3 || den.is_nan() || den <= 0.0 {
+                return None;
+            }
+            let step = num / den;
+            // Var(before + rel·step): the step leans on the mean before by −Σwr/Σwr²
+            let lean = 1.0 - rel * sum_wr / den;
+            let var = lean * lean / w_before + rel * rel / den;
+            // the scale rests on the fills either side
+            Some((before + rel * step, var.sqrt(), n_before + after.len()))
+        }
+        ScaleModel::Step(step_ms) => {
+            let (m, w, n) = mean(&mut obs.iter().filter(|o| o.1 <= step_ms))?;
+            (n >= 3).then(|| (m, (1.0 / w).sqrt(), n))
+        }
         ScaleModel::Drift => {
-            if n < 5 {
+            let n = obs.len();
+            let sw: f64 = obs.iter().map(|o| o.3).sum();
+            if n < 5 || !(sw > 0.0 && sw.is_finite()) {
                 return None;
             }
-            let sxx: f64 = same_side
-                .iter()
-                .map(|o| o.3 * (o.1 as f64 - mean_t).powi(2))
-                .sum();
-            if sxx <= 0.0 {
+            let t_ref = obs.iter().map(|o| o.3 * o.1 as f64).sum::<f64>() / sw;
+            let z = |o: &Obs| o.5 * (o.1 as f64 - t_ref);
+            let mean_z = obs.iter().map(|o| o.3 * z(o)).sum::<f64>() / sw;
+            let mean_x = obs.iter().map(|o| o.3 * o.2).sum::<f64>() / sw;
+            let szz: f64 = obs.iter().map(|o| o.3 * (z(o) - mean_z).powi(2)).sum();
+            if szz <= 0.0 {
                 return None;
             }
-            let sxy: f64 = same_side
+            let szx: f64 = obs
                 .iter()
-                .map(|o| o.3 * (o.1 as f64 - mean_t) * (o.2 - mean_x))
+                .map(|o| o.3 * (z(o) - mean_z) * (o.2 - mean_x))
                 .sum();
-            let dt = at_ms as f64 - mean_t;
+            let dz = rel * (at_ms as f64 - t_ref) - mean_z;
             Some((
-                mean_x + sxy / sxx * dt,
-                (1.0 / sw + dt * dt / sxx).sqrt(),
+                mean_x + szx / szz * dz,
+                (1.0 / sw + dz * dz / szz).sqrt(),
                 n,
             ))
         }
-        _ => {
-            if n < 3 {
-                return None;
-            }
-            Some((mean_x, (1.0 / sw).sqrt(), n))
+        ScaleModel::Constant => {
+            let (m, w, n) = mean(&mut obs.iter())?;
+            (n >= 3).then(|| (m, (1.0 / w).sqrt(), n))
         }
     }
 }
@@ -105,7 +128,7 @@ pub(crate) fn apply(t: &mut TankAudit, obs: &[Obs], model: ScaleModel, opts: &Au
     }
     for o in obs {
         let others: Vec<&Obs> = obs.iter().filter(|x| x.0 != o.0).collect();
-        let Some((scale, se_fit, n)) = fit_at(&others, model, o.1) else {
+        let Some((scale, se_fit, n)) = fit_at(&others, model, o.1, o.5) else {
             continue;
         };
         if n + 1 < opts.calibration_min_fills || !(scale > 0.5 && scale < 1.5) {
@@ -141,10 +164,10 @@ mod tests {
     #[test]
     fn constant_scale_is_the_mean_of_the_others() {
         let obs: Vec<Obs> = (0..5)
-            .map(|i| (i, i as i64 * 1000, 1.0 + 0.001 * i as f64, 1e4, 0.0))
+            .map(|i| (i, i as i64 * 1000, 1.0 + 0.001 * i as f64, 1e4, 0.0, 1.0))
             .collect();
         let refs: Vec<&Obs> = obs.iter().collect();
-        let (s, se, n) = fit_at(&refs, ScaleModel::Constant, 0).expect("fit");
+        let (s, se, n) = fit_at(&refs, ScaleModel::Constant, 0, 1.0).expect("fit");
         assert!((s - 1.002).abs() < 1e-12, "{s}");
         assert!((se - 0.01 / 5f64.sqrt()).abs() < 1e-12, "{se}");
         assert_eq!(n, 5);
@@ -157,18 +180,48 @@ mod tests {
         let obs: Vec<Obs> = (0..8)
             .map(|i| {
                 let x = if i < 4 { 1.0 } else { 0.97 };
-                (i, i as i64 * 1000, x, 1.0, 0.0)
+                (i, i as i64 * 1000, x, 1.0, 0.0, 1.0)
             })
             .collect();
         let refs: Vec<&Obs> = obs.iter().collect();
-        let (before, ..) = fit_at(&refs, ScaleModel::Step(3500), 1000).expect("fit");
-        let (after, ..) = fit_at(&refs, ScaleModel::Step(3500), 6000).expect("fit");
+        let (before, ..) = fit_at(&refs, ScaleModel::Step(3500), 1000, 1.0).expect("fit");
+        let (after, ..) = fit_at(&refs, ScaleModel::Step(3500), 6000, 1.0).expect("fit");
         assert!((before - 1.0).abs() < 1e-12 && (after - 0.97).abs() < 1e-12);
         let line: Vec<Obs> = (0..8)
-            .map(|i| (i, i as i64 * 1000, 1.0 + 1e-3 * i as f64, 1.0, 0.0))
+            .map(|i| (i, i as i64 * 1000, 1.0 + 1e-3 * i as f64, 1.0, 0.0, 1.0))
             .collect();
         let refs: Vec<&Obs> = line.iter().collect();
-        let (at10, ..) = fit_at(&refs, ScaleModel::Drift, 10_000).expect("fit");
+        let (at10, ..) = fit_at(&refs, ScaleModel::Drift, 10_000, 1.0).expect("fit");
         assert!((at10 - 1.010).abs() < 1e-12, "{at10}");
+    }
+
+    /// A fault moves each fill's ratio by its sensitivity to the span over the mean fill's
+    /// (constructed, exact): four fills at 1.00 before a step and four after it at 1 − 0.03·r, r
+    /// alternately 0.5 and 1.5; a fill after the step with r = 0.8 is judged at 1 − 0.024, one with
+    /// r = 1 at 0.97 (the mean fill's step). Along a drift with ratios 1 − 0.04·r·(t − t̄) per 1000
+    /// ms, the line is recovered at any r.
+    #[test]
+    fn a_fault_moves_each_fill_by_its_sensitivity() {
+        let rel = |i: usize| if i.is_multiple_of(2) { 0.5 } else { 1.5 };
+        let obs: Vec<Obs> = (0..8)
+            .map(|i| {
+                let x = if i < 4 { 1.0 } else { 1.0 - 0.03 * rel(i) };
+                (i, i as i64 * 1000, x, 1.0, 0.0, rel(i))
+            })
+            .collect();
+        let refs: Vec<&Obs> = obs.iter().collect();
+        let (at_08, ..) = fit_at(&refs, ScaleModel::Step(3500), 9000, 0.8).expect("fit");
+        let (at_1, ..) = fit_at(&refs, ScaleModel::Step(3500), 9000, 1.0).expect("fit");
+        assert!((at_08 - 0.976).abs() < 1e-12, "{at_08}");
+        assert!((at_1 - 0.97).abs() < 1e-12, "{at_1}");
+        let line: Vec<Obs> = (0..8)
+            .map(|i| {
+                let x = 1.0 - 0.04 * rel(i) * (i as f64 - 3.5);
+                (i, i as i64 * 1000, x, 1.0, 0.0, rel(i))
+            })
+            .collect();
+        let refs: Vec<&Obs> = line.iter().collect();
+        let (at10, ..) = fit_at(&refs, ScaleModel::Drift, 10_000, 0.8).expect("fit");
+        assert!((at10 - (1.0 - 0.04 * 0.8 * 6.5)).abs() < 1e-12, "{at10}");
     }
 }

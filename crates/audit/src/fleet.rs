@@ -118,59 +118,118 @@ fn usable(b: &Balance, findings: &[Finding]) -> bool {
             .any(|f| f.from_ms < after.time_ms && f.to_ms > before.time_ms)
 }
 
+/// How far a fill's ratio moves per unit relative error of its gauge's span: its two readings'
+/// span masses' difference (see `Eval::span_kg`) per kg gained, times the ratio (the use between
+/// readings and fill comes from readings read with the same span); 1 in a vertical tank's straight
+/// shell, some 0.4–0.9 in a horizontal one; 1 without both readings.
+pub(crate) fn sensitivity(b: &Balance) -> f64 {
+    let s = match (&b.before, &b.after) {
+        (Some(x), Some(y)) => (y.span_kg - x.span_kg) / b.gained_kg * b.ratio,
+        _ => 1.0,
+    };
+    if s.is_finite() {
+        s.max(MIN_SENSITIVITY)
+    } else {
+        1.0
+    }
+}
+
 /// A faulty gauge's tank level over time, fitted to the tank's test points (ratios less what the
-/// vehicles add): the weighted means before and after a step, or the weighted line of a drift.
+/// vehicles add), for a fill of sensitivity s to the span: the fault moves a fill's ratio by s over
+/// the tank's mean sensitivity `per_span` times what it moves the mean fill's. A step: the weighted
+/// mean before it, and after it that plus the step; a drift: the weighted line of the ratios on the
+/// sensitivity-scaled time from the points' mean time.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub(crate) enum FaultLevel {
-    Step { at_ms: i64, before: f64, after: f64 },
-    Line { intercept: f64, slope_per_year: f64 },
+    Step {
+        at_ms: i64,
+        before: f64,
+        step: f64,
+        per_span: f64,
+    },
+    Line {
+        mean: f64,
+        slope_per_year: f64,
+        t_ref_years: f64,
+        per_span: f64,
+    },
 }
 
 impl FaultLevel {
-    fn fit(g: &GaugeFinding, pts: &[Point]) -> Option<FaultLevel> {
-        let mean = |q: &mut dyn Iterator<Item = &Point>| {
-            let (s, w) = q.fold((0.0, 0.0), |(s, w), p| (s + p.2 * p.1, w + p.2));
-            (w > 0.0).then(|| s / w)
-        };
+    /// From the tank's points `pts` and each one's sensitivity `sens`, the fills' mean sensitivity
+    /// being `per_span`.
+    fn fit(g: &GaugeFinding, pts: &[Point], sens: &[f64], per_span: f64) -> Option<FaultLevel> {
+        let per_span = per_span.max(MIN_SENSITIVITY);
+        let rel = |i: usize| sens.get(i).copied().unwrap_or(per_span) / per_span;
         match (g.status, g.step_ms) {
-            (GaugeStatus::Step, Some(at_ms)) => Some(FaultLevel::Step {
-                at_ms,
-                before: mean(&mut pts.iter().filter(|p| p.0 <= at_ms))?,
-                after: mean(&mut pts.iter().filter(|p| p.0 > at_ms))?,
-            }),
+            (GaugeStatus::Step, Some(at_ms)) => {
+                let (mut sb, mut wb) = (0.0, 0.0);
+                for p in pts.iter().filter(|p| p.0 <= at_ms) {
+                    sb += p.2 * p.1;
+                    wb += p.2;
+                }
+                if wb.is_nan() || wb <= 0.0 {
+                    return None;
+                }
+                let before = sb / wb;
+                // the step in the mean fill's terms: Σ w r (x − before) / Σ w r² after it
+                let (mut num, mut den) = (0.0, 0.0);
+                for (i, p) in pts.iter().enumerate().filter(|(_, p)| p.0 > at_ms) {
+                    let r = rel(i);
+                    num += p.2 * r * (p.1 - before);
+                    den += p.2 * r * r;
+                }
+                (den > 0.0).then(|| FaultLevel::Step {
+                    at_ms,
+                    before,
+                    step: num / den,
+                    per_span,
+                })
+            }
             (GaugeStatus::Drift, _) => {
+                let sw: f64 = pts.iter().map(|p| p.2).sum();
+                if sw.is_nan() || sw <= 0.0 {
+                    return None;
+                }
+                let t_ref_years = pts.iter().map(|p| p.2 * p.0 as f64 / YEAR_MS).sum::<f64>() / sw;
                 let line: Vec<(f64, f64, f64)> = pts
                     .iter()
-                    .map(|p| (p.0 as f64 / YEAR_MS, p.1, p.2))
+                    .enumerate()
+                    .map(|(i, p)| (rel(i) * (p.0 as f64 / YEAR_MS - t_ref_years), p.1, p.2))
                     .collect();
                 let fit = crate::stats::weighted_line(&line)?;
                 Some(FaultLevel::Line {
-                    intercept: fit.intercept,
+                    mean: fit.intercept,
                     slope_per_year: fit.slope,
+                    t_ref_years,
+                    per_span,
                 })
             }
             _ => None,
         }
     }
 
-    /// The level at `t_ms`.
-    pub(crate) fn at(self, t_ms: i64) -> f64 {
+    /// The level at `t_ms` for a fill of sensitivity `s`.
+    pub(crate) fn at(self, t_ms: i64, s: f64) -> f64 {
         match self {
             FaultLevel::Step {
                 at_ms,
                 before,
-                after,
+                step,
+                per_span,
             } => {
                 if t_ms > at_ms {
-                    after
+                    before + s / per_span * step
                 } else {
                     before
                 }
             }
             FaultLevel::Line {
-                intercept,
+                mean,
                 slope_per_year,
-            } => intercept + slope_per_year * t_ms as f64 / YEAR_MS,
+                t_ref_years,
+                per_span,
+            } => mean + s / per_span * slope_per_year * (t_ms as f64 / YEAR_MS - t_ref_years),
         }
     }
 }
@@ -291,25 +350,15 @@ fn fleet_pass(
                 })
         })
         .collect();
-    // how far each fill's ratio moves per unit relative error of its gauge's span: its two readings'
-    // span masses' difference (see `Eval::span_kg`) per kg gained, times the ratio (the use between
-    // readings and fill comes from readings read with the same span); 1 in a vertical tank's
-    // straight shell, some 0.4–0.9 in a horizontal one
+    // how far each fill's ratio moves per unit relative error of its gauge's span (see
+    // `sensitivity`)
     let sensitivity: Vec<f64> = rows
         .iter()
         .map(|r| {
-            let b = tanks.get(r.0).and_then(|t| t.balances.get(r.5));
-            match b.map(|b| (b, &b.before, &b.after)) {
-                Some((b, Some(x), Some(y))) => (y.span_kg - x.span_kg) / b.gained_kg * b.ratio,
-                _ => 1.0,
-            }
-        })
-        .map(|s| {
-            if s.is_finite() {
-                s.max(MIN_SENSITIVITY)
-            } else {
-                1.0
-            }
+            tanks
+                .get(r.0)
+                .and_then(|t| t.balances.get(r.5))
+                .map_or(1.0, self::sensitivity)
         })
         .collect();
     let plain: Vec<Row> = rows.iter().map(|r| (r.0, r.1, r.2)).collect();
@@ -363,20 +412,26 @@ fn fleet_pass(
     // each tank's points, and how far its fills' ratios move per unit relative error of its span
     // (their sensitivities' weighted mean): a step's size in the ratios over it is the span's, which
     // times a reading's span mass is the jump the step gives that reading
+    let mut tank_sens: Vec<Vec<f64>> = Vec::with_capacity(tanks.len());
     let (tank_points, ratio_per_span): (Vec<Vec<Point>>, Vec<f64>) = rows_of_tank
         .iter()
         .map(|ks| {
-            let mut pts: Vec<Point> = Vec::with_capacity(ks.len());
+            let mut pts: Vec<(Point, f64)> = Vec::with_capacity(ks.len());
             let (mut sw, mut sws) = (0.0, 0.0);
             for &k in ks {
                 let r = &rows[k];
                 let (x, var) = test_point(r);
-                pts.push((r.4, x, 1.0 / var));
+                let s = sensitivity.get(k).copied().unwrap_or(1.0);
+                pts.push(((r.4, x, 1.0 / var), s));
                 sw += 1.0 / var;
-                sws += sensitivity.get(k).copied().unwrap_or(1.0) / var;
+                sws += s / var;
             }
-            pts.sort_by_key(|p| p.0);
-            (pts, if sw > 0.0 { sws / sw } else { 1.0 })
+            pts.sort_by_key(|p| p.0.0);
+            tank_sens.push(pts.iter().map(|p| p.1).collect());
+            (
+                pts.into_iter().map(|p| p.0).collect(),
+                if sw > 0.0 { sws / sw } else { 1.0 },
+            )
         })
         .unzip();
     let testable = |pts: &[Point]| {
@@ -477,7 +532,8 @@ fn fleet_pass(
     let fault_levels: Vec<Option<FaultLevel>> = gauges
         .iter()
         .zip(&tank_points)
-        .map(|(g, pts)| FaultLevel::fit(g, pts))
+        .zip(tank_sens.iter().zip(&ratio_per_span))
+        .map(|((g, pts), (sens, &per_span))| FaultLevel::fit(g, pts, sens, per_span))
         .collect();
     if gauges_only {
         return (gauges, Vec::new(), fault_levels);
@@ -503,7 +559,7 @@ fn fleet_pass(
         let mut obs: Vec<Vec<Obs>> = vec![Vec::new(); tanks.len()];
         let n_of_vehicle: Vec<usize> = kept_of_vehicle.iter().map(Vec::len).collect();
         let mut kept_k = 0;
-        for r in &rows {
+        for (k, r) in rows.iter().enumerate() {
             let weight = if faulty[r.0] {
                 1.0
             } else {
@@ -523,17 +579,20 @@ fn fleet_pass(
             ) {
                 (Some(m), Some(level)) => {
                     let u = r.3.max(1e-4);
-                    let (e, v) = m.effect(r.2 - level.at(r.4), u);
+                    let s = sensitivity.get(k).copied().unwrap_or(1.0);
+                    let (e, v) = m.effect(r.2 - level.at(r.4, s), u);
                     (r.2 - e, u * u + v)
                 }
                 _ => gauge_point(r, veh),
             };
+            let per_span = ratio_per_span.get(r.0).copied().unwrap_or(1.0);
             obs[r.0].push((
                 r.5,
                 r.4,
                 x,
                 weight / ratio_var,
                 kept_fit.scale.powi(2) / n_v,
+                sensitivity.get(k).copied().unwrap_or(1.0) / per_span.max(MIN_SENSITIVITY),
             ));
         }
         for ((t, g), o) in tanks.iter_mut().zip(&gauges).zip(&obs) {
@@ -659,23 +718,27 @@ mod tests {
             })
             .collect();
         let at = 4 * month + month / 2;
-        let level = FaultLevel::fit(&gauge(GaugeStatus::Step, Some(at)), &step).unwrap();
-        assert!((level.at(0) - 1.0).abs() < 1e-12);
-        assert!((level.at(9 * month) - 0.97).abs() < 1e-12);
+        let ones = [1.0; 10];
+        let level =
+            FaultLevel::fit(&gauge(GaugeStatus::Step, Some(at)), &step, &ones, 1.0).unwrap();
+        assert!((level.at(0, 1.0) - 1.0).abs() < 1e-12);
+        assert!((level.at(9 * month, 1.0) - 0.97).abs() < 1e-12);
+        // a fill half as sensitive to the span as the mean one moves half as far
+        assert!((level.at(9 * month, 0.5) - 0.985).abs() < 1e-12);
         let line: Vec<Point> = (0..10)
             .map(|i| (i * month, 1.0 - 0.04 * (i * month) as f64 / YEAR_MS, 1.0))
             .collect();
-        let drift = FaultLevel::fit(&gauge(GaugeStatus::Drift, None), &line).unwrap();
+        let drift = FaultLevel::fit(&gauge(GaugeStatus::Drift, None), &line, &ones, 1.0).unwrap();
         let t = 20 * month;
-        assert!((drift.at(t) - (1.0 - 0.04 * t as f64 / YEAR_MS)).abs() < 1e-9);
-        assert!(FaultLevel::fit(&gauge(GaugeStatus::Ok, None), &step).is_none());
+        assert!((drift.at(t, 1.0) - (1.0 - 0.04 * t as f64 / YEAR_MS)).abs() < 1e-9);
+        assert!(FaultLevel::fit(&gauge(GaugeStatus::Ok, None), &step, &ones, 1.0).is_none());
         let m = crate::mixture::Mixture {
             honest: 0.0,
             shortfall: 0.035,
             share: 0.4,
         };
         let after = 0.97;
-        assert!(m.short_probability(after - level.at(9 * month), 0.01) < 0.1);
+        assert!(m.short_probability(after - level.at(9 * month, 1.0), 0.01) < 0.1);
         assert!(m.short_probability(after - 1.0, 0.01) > 0.9);
     }
 

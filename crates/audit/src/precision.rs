@@ -74,11 +74,9 @@ pub(crate) fn refine(
     // a balance's ratio less its gauge fault's level at its time (none where the gauge is sound)
     let ratio_of = |ti: usize, b: &Balance| -> f64 {
         b.ratio
-            - shape
-                .get(ti)
-                .copied()
-                .flatten()
-                .map_or(0.0, |l| l.at(b.start_ms) - 1.0)
+            - shape.get(ti).copied().flatten().map_or(0.0, |l| {
+                l.at(b.start_ms, crate::fleet::sensitivity(b)) - 1.0
+            })
     };
     // vehicle index by name
     let mut names: Vec<String> = tanks
@@ -602,7 +600,8 @@ mod tests {
         let step = FaultLevel::Step {
             at_ms: 5 * month + month / 2,
             before: 1.0,
-            after: 0.97,
+            step: -0.03,
+            per_span: 1.0,
         };
         refine(&mut stepped, &opts, &[Some(step), None, None, None]);
         assert!(
