@@ -247,7 +247,7 @@ fn drop_losses_at_step(findings: &mut Vec<Finding>, at_ms: i64) {
 /// Fleet statistics over every tank's audit.
 ///
 /// With the Type A step on, the fleet is judged in two passes. The first measures the balances'
-/// precision ([`crate::precision`]) and tests the gauges; the second measures the precision again
+/// precision and tests the gauges; the second measures the precision again
 /// from the tanks' own balances, each faulty tank's fills now about its level under the fault (a
 /// step's two levels, a drift's line), and judges every fill with the first pass's gauges. Measured
 /// about one level for the year, a fault passed for its tank's reading and use noise and widened
