@@ -52,6 +52,63 @@ impl ScaleModel {
 /// span over the tank's mean fill's).
 pub(crate) type Obs = (usize, i64, f64, f64, f64, f64);
 
+/// A gauge's span step in the mean fill's terms, from the fills before it (ratio, weight) and after
+/// it (ratio, weight, sensitivity to the span over the mean fill's, r): the weighted mean before,
+/// and the step Σ w r (x − before) / Σ w r² after, with the sums its uncertainty needs.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub(crate) struct SpanStep {
+    pub(crate) before: f64,
+    pub(crate) step: f64,
+    /// Σ w before the step, and the fills there.
+    w_before: f64,
+    n_before: usize,
+    /// Σ w r and Σ w r² after the step, and the fills there.
+    wr: f64,
+    wrr: f64,
+    n_after: usize,
+}
+
+impl SpanStep {
+    /// None without a weighted fill on either side.
+    pub(crate) fn fit(
+        before: impl Iterator<Item = (f64, f64)>,
+        after: impl Iterator<Item = (f64, f64, f64)>,
+    ) -> Option<SpanStep> {
+        let (sb, w_before, n_before) = before.fold((0.0, 0.0, 0), |(s, w, n), (x, wi)| {
+            (s + wi * x, w + wi, n + 1)
+        });
+        if w_before.is_nan() || w_before <= 0.0 || !w_before.is_finite() {
+            return None;
+        }
+        let before = sb / w_before;
+        let (num, wr, wrr, n_after) = after.fold((0.0, 0.0, 0.0, 0), |(a, b, c, n), (x, w, r)| {
+            (a + w * r * (x - before), b + w * r, c + w * r * r, n + 1)
+        });
+        if wrr.is_nan() || wrr <= 0.0 {
+            return None;
+        }
+        Some(SpanStep {
+            before,
+            step: num / wrr,
+            w_before,
+            n_before,
+            wr,
+            wrr,
+            n_after,
+        })
+    }
+
+    /// The level after the step for a fill of relative sensitivity `rel`, and its variance (the step
+    /// leans on the mean before by −Σwr/Σwr²).
+    pub(crate) fn after(&self, rel: f64) -> (f64, f64) {
+        let lean = 1.0 - rel * self.wr / self.wrr;
+        (
+            self.before + rel * self.step,
+            lean * lean / self.w_before + rel * rel / self.wrr,
+        )
+    }
+}
+
 /// A weighted least-squares fit of the scale at `at_ms` for a fill of relative sensitivity `rel`
 /// from `obs` (the fill itself left out): (scale, its standard error from the fit, observations
 /// used). A gauge's fault moves each fill's ratio by its sensitivity to the span over the mean
@@ -68,21 +125,18 @@ fn fit_at(obs: &[&Obs], model: ScaleModel, at_ms: i64, rel: f64) -> Option<(f64,
     };
     match model {
         ScaleModel::Step(step_ms) if at_ms > step_ms => {
-            let (before, w_before, n_before) = mean(&mut obs.iter().filter(|o| o.1 <= step_ms))?;
-            let after: Vec<&&Obs> = obs.iter().filter(|o| o.1 > step_ms).collect();
-            let (num, den) = after.iter().fold((0.0, 0.0), |(a, b), o| {
-                (a + o.3 * o.5 * (o.2 - before), b + o.3 * o.5 * o.5)
-            });
-            let sum_wr: f64 = after.iter().map(|o| o.3 * o.5).sum();
-            if after.len() < 3 || den.is_nan() || den <= 0.0 {
+            let fit = SpanStep::fit(
+                obs.iter().filter(|o| o.1 <= step_ms).map(|o| (o.2, o.3)),
+                obs.iter()
+                    .filter(|o| o.1 > step_ms)
+                    .map(|o| (o.2, o.3, o.5)),
+            )?;
+            if fit.n_after < 3 {
                 return None;
             }
-            let step = num / den;
-            // Var(before + rel·step): the step leans on the mean before by −Σwr/Σwr²
-            let lean = 1.0 - rel * sum_wr / den;
-            let var = lean * lean / w_before + rel * rel / den;
+            let (scale, var) = fit.after(rel);
             // the scale rests on the fills either side
-            Some((before + rel * step, var.sqrt(), n_before + after.len()))
+            Some((scale, var.sqrt(), fit.n_before + fit.n_after))
         }
         ScaleModel::Step(step_ms) => {
             let (m, w, n) = mean(&mut obs.iter().filter(|o| o.1 <= step_ms))?;

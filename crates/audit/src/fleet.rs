@@ -6,7 +6,7 @@ use serde::Serialize;
 
 use crate::AuditOptions;
 use crate::balance::set_verdict;
-use crate::calibration::{self, Obs, ScaleModel};
+use crate::calibration::{self, Obs, ScaleModel, SpanStep};
 use crate::effects::{Row, groups, two_way};
 use crate::gauge_faults::{self, FaultTest, Point, RobustLine};
 use crate::records::{Balance, Finding, FindingKind, Forecast, GaugeStep, TankAudit};
@@ -163,26 +163,17 @@ impl FaultLevel {
         let rel = |i: usize| sens.get(i).copied().unwrap_or(per_span) / per_span;
         match (g.status, g.step_ms) {
             (GaugeStatus::Step, Some(at_ms)) => {
-                let (mut sb, mut wb) = (0.0, 0.0);
-                for p in pts.iter().filter(|p| p.0 <= at_ms) {
-                    sb += p.2 * p.1;
-                    wb += p.2;
-                }
-                if wb.is_nan() || wb <= 0.0 {
-                    return None;
-                }
-                let before = sb / wb;
-                // the step in the mean fill's terms: Σ w r (x − before) / Σ w r² after it
-                let (mut num, mut den) = (0.0, 0.0);
-                for (i, p) in pts.iter().enumerate().filter(|(_, p)| p.0 > at_ms) {
-                    let r = rel(i);
-                    num += p.2 * r * (p.1 - before);
-                    den += p.2 * r * r;
-                }
-                (den > 0.0).then(|| FaultLevel::Step {
+                let fit = SpanStep::fit(
+                    pts.iter().filter(|p| p.0 <= at_ms).map(|p| (p.1, p.2)),
+                    pts.iter()
+                        .enumerate()
+                        .filter(|(_, p)| p.0 > at_ms)
+                        .map(|(i, p)| (p.1, p.2, rel(i))),
+                )?;
+                Some(FaultLevel::Step {
                     at_ms,
-                    before,
-                    step: num / den,
+                    before: fit.before,
+                    step: fit.step,
                     per_span,
                 })
             }
