@@ -283,3 +283,83 @@ fn dp_formula_against_a_hydrostatic_integral() {
         "{warm} {integral_dp}"
     );
 }
+
+/// A fluid of fixed densities, for a published example that states its densities: the liquid and
+/// vapour at saturation and the sensing line's fluid (here a water-filled reference leg).
+struct StatedDensities {
+    liquid: f64,
+    vapour: f64,
+    line: f64,
+}
+
+impl tank::FluidProperties for StatedDensities {
+    fn saturation_at_pressure(&self, pressure_pa: f64) -> tank::Result<tank::SaturationPoint> {
+        Ok(tank::SaturationPoint {
+            temperature_k: 600.0,
+            pressure_pa,
+            liquid_density_kg_m3: self.liquid,
+            vapour_density_kg_m3: self.vapour,
+        })
+    }
+    fn liquid_density_kg_m3(&self, _t: f64, _p: f64) -> tank::Result<f64> {
+        Ok(self.liquid)
+    }
+    fn gas_density_kg_m3(&self, _t: f64, _p: f64) -> tank::Result<f64> {
+        Ok(self.line)
+    }
+    fn gas_density_normal_kg_m3(&self) -> f64 {
+        1.0
+    }
+    fn gas_density_standard_kg_m3(&self) -> f64 {
+        1.0
+    }
+}
+
+/// The DP formula against a published worked example of DP level measurement with the vapour's head
+/// and a sensing (reference) leg corrected for: Rosemount Application Data Sheet 00800-0100-3055,
+/// "Boiler Drum Level Transmitter Calibration" (Emerson Process Management). A drum at 2,425 psig,
+/// taps 33 in apart; saturated water 35.49 lb/ft³ (0.02817 ft³/lb), saturated steam 7.33 lb/ft³
+/// (0.1364 ft³/lb), the reference leg water at 105 °F 61.93 lb/ft³ (0.01615 ft³/lb); the sheet's
+/// ΔP = [H(ρs − ρo) + h(ρw − ρs)] / ρo in inches of the reference leg's water is −28.41 at
+/// h = 1.5 in and −14.77 at h = 31.5 in (span 13.64). The figures were read from the sheet's text,
+/// not from memory. The engine's g[(ρL − ρV) h + (ρV − ρline) H] is the same balance with the
+/// reference leg as the line; the densities are taken as printed (the sheet computes from them), so
+/// the tolerance, 0.006 in, is the sheet's rounding of ΔP to 0.01 in. The inverse (reading to level) is checked at the same points: the
+/// sheet's rounding of ΔP moves the level by at most 0.005 × 61.93 / 28.16 = 0.011 in.
+#[test]
+fn dp_formula_against_a_published_reference_leg_example() {
+    const LB_FT3: f64 = 0.453_592_37 / (0.3048 * 0.3048 * 0.3048); // kg/m³ per lb/ft³, exact
+    const INCH: f64 = 0.0254;
+    let (rho_w, rho_s, rho_o) = (35.49 * LB_FT3, 7.33 * LB_FT3, 61.93 * LB_FT3);
+    let engine = Tank::new(
+        Cylinder::new(Orientation::Vertical, 1.0, 33.0 * INCH, Head::Flat).unwrap(),
+        StatedDensities {
+            liquid: rho_w,
+            vapour: rho_s,
+            line: rho_o,
+        },
+    );
+    let p_drum = (2425.0 + 14.696) * 6894.757; // Pa absolute; the densities do not depend on it here
+    let c = Conditions::saturated(p_drum);
+    let in_of_leg = |dp_pa: f64| dp_pa / (STANDARD_GRAVITY * rho_o * INCH);
+    for (h_in, published) in [(1.5, -28.41), (31.5, -14.77)] {
+        let dp = engine.dp_from_level(h_in * INCH, &c).unwrap();
+        assert!(
+            (in_of_leg(dp) - published).abs() < 0.006,
+            "level {h_in} in: {:.4} in of the leg's water, the sheet {published}",
+            in_of_leg(dp)
+        );
+        let back = engine
+            .contents_from_reading(
+                published * STANDARD_GRAVITY * rho_o * INCH,
+                &c,
+                &ContentsOptions::default(),
+            )
+            .unwrap();
+        assert!(
+            (back.liquid_height_m / INCH - h_in).abs() < 0.012,
+            "{} in from the sheet's {published}, the sheet's level {h_in} in",
+            back.liquid_height_m / INCH
+        );
+    }
+}
