@@ -116,6 +116,9 @@ pub fn audit_tank(input: &TankInput, opts: &AuditOptions) -> Result<TankAudit, A
 
     let mut evals = ctx.history(heat_w_of(ner_setting), &Mode::Full);
     let mut ner_fitted = None;
+    // the use model fitted before the NER fit, kept when the setting stands: the readings then keep
+    // the masses it was fitted on (refitting them gave the same to 1e-12)
+    let mut kept_model = None;
     if opts.fit_ner && opts.thermal_history && !ctx.deliveries.is_empty() {
         let liquid: Vec<f64> = evals
             .iter()
@@ -202,17 +205,21 @@ pub fn audit_tank(input: &TankInput, opts: &AuditOptions) -> Result<TankAudit, A
             best = ner_setting;
         }
         ner_fitted = Some(best);
-        // the bracketing readings with the fitted NER; the daily readings keep the first pass's
-        // state (the NER moves their masses far less than the usage model's scatter)
-        let refit = ctx.history(heat_w_of(best), &mode);
-        for (e, r) in evals.iter_mut().zip(refit) {
-            if r.is_some() {
-                *e = r;
+        if best == ner_setting {
+            kept_model = Some(model);
+        } else {
+            // the bracketing readings with the fitted NER; the daily readings keep the first
+            // pass's state (the NER moves their masses far less than the usage model's scatter)
+            let refit = ctx.history(heat_w_of(best), &mode);
+            for (e, r) in evals.iter_mut().zip(refit) {
+                if r.is_some() {
+                    *e = r;
+                }
             }
         }
     }
     let intervals = intervals(&ctx, &evals);
-    let model = use_model(&ctx, &intervals);
+    let model = kept_model.unwrap_or_else(|| use_model(&ctx, &intervals));
     let balances: Vec<Balance> = ctx
         .deliveries
         .iter()

@@ -261,11 +261,22 @@ impl UseModel {
 
 /// Solve the symmetric positive definite system `a x = b` and return `x` and `a⁻¹` (Cholesky). Only
 /// the lower triangle of `a` (j ≤ i) is read.
-// index loops read as the textbook algorithm
-#[allow(clippy::needless_range_loop)]
+#[cfg(test)]
 fn solve_spd(
     a: [[f64; BLOCKS]; BLOCKS],
     b: [f64; BLOCKS],
+) -> Option<([f64; BLOCKS], [[f64; BLOCKS]; BLOCKS])> {
+    solve_spd_with(a, b, true)
+}
+
+/// As `solve_spd`, the inverse only when `inverse` (else zeros): the fit's passes before its last
+/// need the solution alone.
+// index loops read as the textbook algorithm
+#[allow(clippy::needless_range_loop)]
+fn solve_spd_with(
+    a: [[f64; BLOCKS]; BLOCKS],
+    b: [f64; BLOCKS],
+    inverse: bool,
 ) -> Option<([f64; BLOCKS], [[f64; BLOCKS]; BLOCKS])> {
     let mut l = [[0.0; BLOCKS]; BLOCKS];
     for i in 0..BLOCKS {
@@ -305,6 +316,9 @@ fn solve_spd(
     };
     let x = solve(b);
     let mut inv = [[0.0; BLOCKS]; BLOCKS];
+    if !inverse {
+        return Some((x, inv));
+    }
     for j in 0..BLOCKS {
         let mut e = [0.0; BLOCKS];
         e[j] = 1.0;
@@ -342,7 +356,7 @@ fn nonnegative(
                 rhs[k] = 0.0;
             }
         }
-        t = solve_spd(m, rhs)?.0;
+        t = solve_spd_with(m, rhs, false)?.0;
     }
     Some(t.map(|x| x.max(0.0)))
 }
@@ -387,16 +401,24 @@ fn fit_one(rows: &[Row], scale_kg: f64, zone: Zone) -> Option<UseFit> {
         .iter()
         .map(|(_, y, h, d)| squared_daily_use(d, &[(y / h).max(0.0); BLOCKS]))
         .collect();
-    for _ in 0..3 {
+    const PASSES: usize = 3;
+    for pass in 0..PASSES {
         let mut m = [[0.0; BLOCKS]; BLOCKS];
         let mut rhs = [0.0; BLOCKS];
         for (((x, y, _, _), w_r), gi) in rows.iter().zip(&robust).zip(&g) {
             let w = w_r / (a + s2 * gi);
             for i in 0..BLOCKS {
+                // most intervals (a day or two) fall in two or three blocks: a block with no hours
+                // adds exact zeros, so it is skipped (the sums are the same to the last bit)
+                if x[i] == 0.0 {
+                    continue;
+                }
                 rhs[i] += w * x[i] * y;
                 // the lower triangle only: the matrix is symmetric and `solve_spd` reads no more
                 for j in 0..=i {
-                    m[i][j] += w * x[i] * x[j];
+                    if x[j] != 0.0 {
+                        m[i][j] += w * x[i] * x[j];
+                    }
                 }
             }
         }
@@ -404,7 +426,8 @@ fn fit_one(rows: &[Row], scale_kg: f64, zone: Zone) -> Option<UseFit> {
             m[i][i] += prior_w;
             rhs[i] += prior_w * centre;
         }
-        let (t, c) = solve_spd(m, rhs)?;
+        // the rates' covariance is kept from the last pass only
+        let (t, c) = solve_spd_with(m, rhs, pass + 1 == PASSES)?;
         theta = nonnegative(m, rhs, t)?;
         cov = c;
         daily(&theta, &mut g);
