@@ -121,6 +121,25 @@ fn normal_tail(k: f64) -> f64 {
     0.5 * statrs::function::erf::erfc(k / std::f64::consts::SQRT_2)
 }
 
+/// The weighted mean of a vehicle's points `d` (x, w = 1/u²) and its standard error: the scatter's
+/// (Birge's external consistency) plus the covariance of the fills compared with one tank's level,
+/// whose error moves them together and does not show in their scatter: v_t (W_t² − Σ_t w²) at each
+/// tank over (Σw)², from `shared` (W_t = Σ_t w, Σ_t w², v_t the level's variance).
+fn mean_and_se<'a>(
+    d: &[(f64, f64)],
+    shared: impl Iterator<Item = &'a (f64, f64, f64)>,
+) -> (f64, f64) {
+    let n = d.len() as f64;
+    let sw: f64 = d.iter().map(|x| x.1).sum();
+    let mean = d.iter().map(|x| x.0 * x.1).sum::<f64>() / sw;
+    let chi2: f64 = d.iter().map(|x| x.1 * (x.0 - mean).powi(2)).sum();
+    let covariance: f64 = shared
+        .map(|(w_t, w2_t, v_t)| v_t * (w_t * w_t - w2_t))
+        .sum::<f64>()
+        / (sw * sw);
+    (mean, (chi2 / (n - 1.0) / sw + covariance.max(0.0)).sqrt())
+}
+
 /// Test every vehicle. `kept` are the fills at tanks without a gauge fault, `kept_u` their ratios'
 /// standard uncertainties, `kept_at` each one's balance (its index in its tank's balances), `fit`
 /// the levels and effects fitted from them, `mixed` what a fill of a vehicle set apart as short on
@@ -193,11 +212,16 @@ pub(crate) fn test(
         // the ratio and of the level together); fills at tanks no other vehicle filled often
         // enough have nothing to compare with
         let mut adjusted = Vec::new();
+        // per tank: (Σw and Σw² of this vehicle's fills there, the variance of the level they share)
+        let mut shared: BTreeMap<usize, (f64, f64, f64)> = BTreeMap::new();
         let d: Vec<(f64, f64)> = kept_of_vehicle[vi]
             .iter()
             .filter_map(|&k| {
                 let (level, level_var) = level_without(kept[k].0, vi)?;
                 let u = (kept_u.get(k)?.powi(2) + level_var).sqrt().max(1e-4);
+                let at = shared.entry(kept[k].0).or_insert((0.0, 0.0, level_var));
+                at.0 += u.powi(-2);
+                at.1 += u.powi(-4);
                 let t = tanks.get(kept[k].0)?;
                 if let Some(b) = kept_at.get(k).and_then(|&bi| t.balances.get(bi)) {
                     adjusted.push(AdjustedFill {
@@ -237,10 +261,7 @@ pub(crate) fn test(
         };
         let n = d.len();
         if n >= opts.vehicle_min_fills.max(2) {
-            let sw: f64 = d.iter().map(|x| x.1).sum();
-            let mean = d.iter().map(|x| x.0 * x.1).sum::<f64>() / sw;
-            let chi2: f64 = d.iter().map(|x| x.1 * (x.0 - mean).powi(2)).sum();
-            let se = (chi2 / (n as f64 - 1.0) / sw).sqrt();
+            let (mean, se) = mean_and_se(&d, shared.values());
             let dof = n as f64 - 1.0;
             let tstat = if se > 0.0 { mean / se } else { 0.0 };
             let p_bias = t_two_sided_p(tstat, dof);
@@ -316,6 +337,24 @@ pub(crate) fn judge_cleared<'a>(
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// Two fills of a vehicle at one tank, each ratio known to u_r = 1 % (r² = 1e-4) and compared with
+    /// the same level, known to 1 % (v = 1e-4): x = 2 % and 0 %. By hand: w = 1/(r² + v) = 5,000 each,
+    /// the mean 1 %, χ² = 2 × 5,000 × 1e-4 = 1 on one degree of freedom, so the scatter's variance is
+    /// 1/Σw = 1e-4, and the shared level adds v (W² − Σw²)/(Σw)² = 1e-4 × 5e7 / 1e8 = 5e-5: the
+    /// standard error √1.5e-4 = 1.2247 %, the exact variance of (e₁ + e₂)/2 + L, r²/2 + v. The same
+    /// two fills at two tanks (levels with independent errors) keep the scatter's 1 %.
+    #[test]
+    fn fills_compared_with_one_level_share_its_error() {
+        let d = [(0.02, 5_000.0), (0.0, 5_000.0)];
+        let one_tank = [(10_000.0, 5.0e7, 1e-4)];
+        let (mean, se) = mean_and_se(&d, one_tank.iter());
+        assert!((mean - 0.01).abs() < 1e-15, "{mean}");
+        assert!((se - 1.5e-4_f64.sqrt()).abs() < 1e-12, "{se}");
+        let two_tanks = [(5_000.0, 2.5e7, 1e-4), (5_000.0, 2.5e7, 1e-4)];
+        let (_, se) = mean_and_se(&d, two_tanks.iter());
+        assert!((se - 0.01).abs() < 1e-12, "{se}");
+    }
 
     /// Binomial upper tail: P(X ≥ 2) for n = 3, p = 0.5 is 4/8 = 0.5; P(X ≥ 3) = 1/8 (exact by
     /// enumeration).
