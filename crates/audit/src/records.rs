@@ -65,7 +65,10 @@ pub struct Balance {
     pub gained_kg: f64,
     /// Use between the bracketing readings, kg.
     pub drawn_kg: f64,
-    /// billed − (gained + drawn), kg.
+    /// Mass lost beyond use between the bracketing readings in a period the audit found (a leak or
+    /// venting: its rate over the hours the two share), kg; counted with the use.
+    pub lost_beyond_use_kg: f64,
+    /// billed − (gained + drawn + lost beyond use), kg.
     pub residual_kg: f64,
     /// Residual as a percentage of billed.
     pub residual_percent: f64,

@@ -3,7 +3,7 @@
 use fluids::{Fluid, FluidId};
 use tank::ContentsOptions;
 
-use crate::balance::balance;
+use crate::balance::{balance, count_losses};
 use crate::between_fills::{findings, forecast};
 use crate::props::AuditFluid;
 use crate::records::*;
@@ -229,6 +229,16 @@ pub fn audit_tank(input: &TankInput, opts: &AuditOptions) -> Result<TankAudit, A
     let mut balances = balances;
     balances.sort_by(|a, b| a.start_ms.cmp(&b.start_ms).then(a.ticket.cmp(&b.ticket)));
     let (findings, jumps) = findings(&ctx, &intervals, &model);
+    let losses: Vec<(i64, i64, f64)> = findings
+        .iter()
+        .filter(|f| f.kind == FindingKind::LossBeyondUse)
+        .filter_map(|f| Some((f.from_ms, f.to_ms, f.excess_rate_kg_per_day?)))
+        .collect();
+    if !losses.is_empty() {
+        for b in &mut balances {
+            count_losses(b, &losses, opts);
+        }
+    }
     let forecast = forecast(&ctx, &evals, &model);
     let readings_used = evals.iter().filter(|e| e.is_some()).count();
     let state = |(r, e): (&ReadingInput, &Option<Eval>)| {

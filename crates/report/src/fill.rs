@@ -106,6 +106,12 @@ fn balance_sections(
             Cell::n("drawn_kg", Figure::Mass, b.drawn_kg),
         ),
     ];
+    if b.lost_beyond_use_kg > 0.0 {
+        rows.push((
+            "Lost beyond use between the two readings (a found leak or venting), kg",
+            Cell::n("lost_beyond_use_kg", Figure::Mass, b.lost_beyond_use_kg),
+        ));
+    }
     if b.other_fills_kg > 0.0 {
         rows.push((
             "Billed on other tickets between the same readings, kg",
@@ -118,11 +124,13 @@ fn balance_sections(
             Cell::n("gauge_scale", Figure::Ratio, s.scale),
         ));
     }
+    let ratio_label = if b.lost_beyond_use_kg > 0.0 {
+        "(gained + drawn + lost) / billed"
+    } else {
+        "(gained + drawn) / billed"
+    };
     rows.extend([
-        (
-            "(gained + drawn) / billed",
-            Cell::n("ratio", Figure::Ratio, b.ratio),
-        ),
+        (ratio_label, Cell::n("ratio", Figure::Ratio, b.ratio)),
         (
             "Residual, kg",
             Cell::n("residual_kg", Figure::Mass, b.residual_kg),
@@ -182,7 +190,7 @@ fn balance_sections(
         &svg::chain(&svg::Chain {
             billed: b.billed_kg,
             gained: b.gained_kg,
-            drawn: b.drawn_kg,
+            drawn: b.drawn_kg + b.lost_beyond_use_kg,
             residual: residual_shown,
             k_sigma: b.coverage_factor * b.sigma_kg,
             limit: b.limit_kg,

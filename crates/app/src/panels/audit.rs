@@ -462,9 +462,12 @@ fn detail_ui(ui: &mut Ui, view: &ViewState, r: &BalanceRow, out: &mut Vec<Action
         line(ui, "billed", r.billed_kg);
         line(ui, "gained by the tank, as the gauge reads", r.gained_kg);
         line(ui, "drawn by the customer meanwhile", r.drawn_kg);
+        if r.lost_kg > 0.0 {
+            line(ui, "lost meanwhile in a found leak or venting", r.lost_kg);
+        }
         line(
             ui,
-            "arrived: (gained + drawn) / gauge scale",
+            "arrived: (gained + drawn + lost) / gauge scale",
             r.billed_kg - r.residual_kg,
         );
         line(ui, "residual (billed − arrived)", r.residual_kg);

@@ -175,6 +175,8 @@ pub struct BalanceRow {
     pub gained_kg: f64,
     /// Drawn by the customer between the readings, kg.
     pub drawn_kg: f64,
+    /// Lost beyond use between the readings in a found leak or venting, kg (counted with the use).
+    pub lost_kg: f64,
     /// billed − (gained + drawn) (with the gauge's scale), kg.
     pub residual_kg: f64,
     /// The residual, % of the ticket.
