@@ -241,9 +241,9 @@ pub(crate) fn count_losses(b: &mut Balance, periods: &[(i64, i64, f64)], opts: &
     }
     b.lost_beyond_use_kg = lost;
     b.sigma_usage_kg = b.sigma_usage_kg.hypot(LOSS_U_FRACTION * lost);
-    b.residual_kg = b.billed_kg - (b.gained_kg + b.drawn_kg + lost);
+    b.residual_kg = b.billed_kg - b.measured_kg();
     if b.billed_kg > 0.0 {
-        b.ratio = (b.gained_kg + b.drawn_kg + lost) / b.billed_kg;
+        b.ratio = b.measured_kg() / b.billed_kg;
         b.residual_percent = 100.0 * b.residual_kg / b.billed_kg;
     }
     rejudge(b, opts);

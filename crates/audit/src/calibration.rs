@@ -195,7 +195,7 @@ pub(crate) fn apply(t: &mut TankAudit, obs: &[Obs], model: ScaleModel, opts: &Au
         let Some(b) = t.balances.get_mut(o.0) else {
             continue;
         };
-        let measured = b.gained_kg + b.drawn_kg + b.lost_beyond_use_kg;
+        let measured = b.measured_kg();
         b.gauge_scale = Some(GaugeScale {
             scale,
             u,

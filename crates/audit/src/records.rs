@@ -128,6 +128,14 @@ pub struct Balance {
     pub explanation: String,
 }
 
+impl Balance {
+    /// What the tank's readings say arrived: gained + drawn + lost beyond use, kg (before the
+    /// gauge's scale).
+    pub fn measured_kg(&self) -> f64 {
+        self.gained_kg + self.drawn_kg + self.lost_beyond_use_kg
+    }
+}
+
 /// A gauge's scale: (gained + drawn) / delivered as the fleet's other fills at the tank show it.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
 pub struct GaugeScale {

@@ -228,8 +228,8 @@ fn tank_rows(
                 gained += b.gained_kg;
             }
             judged += 1;
-            through += b.gained_kg + b.drawn_kg + b.lost_beyond_use_kg;
-            residual += b.billed_kg - b.gained_kg - b.drawn_kg - b.lost_beyond_use_kg;
+            through += b.measured_kg();
+            residual += b.billed_kg - b.measured_kg();
             var += (b.sigma_kg * b.sigma_kg - b.sigma_gauge_scale_kg * b.sigma_gauge_scale_kg)
                 .max(0.0);
         }
