@@ -8,7 +8,9 @@
 //!   other vehicles' fills there (weights 1/u², u that of the ratio and of the level it is compared
 //!   with, Σw²u² / (Σw)² for a level of weights w; its standard error from the weighted
 //!   scatter, the weights known up to a common factor — the external consistency of a weighted
-//!   mean, Birge, Phys. Rev. 40, 1932), by Student's t;
+//!   mean, Birge, Phys. Rev. 40, 1932 — plus what the fills compared with one level share: that
+//!   level's error, and the errors of the other vehicles' effects taken out of it, which move
+//!   every comparison with those vehicles alike), by Student's t;
 //! - the short count: a vehicle short by a few percent on only some of its fills has a small mean
 //!   bias but many short verdicts; the count is tested against the share an honest vehicle draws
 //!   (the fleet's median vehicle, at least the tail 1 − Φ(k) of the verdicts' coverage interval)
@@ -121,6 +123,58 @@ fn normal_tail(k: f64) -> f64 {
     0.5 * statrs::function::erf::erfc(k / std::f64::consts::SQRT_2)
 }
 
+/// One vehicle's fills compared with the levels the other vehicles show.
+struct Compared {
+    /// (ratio less the level, weight 1/u²).
+    d: Vec<(f64, f64)>,
+    adjusted: Vec<AdjustedFill>,
+    /// The weighted mean and its standard error without the other vehicles' effects' errors.
+    first: Option<(f64, f64)>,
+    /// Each other vehicle's share of the levels compared with (Σ over the tanks of this vehicle's
+    /// weight there times the other's share of the level).
+    share_of: BTreeMap<usize, f64>,
+}
+
+/// How much each other vehicle weighs in the levels vehicle `vi` is compared with: Σ_t (W_t / ΣW)
+/// × its share of tank t's level, W_t this vehicle's weight at tank t (`at_tank`), the level's
+/// shares from `weight_at` (each vehicle's weight in each tank's level, by (tank, vehicle)).
+fn level_shares(
+    vi: usize,
+    at_tank: impl Iterator<Item = (usize, f64)> + Clone,
+    weight_at: &BTreeMap<(usize, usize), f64>,
+) -> BTreeMap<usize, f64> {
+    let total: f64 = at_tank.clone().map(|t| t.1).sum();
+    let mut share_of: BTreeMap<usize, f64> = BTreeMap::new();
+    if total <= 0.0 {
+        return share_of;
+    }
+    for (ti, w_t) in at_tank {
+        let others = || {
+            weight_at
+                .range((ti, 0)..(ti + 1, 0))
+                .filter(|((_, v), _)| *v != vi)
+        };
+        let sw: f64 = others().map(|(_, w)| w).sum();
+        if sw > 0.0 {
+            for ((_, v), w) in others() {
+                *share_of.entry(*v).or_default() += w_t / total * w / sw;
+            }
+        }
+    }
+    share_of
+}
+
+/// The variance a vehicle's mean takes from the errors of the other vehicles' effects removed from
+/// the levels it is compared with: Σ (a_v · se_v)², a_v their shares ([`level_shares`]), se_v the
+/// standard error of each one's own comparison (`se_of`; its effect's, the effects taken as
+/// independent).
+fn effects_variance(share_of: &BTreeMap<usize, f64>, se_of: impl Fn(usize) -> Option<f64>) -> f64 {
+    share_of
+        .iter()
+        .filter_map(|(v, a)| Some((a * se_of(*v)?).powi(2)))
+        .sum()
+}
+
 /// The weighted mean of a vehicle's points `d` (x, w = 1/u²) and its standard error: the scatter's
 /// (Birge's external consistency) plus the covariance of the fills compared with one tank's level,
 /// whose error moves them together and does not show in their scatter: v_t (W_t² − Σ_t w²) at each
@@ -205,16 +259,21 @@ pub(crate) fn test(
         .unwrap_or(0.0)
         .max(normal_tail(opts.coverage_factor));
 
-    let mut vehicles: Vec<VehicleFinding> = Vec::new();
-    let mut vp: Vec<(usize, f64)> = Vec::new();
-    for (vi, (name, carrier)) in names.iter().enumerate() {
+    // each tank's level weight by vehicle: a level from the other vehicles' fills carries their
+    // fitted effects' errors, shared by every fill compared with it
+    let mut weight_at: BTreeMap<(usize, usize), f64> = BTreeMap::new();
+    for (k, r) in kept.iter().enumerate() {
+        *weight_at.entry((r.0, r.1)).or_default() += fit.weight.get(k).copied().unwrap_or(1.0);
+    }
+    let mut compared: Vec<Compared> = Vec::with_capacity(names.len());
+    for (vi, of_vehicle) in kept_of_vehicle.iter().enumerate() {
         // (ratio less its tank's level from the other vehicles' fills, weight 1/u² with u that of
         // the ratio and of the level together); fills at tanks no other vehicle filled often
         // enough have nothing to compare with
         let mut adjusted = Vec::new();
         // per tank: (Σw and Σw² of this vehicle's fills there, the variance of the level they share)
         let mut shared: BTreeMap<usize, (f64, f64, f64)> = BTreeMap::new();
-        let d: Vec<(f64, f64)> = kept_of_vehicle[vi]
+        let d: Vec<(f64, f64)> = of_vehicle
             .iter()
             .filter_map(|&k| {
                 let (level, level_var) = level_without(kept[k].0, vi)?;
@@ -236,6 +295,26 @@ pub(crate) fn test(
             })
             .collect();
         adjusted.sort_by_key(|a| a.start_ms);
+        let share_of = level_shares(vi, shared.iter().map(|(t, at)| (*t, at.0)), &weight_at);
+        let first =
+            (d.len() >= opts.vehicle_min_fills.max(2)).then(|| mean_and_se(&d, shared.values()));
+        compared.push(Compared {
+            d,
+            adjusted,
+            first,
+            share_of,
+        });
+    }
+    let mut vehicles: Vec<VehicleFinding> = Vec::new();
+    let mut vp: Vec<(usize, f64)> = Vec::new();
+    for (vi, ((name, carrier), c)) in names.iter().zip(&compared).enumerate() {
+        let Compared {
+            d,
+            adjusted,
+            first,
+            share_of,
+        } = c;
+        let adjusted = adjusted.clone();
         let verdicts = std::mem::take(&mut verdict_counts[vi]);
         let (short, judged_n) = judged(&verdicts);
         let mut f = VehicleFinding {
@@ -260,8 +339,12 @@ pub(crate) fn test(
             adjusted,
         };
         let n = d.len();
-        if n >= opts.vehicle_min_fills.max(2) {
-            let (mean, se) = mean_and_se(&d, shared.values());
+        if let Some((mean, se)) = *first {
+            // the other vehicles' effects' errors (each vehicle's own comparison's standard
+            // error as that of its effect), weighed by their share of the levels compared with
+            let se = (se * se
+                + effects_variance(share_of, |v| compared.get(v)?.first.map(|f| f.1)))
+            .sqrt();
             let dof = n as f64 - 1.0;
             let tstat = if se > 0.0 { mean / se } else { 0.0 };
             let p_bias = t_two_sided_p(tstat, dof);
@@ -354,6 +437,26 @@ mod tests {
         let two_tanks = [(5_000.0, 2.5e7, 1e-4), (5_000.0, 2.5e7, 1e-4)];
         let (_, se) = mean_and_se(&d, two_tanks.iter());
         assert!((se - 0.01).abs() < 1e-12, "{se}");
+    }
+
+    /// A vehicle compared at tank 0 with weight 3 (its level: vehicles 1 and 2, weight 2 each) and
+    /// at tank 1 with weight 1 (its level: vehicle 1 alone): by hand, vehicle 1's share is
+    /// 3/4 × 1/2 + 1/4 × 1 = 0.625 and vehicle 2's 3/4 × 1/2 = 0.375; with their effects' standard
+    /// errors 0.4 % and 0.2 % the mean takes (0.625 × 0.004)² + (0.375 × 0.002)² = 6.8125e-6.
+    /// The vehicle's own weight in a level (tank 1) is left out.
+    #[test]
+    fn a_level_carries_the_other_vehicles_effects_errors() {
+        let weight_at: BTreeMap<(usize, usize), f64> =
+            [((0, 1), 2.0), ((0, 2), 2.0), ((1, 0), 5.0), ((1, 1), 4.0)].into();
+        let shares = level_shares(0, [(0, 3.0), (1, 1.0)].into_iter(), &weight_at);
+        assert_eq!(shares.len(), 2, "{shares:?}");
+        assert!((shares[&1] - 0.625).abs() < 1e-15, "{shares:?}");
+        assert!((shares[&2] - 0.375).abs() < 1e-15, "{shares:?}");
+        let se = |v: usize| [None, Some(0.004), Some(0.002)][v];
+        let var = effects_variance(&shares, se);
+        assert!((var - 6.8125e-6).abs() < 1e-18, "{var}");
+        // a vehicle with no standard error of its own adds nothing
+        assert!((effects_variance(&shares, |v| (v == 1).then_some(0.004)) - 6.25e-6).abs() < 1e-18);
     }
 
     /// Binomial upper tail: P(X ≥ 2) for n = 3, p = 0.5 is 4/8 = 0.5; P(X ≥ 3) = 1/8 (exact by
