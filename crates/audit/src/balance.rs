@@ -106,6 +106,8 @@ pub(crate) fn unjudged(d: &DeliveryInput, tank: &str, opts: &AuditOptions) -> Ba
         sigma_meter_kg: 0.0,
         coverage_factor: opts.coverage_factor,
         limit_kg: 0.0,
+        excess_coverage_factor: opts.coverage_factor,
+        excess_limit_kg: 0.0,
         inconclusive_limit_percent: 100.0 * opts.inconclusive_fraction,
         ratio: f64::NAN,
         usage_kg_per_day: 0.0,
@@ -137,7 +139,6 @@ pub(crate) fn balance(
     model: &UseModel,
 ) -> Balance {
     let opts = ctx.opts;
-    let k = opts.coverage_factor;
     let window_h = opts.bracket_window_s / 3600.0;
     let mut out = unjudged(d, &ctx.input.name, opts);
     let eb = b.and_then(|i| evals.get(i).copied().flatten().map(|e| (i, e)));
@@ -211,9 +212,16 @@ pub(crate) fn balance(
     } else {
         0.0
     };
-    out.limit_kg = (k * out.sigma_kg).max(opts.materiality_fraction * d.billed_kg.abs());
+    set_limits(&mut out, opts);
     set_verdict(&mut out, opts);
     out
+}
+
+/// The limits a residual must pass to be short and to be excess, at the balance's coverage factors.
+fn set_limits(b: &mut Balance, opts: &AuditOptions) {
+    let materiality = opts.materiality_fraction * b.billed_kg.abs();
+    b.limit_kg = (b.coverage_factor * b.sigma_kg).max(materiality);
+    b.excess_limit_kg = (b.excess_coverage_factor * b.sigma_kg).max(materiality);
 }
 
 /// Half the loss a found period of loss beyond use puts between a fill's readings is its standard
@@ -265,8 +273,7 @@ pub(crate) fn total_sigma(b: &mut Balance) {
 /// After a part of the budget changed: the total, the limit and the verdict again.
 pub(crate) fn rejudge(b: &mut Balance, opts: &AuditOptions) {
     total_sigma(b);
-    b.limit_kg =
-        (b.coverage_factor * b.sigma_kg).max(opts.materiality_fraction * b.billed_kg.abs());
+    set_limits(b, opts);
     set_verdict(b, opts);
 }
 
@@ -301,6 +308,7 @@ fn with_vehicle_sentence(
 /// Decide the verdict and write the explanation (also used when a drift note is added).
 pub(crate) fn set_verdict(b: &mut Balance, opts: &AuditOptions) {
     let k = b.coverage_factor;
+    let kx = b.excess_coverage_factor;
     // whether the balance can judge the fill at all does not depend on its vehicle's record
     let base_k = opts.coverage_factor.min(k);
     let bracket = match (b.before_hours, b.after_hours) {
@@ -362,14 +370,14 @@ pub(crate) fn set_verdict(b: &mut Balance, opts: &AuditOptions) {
                 100.0 * opts.materiality_fraction
             ),
         )
-    } else if -b.residual_kg > b.limit_kg {
+    } else if -b.residual_kg > b.excess_limit_kg {
         (
             Verdict::Excess,
             format!(
-                "Excess: {numbers}, so {} kg ({:.1} % of the ticket) more arrived than was billed, beyond the limit of {} kg (k = {k} times the standard uncertainty {} kg, at least {:.1} % of the ticket).",
+                "Excess: {numbers}, so {} kg ({:.1} % of the ticket) more arrived than was billed, beyond the limit of {} kg (k = {kx} times the standard uncertainty {} kg, at least {:.1} % of the ticket).",
                 fmt_kg(-b.residual_kg),
                 -b.residual_percent,
-                fmt_kg(b.limit_kg),
+                fmt_kg(b.excess_limit_kg),
                 fmt_kg(b.sigma_kg),
                 100.0 * opts.materiality_fraction
             ),
@@ -386,13 +394,19 @@ pub(crate) fn set_verdict(b: &mut Balance, opts: &AuditOptions) {
             ),
         )
     } else {
+        // the limit on the residual's side
+        let (limit, k) = if b.residual_kg < 0.0 {
+            (b.excess_limit_kg, kx)
+        } else {
+            (b.limit_kg, k)
+        };
         (
             Verdict::Consistent,
             format!(
                 "Consistent: {numbers}, leaving {} kg ({:.1} % of the ticket), within the limit of {} kg (k = {k} times the standard uncertainty {} kg, at least {:.1} % of the ticket).",
                 fmt_kg(b.residual_kg),
                 b.residual_percent,
-                fmt_kg(b.limit_kg),
+                fmt_kg(limit),
                 fmt_kg(b.sigma_kg),
                 100.0 * opts.materiality_fraction
             ),
@@ -415,6 +429,11 @@ pub(crate) fn set_verdict(b: &mut Balance, opts: &AuditOptions) {
     {
         b.explanation.push_str(&format!(
             " Its vehicle's fills as a whole show no bias, so each of them is judged at the wider k = {k}."
+        ));
+    }
+    if kx > k && b.residual_kg < 0.0 && b.verdict != Verdict::Inconclusive {
+        b.explanation.push_str(&format!(
+            " Its vehicle's fills as a whole show it short, which makes an over-delivery no likelier, so one is judged at the wider k = {kx}."
         ));
     }
     let followed = if b.gauge_scale.is_some() {

@@ -84,8 +84,15 @@ pub struct Balance {
     pub sigma_meter_kg: f64,
     /// Coverage factor k.
     pub coverage_factor: f64,
-    /// The limit a residual must pass to be short or excess: max(k sigma, materiality), kg.
+    /// The limit a residual must pass to be short: max(k sigma, materiality), kg (and to be excess,
+    /// unless `excess_limit_kg` differs).
     pub limit_kg: f64,
+    /// Coverage factor for an over-delivery: k, or the wider cleared factor for a vehicle found short
+    /// (its record makes a short delivery likelier, not an over-delivery).
+    pub excess_coverage_factor: f64,
+    /// The limit a negative residual must pass to be excess: max(k sigma, materiality) with
+    /// `excess_coverage_factor`, kg.
+    pub excess_limit_kg: f64,
     /// k sigma as a percentage of billed, beyond which an unflagged balance is inconclusive.
     pub inconclusive_limit_percent: f64,
     /// (gained + drawn) / billed.

@@ -385,6 +385,9 @@ pub(crate) fn test(
 /// The fills of every vehicle the test cleared (status ok) judged at the wider coverage factor
 /// (see [`AuditOptions::cleared_coverage_factor`]); the vehicles' counts of verdicts and of short
 /// fills then follow the fills (the short-count test was run on the counts at the base factor).
+/// A vehicle found short keeps the base factor for a short delivery, but its record makes an
+/// over-delivery no likelier, so its fills are judged excess at the wider factor, as a cleared
+/// vehicle's are; its counts follow the fills that change.
 pub(crate) fn judge_cleared<'a>(
     balances: impl Iterator<Item = &'a mut Balance>,
     vehicles: &mut [VehicleFinding],
@@ -394,25 +397,49 @@ pub(crate) fn judge_cleared<'a>(
     if k.is_nan() || k <= opts.coverage_factor {
         return;
     }
-    let cleared: BTreeMap<&str, usize> = vehicles
+    // (index, cleared: true; found short: false)
+    let judged: BTreeMap<&str, (usize, bool)> = vehicles
         .iter()
         .enumerate()
-        .filter(|(_, v)| v.status == VehicleStatus::Ok)
-        .map(|(i, v)| (v.vehicle.as_str(), i))
+        .filter_map(|(i, v)| match v.status {
+            VehicleStatus::Ok => Some((v.vehicle.as_str(), (i, true))),
+            VehicleStatus::Biased if v.bias_percent.is_some_and(|b| b < 0.0) => {
+                Some((v.vehicle.as_str(), (i, false)))
+            }
+            _ => None,
+        })
         .collect();
     let mut counts: BTreeMap<usize, BTreeMap<Verdict, usize>> = BTreeMap::new();
+    let mut moved: Vec<(usize, Verdict, Verdict)> = Vec::new();
     for b in balances {
-        let Some(&vi) = cleared.get(b.vehicle.as_str()) else {
+        let Some(&(vi, cleared)) = judged.get(b.vehicle.as_str()) else {
             continue;
         };
-        b.coverage_factor = k;
+        let was = b.verdict;
+        if cleared {
+            b.coverage_factor = k;
+        }
+        b.excess_coverage_factor = k;
         rejudge(b, opts);
-        *counts.entry(vi).or_default().entry(b.verdict).or_default() += 1;
+        if cleared {
+            *counts.entry(vi).or_default().entry(b.verdict).or_default() += 1;
+        } else if b.verdict != was {
+            moved.push((vi, was, b.verdict));
+        }
     }
     for (vi, c) in counts {
         if let Some(v) = vehicles.get_mut(vi) {
             v.short_fills = c.get(&Verdict::Short).copied().unwrap_or(0);
             v.verdicts = c;
+        }
+    }
+    for (vi, was, now) in moved {
+        if let Some(v) = vehicles.get_mut(vi) {
+            if let Some(n) = v.verdicts.get_mut(&was) {
+                *n = n.saturating_sub(1);
+            }
+            *v.verdicts.entry(now).or_default() += 1;
+            v.verdicts.retain(|_, n| *n > 0);
         }
     }
 }
@@ -635,6 +662,58 @@ mod tests {
         let mut one = [balance("OK", 230.0, 100.0)];
         judge_cleared(one.iter_mut(), &mut vehicles, &same);
         assert_eq!(one[0].verdict, Verdict::Short);
+    }
+
+    /// A vehicle found short (bias −1.5 %) keeps k = 2 for a short delivery but is judged excess at
+    /// k = 2.5, as a cleared vehicle is: with σ = 100 kg, −230 kg (2.3 σ more arrived) is excess at
+    /// k = 2 and consistent within the excess limit of 250 kg; +230 kg stays short (limit 200 kg);
+    /// −300 kg stays excess. Its counts move with the fill that changed. A vehicle found biased the
+    /// other way (+1 %) keeps k = 2 on both sides (the limits worked by hand).
+    #[test]
+    fn a_vehicle_found_short_is_judged_excess_at_the_wider_factor() {
+        let opts = AuditOptions::default();
+        let mut fills = [
+            balance("SHORT", -230.0, 100.0),
+            balance("SHORT", 230.0, 100.0),
+            balance("SHORT", -300.0, 100.0),
+            balance("OVER", -230.0, 100.0),
+        ];
+        let mut vehicles = vec![
+            finding("SHORT", VehicleStatus::Biased),
+            finding("OVER", VehicleStatus::Biased),
+        ];
+        vehicles[0].bias_percent = Some(-1.5);
+        vehicles[0].verdicts = [(Verdict::Excess, 2), (Verdict::Short, 1)].into();
+        vehicles[1].bias_percent = Some(1.0);
+        judge_cleared(fills.iter_mut(), &mut vehicles, &opts);
+        let after: Vec<Verdict> = fills.iter().map(|b| b.verdict).collect();
+        assert_eq!(
+            after,
+            [
+                Verdict::Consistent,
+                Verdict::Short,
+                Verdict::Excess,
+                Verdict::Excess
+            ]
+        );
+        assert!((fills[0].excess_limit_kg - 250.0).abs() < 1e-9);
+        assert!((fills[0].limit_kg - 200.0).abs() < 1e-9);
+        assert!((fills[3].excess_limit_kg - 200.0).abs() < 1e-9);
+        assert!(
+            fills[0]
+                .explanation
+                .contains("within the limit of 250 kg (k = 2.5")
+                && fills[0].explanation.contains("over-delivery"),
+            "{}",
+            fills[0].explanation
+        );
+        let want: BTreeMap<Verdict, usize> = [
+            (Verdict::Consistent, 1),
+            (Verdict::Excess, 1),
+            (Verdict::Short, 1),
+        ]
+        .into();
+        assert_eq!(vehicles[0].verdicts, want);
     }
 
     /// 1 − Φ(2) = 0.0227501 (Abramowitz and Stegun, table 26.1).

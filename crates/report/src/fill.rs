@@ -147,15 +147,36 @@ fn balance_sections(
             "Coverage factor k",
             Cell::n("coverage_factor", Figure::Factor, b.coverage_factor),
         ),
-        (
+    ]);
+    if (b.excess_limit_kg - b.limit_kg).abs() > 1e-9 {
+        rows.extend([
+            (
+                "Limit to pass for short, kg",
+                Cell::n("limit_kg", Figure::Mass, b.limit_kg),
+            ),
+            (
+                "Coverage factor k for an over-delivery (its vehicle found short)",
+                Cell::n(
+                    "excess_coverage_factor",
+                    Figure::Factor,
+                    b.excess_coverage_factor,
+                ),
+            ),
+            (
+                "Limit to pass for excess, kg",
+                Cell::n("excess_limit_kg", Figure::Mass, b.excess_limit_kg),
+            ),
+        ]);
+    } else {
+        rows.push((
             "Limit to pass for short or excess, kg",
             Cell::n("limit_kg", Figure::Mass, b.limit_kg),
-        ),
-        (
-            "Use rate of the tank's use model, kg/day",
-            Cell::n("usage_kg_per_day", Figure::MassRate, b.usage_kg_per_day),
-        ),
-    ]);
+        ));
+    }
+    rows.push((
+        "Use rate of the tank's use model, kg/day",
+        Cell::n("usage_kg_per_day", Figure::MassRate, b.usage_kg_per_day),
+    ));
     if let Some(e) = b.with_vehicle {
         rows.extend([
             (
@@ -194,6 +215,7 @@ fn balance_sections(
             residual: residual_shown,
             k_sigma: b.coverage_factor * b.sigma_kg,
             limit: b.limit_kg,
+            excess_limit: b.excess_limit_kg,
             k: b.coverage_factor,
         }),
         "Top: billed against gained and drawn. Bottom: the residual (dot) with k standard uncertainties (whiskers); inside the shaded limit a fill cannot be short or excess.",

@@ -137,8 +137,10 @@ pub struct Chain {
     pub residual: f64,
     /// k σ, kg.
     pub k_sigma: f64,
-    /// Limit a residual must pass, kg.
+    /// Limit a residual must pass to be short, kg.
     pub limit: f64,
+    /// Limit a negative residual must pass to be excess, kg.
+    pub excess_limit: f64,
     /// Coverage factor.
     pub k: f64,
 }
@@ -185,15 +187,18 @@ pub fn chain(c: &Chain) -> String {
     );
     text(&mut s, right, 8.0, "end", MUTED, "kg");
     // bottom panel: residual
-    let span = (c.residual.abs() + c.k_sigma).max(c.limit) * 1.25;
+    let span = (c.residual.abs() + c.k_sigma)
+        .max(c.limit)
+        .max(c.excess_limit)
+        * 1.25;
     let ar = Axis::new(-span, span, left, right);
     let (y0, y1) = (128.0, 186.0);
     x_grid(&mut s, &ar, y0, y1, "");
     rect(
         &mut s,
-        ar.at(-c.limit),
+        ar.at(-c.excess_limit),
         y0,
-        ar.at(c.limit) - ar.at(-c.limit),
+        ar.at(c.limit) - ar.at(-c.excess_limit),
         y1 - y0,
         BAND,
     );
@@ -224,11 +229,20 @@ pub fn chain(c: &Chain) -> String {
         y0 - 6.0,
         "end",
         MUTED,
-        &format!(
-            "kg; whiskers ±{} σ; shaded: ±limit {} kg",
-            short(c.k),
-            Figure::Mass.text(c.limit)
-        ),
+        &if (c.excess_limit - c.limit).abs() > 1e-9 {
+            format!(
+                "kg; whiskers ±{} σ; shaded: limit {} kg excess, {} kg short",
+                short(c.k),
+                Figure::Mass.text(c.excess_limit),
+                Figure::Mass.text(c.limit)
+            )
+        } else {
+            format!(
+                "kg; whiskers ±{} σ; shaded: ±limit {} kg",
+                short(c.k),
+                Figure::Mass.text(c.limit)
+            )
+        },
     );
     s.push_str("</svg>");
     s

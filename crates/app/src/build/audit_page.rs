@@ -61,6 +61,7 @@ fn balance_row(
         residual_percent: b.residual_percent,
         sigma_kg: b.sigma_kg,
         limit_kg: b.limit_kg,
+        excess_limit_kg: b.excess_limit_kg,
         materiality_kg: materiality * b.billed_kg.abs(),
         budget: vec![
             BudgetPart {
@@ -455,6 +456,7 @@ mod tests {
             residual_percent: 2.0,
             sigma_kg: 5.0,
             limit_kg: 10.0,
+            excess_limit_kg: 10.0,
             materiality_kg: 10.0,
             budget: Vec::new(),
             before: None,

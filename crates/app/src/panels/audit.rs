@@ -273,6 +273,7 @@ fn residual_chart(ui: &mut Ui, r: &BalanceRow, k: f64, mass: impl Fn(f64) -> f64
     let span = [
         r.residual_kg.abs() + k * r.sigma_kg,
         r.limit_kg,
+        r.excess_limit_kg,
         r.materiality_kg,
     ]
     .into_iter()
@@ -282,7 +283,7 @@ fn residual_chart(ui: &mut Ui, r: &BalanceRow, k: f64, mass: impl Fn(f64) -> f64
     let mid = rect.center().y;
     p.rect_filled(
         egui::Rect::from_min_max(
-            egui::pos2(x(-r.limit_kg), mid - 14.0),
+            egui::pos2(x(-r.excess_limit_kg), mid - 14.0),
             egui::pos2(x(r.limit_kg), mid + 14.0),
         ),
         2.0,
@@ -323,11 +324,19 @@ fn residual_chart(ui: &mut Ui, r: &BalanceRow, k: f64, mass: impl Fn(f64) -> f64
         font,
         style::MUTED,
     );
+    let limit = if (r.excess_limit_kg - r.limit_kg).abs() > 1e-9 {
+        format!(
+            "limit {} {unit} for less arrived, {} {unit} for more",
+            fmt::fig(Figure::Mass, mass(r.limit_kg)),
+            fmt::fig(Figure::Mass, mass(r.excess_limit_kg)),
+        )
+    } else {
+        format!("limit ±{} {unit}", fmt::fig(Figure::Mass, mass(r.limit_kg)))
+    };
     resp.on_hover_text(format!(
-        "residual {} {unit} ± {} (k = {k:.0}); limit ±{} {unit} (shaded); materiality ±{} {unit} (purple)",
+        "residual {} {unit} ± {} (k = {k}); {limit} (shaded); materiality ±{} {unit} (purple)",
         fmt::fig(Figure::Mass, mass(r.residual_kg)),
         fmt::fig(Figure::Mass, mass(k * r.sigma_kg)),
-        fmt::fig(Figure::Mass, mass(r.limit_kg)),
         fmt::fig(Figure::Mass, mass(r.materiality_kg)),
     ));
 }

@@ -183,8 +183,10 @@ pub struct BalanceRow {
     pub residual_percent: f64,
     /// Its standard uncertainty, kg.
     pub sigma_kg: f64,
-    /// The limit a residual must pass to be short or excess, kg.
+    /// The limit a residual must pass to be short, kg.
     pub limit_kg: f64,
+    /// The limit a negative residual must pass to be excess, kg.
+    pub excess_limit_kg: f64,
     /// The materiality limit alone, kg.
     pub materiality_kg: f64,
     /// The uncertainty budget.
