@@ -2,7 +2,8 @@
 """Generate an independent test fleet, import it into cryoledger, run its audit and score the result.
 
 Usage:
-  python tools/indep/check.py --bin target/debug/cryoledger [--seed N] [--profile strict|floor|current]
+  python tools/indep/check.py --bin target/debug/cryoledger [--seed N] [--profile strict|floor|current|fresh]
+                              [--gate PROFILE]
                               [--workdir DIR] [--json-out FILE] [fleet options, see fleet.py]
 
 Profiles:
@@ -16,10 +17,14 @@ Profiles:
            findings (same fleet settings as strict).
   current  >= 90 % of the fills of a vehicle 2.5 % short on every fill found, <= 3 % of honest fills
            flagged, every planted fault reported, no healthy gauge or honest vehicle flagged.
+  fresh    the lines met on every fleet measured (107 on 2026-12-05): the always-short vehicle
+           biased, <= 6 % of fills inconclusive, the unlogged fill found, at most two other
+           findings (strict's fleet settings); CI gates on it at a fresh seed each run (--gate).
 
 Honest fills on the two tanks whose gauges carry a planted fault are scored apart (finding the gauge
 is that fault's test); every other honest fill counts. Exit status: 0 when every line of the chosen
-profile passes, 1 when one fails, 2 when the fleet could not be generated, imported or audited.
+profile passes (of the --gate profile, when given), 1 when one fails, 2 when the fleet could not be
+generated, imported or audited.
 """
 
 from __future__ import annotations
@@ -282,6 +287,16 @@ def score(truth: dict, audit: dict, profile: str) -> dict:
         add("unlogged fill found", fd["unlogged_matched"] > 0, f"{fd['unlogged_matched']} finding(s) at {fd['unlogged_tank']}")
         add("leak found", fd["leak_matched"] > 0, f"{fd['leak_matched']} finding(s) at {fd['leak_tank']}")
         add("at most 2 other findings", fd["other"] <= 2, str(fd["other"]))
+    elif profile == "fresh":
+        # The lines the audit has met on every independent fleet measured (107 on 2026-12-05):
+        # CI gates on them at a fresh seed each run, beside the fixed seed's strict and floor gates.
+        sa = {k: x for k, x in vp.items() if per_vehicle.get(k, {}).get("role") == "short_all"}
+        add("the always-short vehicle biased", bool(sa) and all(x["biased"] for x in sa.values()),
+            ", ".join(f"{k}: {x['status']}" for k, x in sa.items()) or "none planted")
+        add("fills inconclusive <= 6 %", le(a["inconclusive"], a["fills"], 6), fmt_pct(a["inconclusive"], a["fills"]))
+        fd = fig["findings"]
+        add("unlogged fill found", fd["unlogged_matched"] > 0, f"{fd['unlogged_matched']} finding(s) at {fd['unlogged_tank']}")
+        add("at most 2 other findings", fd["other"] <= 2, str(fd["other"]))
     elif profile == "floor":
         # What the audit has met on every independent fleet measured so far (twelve seeds); CI gates on
         # it at a fixed seed so a regression cannot land while the strict figures are still out of reach.
@@ -374,7 +389,10 @@ def print_report(fig: dict, truth: dict, profile: str) -> None:
 def main(argv=None) -> int:
     ap = argparse.ArgumentParser(description="Score cryoledger's audit on an independent fleet.")
     ap.add_argument("--bin", required=True, help="the cryoledger binary")
-    ap.add_argument("--profile", choices=("strict", "floor", "current"), default="strict")
+    ap.add_argument("--profile", choices=("strict", "floor", "current", "fresh"), default="strict")
+    ap.add_argument("--gate", choices=("strict", "floor", "current", "fresh"), default=None,
+                    help="judge the same fleet on this profile too and take the exit status from it "
+                         "(the chosen --profile is then printed, not gating)")
     ap.add_argument("--workdir", default=None,
                     help="folder for the fleet, database and audit (kept); default a temporary folder, "
                          "removed at the end unless --keep")
@@ -441,6 +459,15 @@ def main(argv=None) -> int:
     print(f"workdir {work}; generate {gen['seconds']:.1f} s, import {t_aud - t_imp:.1f} s, "
           f"audit {t_done - t_aud:.1f} s")
     print_report(fig, truth, a.profile)
+    passed = fig["pass"]
+    if a.gate:
+        gate = score(truth, audit, a.gate)
+        fig["gate"] = {"profile": a.gate, "checks": gate["checks"], "pass": gate["pass"]}
+        print(f"gate: profile {a.gate} (the exit status)")
+        for c in gate["checks"]:
+            print(f"  {'PASS' if c['pass'] else 'FAIL'}  {c['check']:52s} {c['value']}")
+        print(f"{'PASS' if gate['pass'] else 'FAIL'} (gate {a.gate})")
+        passed = gate["pass"]
     o = fig["own_balance_only"]
     print(f"judged on their own balances only (audit --own-balance-only): short fills found "
           f"{fmt_pct(o['short_found'], o['short_total'])}, honest fills flagged "
@@ -451,7 +478,7 @@ def main(argv=None) -> int:
     if a.workdir is None and not a.keep:
         shutil.rmtree(work, ignore_errors=True)
     print(f"seed {cfg.seed}")
-    return 0 if fig["pass"] else 1
+    return 0 if passed else 1
 
 
 if __name__ == "__main__":
