@@ -649,7 +649,7 @@ fn fleet_pass(
         };
         crate::with_vehicle::apply(tanks, &mut vehicles, &set_apart, opts);
     }
-    crate::vehicles::judge_cleared(
+    crate::vehicles::judge_by_record(
         tanks.iter_mut().flat_map(|t| t.balances.iter_mut()),
         &mut vehicles,
         opts,

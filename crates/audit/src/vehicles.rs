@@ -305,16 +305,17 @@ pub(crate) fn test(
             share_of,
         });
     }
+    // each vehicle's own comparison's standard error, taken as that of its effect
+    let se_first: Vec<Option<f64>> = compared.iter().map(|c| c.first.map(|f| f.1)).collect();
     let mut vehicles: Vec<VehicleFinding> = Vec::new();
     let mut vp: Vec<(usize, f64)> = Vec::new();
-    for (vi, ((name, carrier), c)) in names.iter().zip(&compared).enumerate() {
+    for (vi, ((name, carrier), c)) in names.iter().zip(compared).enumerate() {
         let Compared {
             d,
             adjusted,
             first,
             share_of,
         } = c;
-        let adjusted = adjusted.clone();
         let verdicts = std::mem::take(&mut verdict_counts[vi]);
         let (short, judged_n) = judged(&verdicts);
         let mut f = VehicleFinding {
@@ -339,11 +340,11 @@ pub(crate) fn test(
             adjusted,
         };
         let n = d.len();
-        if let Some((mean, se)) = *first {
-            // the other vehicles' effects' errors (each vehicle's own comparison's standard
-            // error as that of its effect), weighed by their share of the levels compared with
+        if let Some((mean, se)) = first {
+            // the other vehicles' effects' errors, weighed by their share of the levels compared
+            // with
             let se = (se * se
-                + effects_variance(share_of, |v| compared.get(v)?.first.map(|f| f.1)))
+                + effects_variance(&share_of, |v| se_first.get(v).copied().flatten()))
             .sqrt();
             let dof = n as f64 - 1.0;
             let tstat = if se > 0.0 { mean / se } else { 0.0 };
@@ -388,7 +389,7 @@ pub(crate) fn test(
 /// A vehicle found short keeps the base factor for a short delivery, but its record makes an
 /// over-delivery no likelier, so its fills are judged excess at the wider factor, as a cleared
 /// vehicle's are; its counts follow the fills that change.
-pub(crate) fn judge_cleared<'a>(
+pub(crate) fn judge_by_record<'a>(
     balances: impl Iterator<Item = &'a mut Balance>,
     vehicles: &mut [VehicleFinding],
     opts: &AuditOptions,
@@ -632,7 +633,7 @@ mod tests {
             finding("BIASED", VehicleStatus::Biased),
             finding("FEW", VehicleStatus::NotEnoughData),
         ];
-        judge_cleared(fills.iter_mut(), &mut vehicles, &opts);
+        judge_by_record(fills.iter_mut(), &mut vehicles, &opts);
         let after: Vec<Verdict> = fills.iter().map(|b| b.verdict).collect();
         assert_eq!(
             after,
@@ -660,7 +661,7 @@ mod tests {
             ..AuditOptions::default()
         };
         let mut one = [balance("OK", 230.0, 100.0)];
-        judge_cleared(one.iter_mut(), &mut vehicles, &same);
+        judge_by_record(one.iter_mut(), &mut vehicles, &same);
         assert_eq!(one[0].verdict, Verdict::Short);
     }
 
@@ -685,7 +686,7 @@ mod tests {
         vehicles[0].bias_percent = Some(-1.5);
         vehicles[0].verdicts = [(Verdict::Excess, 2), (Verdict::Short, 1)].into();
         vehicles[1].bias_percent = Some(1.0);
-        judge_cleared(fills.iter_mut(), &mut vehicles, &opts);
+        judge_by_record(fills.iter_mut(), &mut vehicles, &opts);
         let after: Vec<Verdict> = fills.iter().map(|b| b.verdict).collect();
         assert_eq!(
             after,
