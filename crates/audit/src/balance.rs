@@ -127,6 +127,7 @@ pub(crate) fn unjudged(d: &DeliveryInput, tank: &str, opts: &AuditOptions) -> Ba
         gauge_scale: None,
         sigma_gauge_scale_kg: 0.0,
         with_vehicle: None,
+        with_mixture: None,
         explanation: String::new(),
     }
 }
@@ -420,6 +421,24 @@ pub(crate) fn set_verdict(b: &mut Balance, opts: &AuditOptions) {
     {
         b.verdict = Verdict::Short;
         b.explanation = with_vehicle_sentence(b, &e, opts);
+    }
+    if let Some(e) = b.with_mixture
+        && matches!(b.verdict, Verdict::Consistent | Verdict::Inconclusive)
+        && e.shows_short(opts.materiality_fraction)
+    {
+        b.verdict = Verdict::Short;
+        b.explanation = format!(
+            "Short on the balance of probabilities, with its vehicle's record: billed {} kg; this fill's own balance puts it {:.2} % ± {:.2} % short against its tank's level, too little to judge alone, but vehicle {}'s fills are of two kinds, honest ones and ones about {:.2} % short ({:.0} % of them), and against those two this fill is short with probability {:.2}, more likely than not, by about {} kg, over the {:.1} % materiality.",
+            fmt_kg(b.billed_kg),
+            e.own_shortfall_percent,
+            e.own_u_percent,
+            b.vehicle,
+            e.shortfall_percent,
+            100.0 * e.share,
+            e.short_probability,
+            fmt_kg(e.shortfall_percent / 100.0 * b.billed_kg),
+            100.0 * opts.materiality_fraction
+        );
     }
     if k > opts.coverage_factor
         && matches!(

@@ -648,6 +648,15 @@ fn fleet_pass(
                 .is_some_and(|&i| apart.get(i).copied().unwrap_or(false))
         };
         crate::with_vehicle::apply(tanks, &mut vehicles, &set_apart, opts);
+        // a vehicle set apart as short on only some fills: each fill by the mixture of its
+        // deliveries
+        let mixture_of = |name: &str| {
+            vehicle_index
+                .get(name)
+                .filter(|&&i| apart.get(i).copied().unwrap_or(false))
+                .and_then(|&i| mixtures.get(i).copied().flatten())
+        };
+        crate::with_vehicle::apply_mixture(tanks, &mut vehicles, &mixture_of, opts);
     }
     crate::vehicles::judge_by_record(
         tanks.iter_mut().flat_map(|t| t.balances.iter_mut()),

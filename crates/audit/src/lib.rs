@@ -101,7 +101,7 @@ pub use records::{
 };
 pub use tank_audit::audit_tank;
 pub use thermal::{default_ner_percent_per_day, default_supply_pressure_pa, mix_liquids};
-pub use with_vehicle::VehicleEvidence;
+pub use with_vehicle::{MixtureEvidence, VehicleEvidence};
 
 /// One tank's inputs, SI.
 #[derive(Debug, Clone)]

@@ -131,6 +131,11 @@ pub struct Balance {
     /// fill short where the balance alone could not: what that rests on (see `with_vehicle`).
     /// The residual, sigma and limit above stay the balance's own.
     pub with_vehicle: Option<crate::with_vehicle::VehicleEvidence>,
+    /// When the fill's vehicle was found short on only some of its fills (its deliveries a mixture
+    /// of honest and short ones) and this fill's balance makes it more likely short than not: what
+    /// that rests on (see `with_vehicle`). The residual, sigma and limit above stay the balance's
+    /// own.
+    pub with_mixture: Option<crate::with_vehicle::MixtureEvidence>,
     /// One sentence with the numbers, to hand to a carrier.
     pub explanation: String,
 }

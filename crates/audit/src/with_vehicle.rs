@@ -20,6 +20,11 @@
 //! - the prior of this fill is the vehicle's mean of its *other* fills (weights 1/(u_j² + τ²)), with
 //!   variance τ² + that mean's own variance; the fill's own point, when it has one, updates it.
 //!
+//! A vehicle set apart as short on only some fills is not judged that way: its shortfalls are one
+//! of two values, honest or short, not a normal spread. Its fills are judged by the mixture of its
+//! deliveries instead (see [`apply_mixture`]): a fill whose balance alone could not show it short is
+//! short when it was more likely a short delivery than an honest one, by a material shortfall.
+//!
 //! The combined estimate is used only to find a short the balance alone could not show, and only
 //! for a vehicle the fleet test found biased: it never clears a fill its own balance found short or
 //! in excess, and it never touches an honest vehicle's fills (whose one-off short must stand on its
@@ -70,6 +75,31 @@ impl VehicleEvidence {
     pub fn shows_short(&self, k: f64, materiality_fraction: f64) -> bool {
         self.shortfall_percent > k * self.shortfall_u_percent
             && self.shortfall_percent > 100.0 * materiality_fraction
+    }
+}
+
+/// What a fill's verdict drew from the mixture of its vehicle's deliveries (a vehicle short on
+/// only some fills, its deliveries a mixture of honest and short ones).
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct MixtureEvidence {
+    /// The probability that this fill was one of the short deliveries, given its balance.
+    pub short_probability: f64,
+    /// How far the vehicle's short deliveries fall short of the ticket, % (its honest deliveries'
+    /// effect less the short ones' shortfall, negated).
+    pub shortfall_percent: f64,
+    /// The share of the vehicle's deliveries that are short.
+    pub share: f64,
+    /// This fill's own shortfall against its tank's level, % (positive: short).
+    pub own_shortfall_percent: f64,
+    /// Its standard uncertainty, %.
+    pub own_u_percent: f64,
+}
+
+impl MixtureEvidence {
+    /// Whether it shows the fill short: more likely short than not (the balance of probabilities),
+    /// by a shortfall beyond the materiality threshold.
+    pub fn shows_short(&self, materiality_fraction: f64) -> bool {
+        self.short_probability > 0.5 && self.shortfall_percent > 100.0 * materiality_fraction
     }
 }
 
@@ -218,6 +248,73 @@ pub(crate) fn apply(
     }
 }
 
+/// The evidence of the mixture `m` of a vehicle's deliveries for one fill at `x` ± `u` (its ratio
+/// less its tank's level): the probability that it was a short delivery, with the short share as
+/// the prior, held at even odds at most (a share fitted high, the honest and short deliveries not
+/// well apart, must not make an honest fill's balance pass for short).
+fn mixture_evidence(m: crate::mixture::Mixture, x: f64, u: f64) -> MixtureEvidence {
+    let prior = crate::mixture::Mixture {
+        share: m.share.min(0.5),
+        ..m
+    };
+    MixtureEvidence {
+        short_probability: prior.short_probability(x, u),
+        shortfall_percent: 100.0 * (m.shortfall - m.honest),
+        share: m.share,
+        own_shortfall_percent: -100.0 * x,
+        own_u_percent: 100.0 * u,
+    }
+}
+
+/// Judge the fills of every vehicle found biased and set apart as short on only some fills, whose
+/// deliveries fit a mixture of honest and short ones (`mixture_of`), by the probability that each
+/// was a short one: a fill its own balance could not judge short becomes short when that is more
+/// likely than not and the short deliveries' shortfall is material (the posterior of a two-part
+/// mixture, McLachlan and Peel, "Finite Mixture Models", 2000, §1.4; the decision at one half is
+/// the Bayes rule for equal costs of the two errors). Only fills compared with their tank's level
+/// (the vehicle test's points) are judged so; the vehicle counts them with its fills found short
+/// with its other fills.
+pub(crate) fn apply_mixture(
+    tanks: &mut [TankAudit],
+    vehicles: &mut [VehicleFinding],
+    mixture_of: &dyn Fn(&str) -> Option<crate::mixture::Mixture>,
+    opts: &AuditOptions,
+) {
+    for v in vehicles
+        .iter_mut()
+        .filter(|v| v.status == VehicleStatus::Biased)
+    {
+        let Some(m) = mixture_of(&v.vehicle) else {
+            continue;
+        };
+        let points: HashMap<&str, (f64, f64)> = v
+            .adjusted
+            .iter()
+            .map(|a| (a.ticket.as_str(), (a.percent / 100.0, a.u_percent / 100.0)))
+            .collect();
+        let mut found = 0;
+        for b in tanks
+            .iter_mut()
+            .flat_map(|t| t.balances.iter_mut())
+            .filter(|b| b.vehicle == v.vehicle)
+        {
+            if !matches!(b.verdict, Verdict::Consistent | Verdict::Inconclusive) {
+                continue;
+            }
+            let Some(&(x, u)) = points.get(b.ticket.as_str()) else {
+                continue;
+            };
+            let e = mixture_evidence(m, x, u);
+            if e.shows_short(opts.materiality_fraction) {
+                b.with_mixture = Some(e);
+                set_verdict(b, opts);
+                found += usize::from(b.verdict == Verdict::Short);
+            }
+        }
+        v.short_with_vehicle += found;
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -232,6 +329,42 @@ mod tests {
         assert!((t - 3.0).abs() < 1e-12, "{t}");
         let t = between_variance(&[(0.0, 1.0), (3.0, 1.0), (6.0, 1.0)]);
         assert!((t - 5.25).abs() < 1e-12, "{t}");
+    }
+
+    /// A vehicle whose honest deliveries sit at its tank's level and whose short ones 3.5 % under
+    /// it, 40 % of them; a fill at u = 1 %. By hand (normal densities φ(1) = 0.241971,
+    /// φ(1.5) = 0.129518, φ(2) = 0.053991, φ(2.5) = 0.017528): at x = −2.5 % the fill is short
+    /// with probability 0.4 φ(1) / (0.4 φ(1) + 0.6 φ(2.5)) = 0.9020, shown short; at −1.5 %,
+    /// 0.4 φ(2) / (0.4 φ(2) + 0.6 φ(1.5)) = 0.2175, not. A share fitted at 0.8 is held at 0.5: at
+    /// −1.5 % φ(2) / (φ(2) + φ(1.5)) = 0.2942 (0.6251 with 0.8), not short; a shortfall under the
+    /// materiality never is.
+    #[test]
+    fn a_fill_judged_by_its_vehicle_s_mixture_by_hand() {
+        let m = crate::mixture::Mixture {
+            honest: 0.0,
+            shortfall: 0.035,
+            share: 0.4,
+        };
+        let e = mixture_evidence(m, -0.025, 0.01);
+        assert!((e.short_probability - 0.9020).abs() < 1e-4, "{e:?}");
+        assert!(
+            (e.shortfall_percent - 3.5).abs() < 1e-12
+                && (e.own_shortfall_percent - 2.5).abs() < 1e-12
+        );
+        assert!(e.shows_short(0.01));
+        let e = mixture_evidence(m, -0.015, 0.01);
+        assert!((e.short_probability - 0.2175).abs() < 1e-4, "{e:?}");
+        assert!(!e.shows_short(0.01));
+        let high = crate::mixture::Mixture { share: 0.8, ..m };
+        let e = mixture_evidence(high, -0.015, 0.01);
+        assert!((e.short_probability - 0.2942).abs() < 1e-4, "{e:?}");
+        assert!((e.share - 0.8).abs() < 1e-12);
+        assert!(!e.shows_short(0.01));
+        let small = crate::mixture::Mixture {
+            shortfall: 0.008,
+            ..m
+        };
+        assert!(!mixture_evidence(small, -0.02, 0.005).shows_short(0.01));
     }
 
     /// The normal-normal posterior worked by hand: prior mean 1.5 % with τ = 0 and five others at

@@ -175,7 +175,10 @@ fn scenario(short: f64) {
             let mine = || audited.fills.iter().filter(|b| b.vehicle == v.vehicle);
             let short = mine().filter(|b| b.verdict == Verdict::Short).count();
             let pooled = mine()
-                .filter(|b| b.verdict == Verdict::Short && b.with_vehicle.is_some())
+                .filter(|b| {
+                    b.verdict == Verdict::Short
+                        && (b.with_vehicle.is_some() || b.with_mixture.is_some())
+                })
                 .count();
             if pooled != v.short_with_vehicle || v.short_fills + v.short_with_vehicle != short {
                 failures.push(format!(

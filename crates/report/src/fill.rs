@@ -205,6 +205,26 @@ fn balance_sections(
             ),
         ]);
     }
+    if let Some(e) = b.with_mixture {
+        rows.extend([
+            (
+                "Short on the balance of probabilities: the vehicle's short deliveries, % short",
+                Cell::n(
+                    "mixture_shortfall_percent",
+                    Figure::Percent,
+                    e.shortfall_percent,
+                ),
+            ),
+            (
+                "Their share of its deliveries",
+                Cell::n("mixture_share", Figure::Ratio, e.share),
+            ),
+            (
+                "Probability this fill was one of them",
+                Cell::n("short_probability", Figure::Ratio, e.short_probability),
+            ),
+        ]);
+    }
     doc.key_values(&rows);
     let residual_shown = b.residual_kg;
     doc.figure(

@@ -96,16 +96,30 @@ fn balance_row(
                 )
             })
             .unwrap_or_else(|| "as the gauge reads (too few other fills to fit its scale)".into()),
-        with_vehicle: b.with_vehicle.map(|e| {
-            format!(
-                "short with the vehicle's other fills: {} other fills show its deliveries {:.2} % ± {:.2} % short; with this balance, this fill {:.2} % ± {:.2} % short",
-                e.fills,
-                e.vehicle_shortfall_percent,
-                e.vehicle_u_percent,
-                e.shortfall_percent,
-                e.shortfall_u_percent
-            )
-        }),
+        with_vehicle: b
+            .with_vehicle
+            .map(|e| {
+                format!(
+                    "short with the vehicle's other fills: {} other fills show its deliveries {:.2} % ± {:.2} % short; with this balance, this fill {:.2} % ± {:.2} % short",
+                    e.fills,
+                    e.vehicle_shortfall_percent,
+                    e.vehicle_u_percent,
+                    e.shortfall_percent,
+                    e.shortfall_u_percent
+                )
+            })
+            .or_else(|| {
+                b.with_mixture.map(|e| {
+                    format!(
+                        "short on the balance of probabilities: the vehicle's deliveries are honest or about {:.2} % short ({:.0} % of them); this fill, {:.2} % ± {:.2} % short by its balance, was a short one with probability {:.2}",
+                        e.shortfall_percent,
+                        100.0 * e.share,
+                        e.own_shortfall_percent,
+                        e.own_u_percent,
+                        e.short_probability
+                    )
+                })
+            }),
         explanation: b.explanation.clone(),
     }
 }
