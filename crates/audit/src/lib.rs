@@ -223,7 +223,10 @@ pub struct AuditOptions {
     /// at `coverage_factor`.
     pub cleared_coverage_factor: f64,
     /// Smallest residual, as a fraction of the billed quantity, that can make a fill short or excess
-    /// (0.01).
+    /// (0.01: the maximum permissible error of an accuracy class 1.0 measuring system, Directive
+    /// 2014/32/EU, Annex VII (MI-005), Table 2; a discrepancy a verified class 1.0 meter may show is
+    /// no finding. Cryogenic systems may be verified to a wider class; `legal_tolerance` is the
+    /// separate figure vehicles are compared with).
     pub materiality_fraction: f64,
     /// A balance whose k·sigma exceeds this fraction of the billed quantity, and is not beyond it, is
     /// inconclusive (0.05).
