@@ -74,7 +74,8 @@ pub struct VehicleFinding {
     /// (the count the short-count test is run on).
     pub short_fills: usize,
     /// Further fills judged short with the vehicle's other fills (a vehicle found biased; see
-    /// [`crate::VehicleEvidence`]).
+    /// [`crate::VehicleEvidence`], and [`crate::MixtureEvidence`] for one short on only some
+    /// fills, judged on the balance of probabilities).
     pub short_with_vehicle: usize,
     /// The share of short verdicts an honest vehicle would draw (the fleet's median vehicle, at
     /// least the one-sided tail of the coverage interval).

@@ -270,7 +270,7 @@ fn mixture_evidence(m: crate::mixture::Mixture, x: f64, u: f64) -> MixtureEviden
 /// deliveries fit a mixture of honest and short ones (`mixture_of`), by the probability that each
 /// was a short one: a fill its own balance could not judge short becomes short when that is more
 /// likely than not and the short deliveries' shortfall is material (the posterior of a two-part
-/// mixture, McLachlan and Peel, "Finite Mixture Models", 2000, §1.4; the decision at one half is
+/// mixture, McLachlan and Peel, "Finite Mixture Models", Wiley, 2000; the decision at one half is
 /// the Bayes rule for equal costs of the two errors). Only fills compared with their tank's level
 /// (the vehicle test's points) are judged so; the vehicle counts them with its fills found short
 /// with its other fills.

@@ -101,7 +101,7 @@ pub(crate) fn vehicle_section(
                     Cell::Plain(Figure::Count, v.short_fills as f64),
                 ),
                 (
-                    "Further fills judged short with the vehicle's other fills",
+                    "Further fills judged short with the vehicle's other fills (its mean, or the mixture of its honest and short deliveries)",
                     Cell::Plain(Figure::Count, v.short_with_vehicle as f64),
                 ),
                 (

@@ -62,7 +62,7 @@ pub(super) fn vehicles_ui(ui: &mut Ui, a: &AuditView, out: &mut Vec<Action>) {
                     if v.short_with_vehicle > 0 {
                         ui.label(format!("{} + {}", v.short_fills, v.short_with_vehicle))
                             .on_hover_text(
-                                "on their own balances + with the vehicle's other fills",
+                                "on their own balances + with the vehicle's other fills (its mean, or for one short on only some fills the balance of probabilities)",
                             );
                     } else {
                         ui.label(v.short_fills.to_string());
