@@ -306,6 +306,27 @@ fn with_vehicle_sentence(
     )
 }
 
+/// The sentence of a fill found short on the balance of probabilities with the mixture of its
+/// vehicle's deliveries.
+fn with_mixture_sentence(
+    b: &Balance,
+    e: &crate::with_vehicle::MixtureEvidence,
+    opts: &AuditOptions,
+) -> String {
+    format!(
+        "Short on the balance of probabilities, with its vehicle's record: billed {} kg; this fill's own balance puts it {:.2} % ± {:.2} % short against its tank's level, too little to judge alone, but vehicle {}'s fills are of two kinds, honest ones and ones about {:.2} % short ({:.0} % of them), and against those two this fill is short with probability {:.2}, more likely than not, by about {} kg, over the {:.1} % materiality.",
+        fmt_kg(b.billed_kg),
+        e.own_shortfall_percent,
+        e.own_u_percent,
+        b.vehicle,
+        e.shortfall_percent,
+        100.0 * e.share,
+        e.short_probability,
+        fmt_kg(e.shortfall_percent / 100.0 * b.billed_kg),
+        100.0 * opts.materiality_fraction
+    )
+}
+
 /// Decide the verdict and write the explanation (also used when a drift note is added).
 pub(crate) fn set_verdict(b: &mut Balance, opts: &AuditOptions) {
     let k = b.coverage_factor;
@@ -427,18 +448,7 @@ pub(crate) fn set_verdict(b: &mut Balance, opts: &AuditOptions) {
         && e.shows_short(opts.materiality_fraction)
     {
         b.verdict = Verdict::Short;
-        b.explanation = format!(
-            "Short on the balance of probabilities, with its vehicle's record: billed {} kg; this fill's own balance puts it {:.2} % ± {:.2} % short against its tank's level, too little to judge alone, but vehicle {}'s fills are of two kinds, honest ones and ones about {:.2} % short ({:.0} % of them), and against those two this fill is short with probability {:.2}, more likely than not, by about {} kg, over the {:.1} % materiality.",
-            fmt_kg(b.billed_kg),
-            e.own_shortfall_percent,
-            e.own_u_percent,
-            b.vehicle,
-            e.shortfall_percent,
-            100.0 * e.share,
-            e.short_probability,
-            fmt_kg(e.shortfall_percent / 100.0 * b.billed_kg),
-            100.0 * opts.materiality_fraction
-        );
+        b.explanation = with_mixture_sentence(b, &e, opts);
     }
     if k > opts.coverage_factor
         && matches!(

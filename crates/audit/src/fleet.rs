@@ -651,10 +651,8 @@ fn fleet_pass(
         // a vehicle set apart as short on only some fills: each fill by the mixture of its
         // deliveries
         let mixture_of = |name: &str| {
-            vehicle_index
-                .get(name)
-                .filter(|&&i| apart.get(i).copied().unwrap_or(false))
-                .and_then(|&i| mixtures.get(i).copied().flatten())
+            let &i = vehicle_index.get(name).filter(|_| set_apart(name))?;
+            mixtures.get(i).copied().flatten()
         };
         crate::with_vehicle::apply_mixture(tanks, &mut vehicles, &mixture_of, opts);
     }
