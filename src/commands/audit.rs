@@ -283,23 +283,40 @@ fn table(out: &mut impl Write, fleet: &FleetAudit) -> Result<()> {
     writeln!(out, "\nGauges")?;
     writeln!(
         out,
-        "{:<14} {:<16} {:>5} {:>14} {:>10} {:>10} {:>12}",
-        "tank", "status", "fills", "drift %/year", "p", "p (Holm)", "NER fit %/d"
+        "{:<14} {:<16} {:>5} {:>14} {:>10} {:>10} {:>12} {:>18}",
+        "tank",
+        "status",
+        "fills",
+        "drift %/year",
+        "p",
+        "p (Holm)",
+        "NER fit %/d",
+        "seen from %/y, %"
     )?;
     for g in &fleet.gauges {
         let status = serde_json::to_value(g.status)?;
         writeln!(
             out,
-            "{:<14} {:<16} {:>5} {:>14} {:>10} {:>10} {:>12}",
+            "{:<14} {:<16} {:>5} {:>14} {:>10} {:>10} {:>12} {:>18}",
             g.tank,
             status.as_str().unwrap_or("?"),
             g.fills,
             opt(g.drift_percent_per_year, 2),
             opt(g.p_value, 4),
             opt(g.p_adjusted, 4),
-            opt(g.ner_fitted_percent_per_day, 3)
+            opt(g.ner_fitted_percent_per_day, 3),
+            format!(
+                "{} | {}",
+                opt(g.drift_detectable_percent_per_year, 1),
+                opt(g.step_detectable_percent, 1)
+            )
         )?;
     }
+    writeln!(
+        out,
+        "(seen from: the smallest drift of the span, %/year, and step, %, that the test finds with \
+         probability 95 % on these fills; a smaller fault can pass unseen)"
+    )?;
     writeln!(out, "\nVehicles")?;
     writeln!(
         out,

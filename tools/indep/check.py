@@ -17,9 +17,11 @@ Profiles:
            findings (same fleet settings as strict).
   current  >= 90 % of the fills of a vehicle 2.5 % short on every fill found, <= 3 % of honest fills
            flagged, every planted fault reported, no healthy gauge or honest vehicle flagged.
-  fresh    the lines met on every fleet measured (107 on 2026-12-05): the always-short vehicle
-           biased, <= 6 % of fills inconclusive, the unlogged fill found, at most two other
-           findings (strict's fleet settings); CI gates on it at a fresh seed each run (--gate).
+  fresh    the lines met on the fleets measured (see tools/indep/README.md): the always-short
+           vehicle biased, <= 6 % of fills inconclusive, the unlogged fill found, at most two other
+           findings, and each planted gauge fault found that is at least the size the audit states
+           its test sees on that tank (the step's only with a quarter of the fills or more on either
+           side) (strict's fleet settings); CI gates on it at a fresh seed each run (--gate).
 
 Honest fills on the two tanks whose gauges carry a planted fault are scored apart (finding the gauge
 is that fault's test); every other honest fill counts. Exit status: 0 when every line of the chosen
@@ -185,6 +187,16 @@ def score(truth: dict, audit: dict, profile: str) -> dict:
     step_ms_found = gauge_step_ms(g_step)
     step_err = abs(step_ms_found - ms(gs["time"])) / DAY_MS if step_ms_found is not None else None
     false_gauges = sorted(t for t, g in gauges.items() if t not in gauge_tanks and gauge_fault(g))
+    # the sizes the audit states its gauge test sees (found with probability 95 %): a planted fault
+    # at or above it must be found; the step's applies to a step with at least a quarter of the
+    # tank's fills on either side (as the audit states it)
+    step_fills = sorted(f["start"] for f in fills_t if f["tank"] == gs["tank"])
+    step_share = (sum(1 for t in step_fills if ms(t) < ms(gs["time"])) / len(step_fills)) if step_fills else None
+    seen_drift = g_drift.get("drift_detectable_percent_per_year")
+    seen_step = g_step.get("step_detectable_percent")
+    drift_seeable = isinstance(seen_drift, (int, float)) and 100 * abs(gd["span_change_per_year"]) >= seen_drift
+    step_seeable = (isinstance(seen_step, (int, float)) and 100 * abs(gs["span_change"]) >= seen_step
+                    and step_share is not None and 0.25 <= step_share <= 0.75)
     fig["gauges"] = {
         "drift_tank": gd["tank"], "drift_reported": gauge_fault(g_drift),
         "drift_status": g_drift.get("status"),
@@ -194,6 +206,8 @@ def score(truth: dict, audit: dict, profile: str) -> dict:
         "step_date_found": (dtm.datetime.fromtimestamp(step_ms_found / 1000, tz=dtm.timezone.utc)
                             .strftime("%Y-%m-%d") if step_ms_found is not None else None),
         "step_date_error_days": step_err,
+        "drift_seen_from": seen_drift, "drift_seeable": drift_seeable,
+        "step_seen_from": seen_step, "step_share_before": step_share, "step_seeable": step_seeable,
         "false": false_gauges,
         "not_enough_data": sorted(t for t, g in gauges.items()
                                   if str(g.get("status", "")).lower() == "not-enough-data"),
@@ -264,6 +278,14 @@ def score(truth: dict, audit: dict, profile: str) -> dict:
         g = fig["gauges"]
         add("drifting gauge found", g["drift_reported"] is not None, f"{g['drift_tank']}: {g['drift_status']}")
 
+    def add_seeable():
+        g = fig["gauges"]
+        due = [k for k, ok in (("drift", g["drift_seeable"]), ("step", g["step_seeable"])) if ok]
+        missed = [k for k in due if not g[f"{k}_reported"]]
+        add("gauge faults the audit says it sees found", not missed,
+            (f"{', '.join(due)} at or above the stated size" if due else "neither at the stated size")
+            + (f"; missed: {', '.join(missed)}" if missed else ""))
+
     vp = fig["vehicles"]["planted"]
     if profile == "strict":
         add("short fills found >= 90 %", ge(a["short_found"], a["short_total"], 90), fmt_pct(a["short_found"], a["short_total"]))
@@ -288,12 +310,13 @@ def score(truth: dict, audit: dict, profile: str) -> dict:
         add("leak found", fd["leak_matched"] > 0, f"{fd['leak_matched']} finding(s) at {fd['leak_tank']}")
         add("at most 2 other findings", fd["other"] <= 2, str(fd["other"]))
     elif profile == "fresh":
-        # The lines the audit has met on every independent fleet measured (107 on 2026-12-05):
+        # The lines the audit has met on the independent fleets measured (tools/indep/README.md):
         # CI gates on them at a fresh seed each run, beside the fixed seed's strict and floor gates.
         sa = {k: x for k, x in vp.items() if per_vehicle.get(k, {}).get("role") == "short_all"}
         add("the always-short vehicle biased", bool(sa) and all(x["biased"] for x in sa.values()),
             ", ".join(f"{k}: {x['status']}" for k, x in sa.items()) or "none planted")
         add("fills inconclusive <= 6 %", le(a["inconclusive"], a["fills"], 6), fmt_pct(a["inconclusive"], a["fills"]))
+        add_seeable()
         fd = fig["findings"]
         add("unlogged fill found", fd["unlogged_matched"] > 0, f"{fd['unlogged_matched']} finding(s) at {fd['unlogged_tank']}")
         add("at most 2 other findings", fd["other"] <= 2, str(fd["other"]))
@@ -372,6 +395,12 @@ def print_report(fig: dict, truth: dict, profile: str) -> None:
           + (f" ({dpy:+.2f} %/year)" if isinstance(dpy, (int, float)) else ""))
     print(f"  step  {g['step_tank']} on {g['step_date']}: {g['step_status']}, date found {g['step_date_found']}"
           + (f", error {g['step_date_error_days']:.1f} days" if g["step_date_error_days"] is not None else ""))
+    def seen(x):
+        return f"{x:.1f}" if isinstance(x, (int, float)) else "-"
+    print(f"  the audit sees a drift from {seen(g['drift_seen_from'])} %/year there (planted "
+          f"{'at or above' if g['drift_seeable'] else 'under'} it), a step from {seen(g['step_seen_from'])} % "
+          f"(planted with {100 * (g['step_share_before'] or 0):.0f} % of the fills before it: "
+          f"{'due' if g['step_seeable'] else 'not due'})")
     print(f"  healthy gauges flagged: {', '.join(g['false']) or 'none'}; not enough data: "
           f"{len(g['not_enough_data'])}")
     fd = fig["findings"]

@@ -50,6 +50,15 @@ pub struct GaugeFinding {
     pub step_percent: Option<f64>,
     /// When that step happened, ms (dated from the readings where they show it).
     pub step_ms: Option<i64>,
+    /// The smallest drift of the span the test finds with probability 95 %, % per year (the
+    /// minimum detectable value of ISO 11843-1 at the test's level, floored at the smallest drift
+    /// reported): a slower one can pass unseen on these fills.
+    pub drift_detectable_percent_per_year: Option<f64>,
+    /// The smallest step of the span the test finds with probability 95 % from the fills alone,
+    /// %, for a step with at least a quarter of the fills' weight on either side (floored at the
+    /// smallest step reported; readings that show the step's jump lower it; a step nearer either
+    /// end of the record needs to be larger).
+    pub step_detectable_percent: Option<f64>,
     /// The tank's p-value: the smaller of the slope's and the step's (Bonferroni over the splits),
     /// doubled for the two models.
     pub p_value: Option<f64>,
@@ -463,6 +472,8 @@ fn fleet_pass(
             drift_se_percent_per_year: None,
             step_percent: None,
             step_ms: None,
+            drift_detectable_percent_per_year: None,
+            step_detectable_percent: None,
             p_value: None,
             p_adjusted: None,
             test: GAUGE_TEST,
@@ -493,6 +504,13 @@ fn fleet_pass(
         let Some(ft) = tests.get(*gi).copied().flatten() else {
             continue;
         };
+        // what the test could have seen, in the span's terms, floored at the smallest sizes reported
+        let per_span = ratio_per_span.get(*gi).copied().unwrap_or(1.0).max(1e-9);
+        let (drift_min, step_min) = gauge_faults::detectable(&ft, raw_p.len(), opts.drift_alpha);
+        g.drift_detectable_percent_per_year =
+            drift_min.map(|d| 100.0 * (d / per_span).max(opts.drift_min_per_year));
+        g.step_detectable_percent =
+            step_min.map(|s| 100.0 * (s / per_span).max(opts.step_min_fraction));
         if pa >= opts.drift_alpha {
             continue;
         }
@@ -690,6 +708,8 @@ mod tests {
             drift_se_percent_per_year: None,
             step_percent: None,
             step_ms,
+            drift_detectable_percent_per_year: None,
+            step_detectable_percent: None,
             p_value: None,
             p_adjusted: None,
             test: GAUGE_TEST,

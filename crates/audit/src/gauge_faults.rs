@@ -36,7 +36,8 @@
 use crate::moderated::Prior;
 use crate::records::Jump;
 use crate::stats::{
-    LineFit, fisher_combined_p, mad_sigma, normal_upper_p, t_two_sided_p, weighted_line,
+    LineFit, fisher_combined_p, mad_sigma, normal_quantile, normal_upper_p, t_critical,
+    t_two_sided_p, weighted_line,
 };
 
 const YEAR_MS: f64 = 365.0 * 86_400_000.0;
@@ -77,6 +78,12 @@ pub(crate) struct FaultTest {
     pub(crate) p: Option<f64>,
     /// True when the step fits better than the line.
     pub(crate) step_fits_better: bool,
+    /// The degrees of freedom of the drift's t-test (the moderated scatter's).
+    pub(crate) drift_df: f64,
+    /// What a step with at least a quarter of the fills' weight on either side would be measured
+    /// to, from the fills alone: its largest standard error there (ratio terms), the degrees of
+    /// freedom and the splits searched.
+    pub(crate) step_mid: Option<(f64, f64, usize)>,
 }
 
 /// Huber's constant.
@@ -179,6 +186,8 @@ pub(crate) fn test(
         step: None,
         p: None,
         step_fits_better: false,
+        drift_df: f64::INFINITY,
+        step_mid: None,
     };
     let n = pts.len();
     let mut rss_line = f64::INFINITY;
@@ -200,6 +209,24 @@ pub(crate) fn test(
         };
         out.drift = Some((fit.slope, se));
         out.p_drift = Some(t_p(t, df_mod));
+        out.drift_df = df_mod;
+        // a step with at least a quarter of the fills' weight on either side, measured at the
+        // line's scatter (no step in it): the larger standard error of the splits at the first
+        // and the third quarter of the weight
+        if n >= 2 * STEP_SIDE && s2 > 0.0 {
+            let total: f64 = pts.iter().map(|p| p.2).sum();
+            let weight_to = |k: usize| pts[..k].iter().map(|p| p.2).sum::<f64>();
+            let se_at = |share: f64| {
+                let k = (STEP_SIDE..=n - STEP_SIDE)
+                    .find(|&k| weight_to(k) >= share * total)
+                    .unwrap_or(n - STEP_SIDE);
+                let (w1, w2) = (weight_to(k), total - weight_to(k));
+                (w1 > 0.0 && w2 > 0.0).then(|| (s2_mod * (1.0 / w1 + 1.0 / w2)).sqrt())
+            };
+            if let (Some(a), Some(b)) = (se_at(0.25), se_at(0.75)) {
+                out.step_mid = Some((a.max(b), df_mod, n + 1 - 2 * STEP_SIDE));
+            }
+        }
     }
     if n >= 2 * STEP_SIDE {
         // candidate splits: where the readings jumped (a step shows there at once), else every split
@@ -268,6 +295,40 @@ pub(crate) fn test(
     };
     out.p = best_p.map(|p| (2.0 * p).min(1.0));
     out
+}
+
+/// The chance of missing a fault of the detectable size (β of ISO 11843-1:1997, "Capability of
+/// detection", whose minimum detectable value is the size a test at level α finds with probability
+/// 1 − β; 0.05 is the standard's usual choice, as recalled from memory).
+const MISS_BETA: f64 = 0.05;
+
+/// The two-sided critical value of a t statistic at `p`; the normal's with infinite degrees of
+/// freedom.
+fn t_crit(p: f64, df: f64) -> f64 {
+    if df.is_finite() {
+        t_critical(p, df)
+    } else {
+        normal_quantile(1.0 - 0.5 * p)
+    }
+}
+
+/// The smallest drift (ratio per year) and step (ratio) that the tank's test finds with
+/// probability 1 − [`MISS_BETA`] among `tested` tanks at family-wise level `alpha`: (t at the
+/// tank's level + t at 1 − β) times the standard error (the minimum detectable value, ISO 11843-1).
+/// The tank's level is α over the tanks (Holm's first step, which a lone fault meets), halved for
+/// the two models; the step's is the fills' alone, Bonferroni over every split, halved again for the
+/// readings' evidence it may be combined with, so readings that show the step only lower it.
+pub(crate) fn detectable(ft: &FaultTest, tested: usize, alpha: f64) -> (Option<f64>, Option<f64>) {
+    let m = tested.max(1) as f64;
+    let drift = ft.drift.and_then(|(_, se)| {
+        let df = ft.drift_df;
+        (se > 0.0).then(|| (t_crit(alpha / (2.0 * m), df) + t_crit(2.0 * MISS_BETA, df)) * se)
+    });
+    let step = ft.step_mid.map(|(se, df, splits)| {
+        let level = alpha / (4.0 * m * splits.max(1) as f64);
+        (t_crit(level, df) + t_crit(2.0 * MISS_BETA, df)) * se
+    });
+    (drift, step)
 }
 
 /// Two-sided p of a t statistic; the normal's with infinite degrees of freedom.
@@ -485,5 +546,40 @@ mod tests {
             before_5th + day
         );
         assert_eq!(date(&q, k, -0.03, 1.0, &[jump(before_5th, 3.5)]), middle);
+    }
+
+    /// The sizes the tests can see, by hand. Twelve monthly fills at ratio 1 ± 0.01, signs repeating
+    /// (plus, minus, minus, plus), weight 1: the line is flat (Σ (i − 5.5) rᵢ = 0 and Σ rᵢ = 0),
+    /// s² = 12 · 0.01² / 10 = 1.2e-4 on 10 degrees of freedom; the quarter-weight splits fall after
+    /// the third and the ninth fill, s · √(1/3 + 1/9) = 0.0073030; seven splits are searched
+    /// (3 ..= 9). Then with a standard error of 0.01 on infinite degrees of freedom among twenty
+    /// tanks at α = 0.05: the drift's (z(1 − 0.05/80) + z(0.95)) · 0.01 = (3.22722 + 1.64485) · 0.01
+    /// = 0.048721 and the step's over fifteen splits (z(1 − 0.05/2400) + 1.64485) · 0.01 = 0.057429
+    /// (quantiles from Python's statistics.NormalDist).
+    #[test]
+    fn the_sizes_the_tests_can_see_by_hand() {
+        let month = 30 * 86_400_000_i64;
+        let sign = [1.0, -1.0, -1.0, 1.0];
+        let pts: Vec<Point> = (0..12)
+            .map(|i| (i * month, 1.0 + 0.01 * sign[i as usize % 4], 1.0))
+            .collect();
+        let t = test(&pts, RobustLine::of(&pts).as_ref(), &[], 1.0, None);
+        let (se, df, splits) = t.step_mid.unwrap();
+        assert!((se - 0.0073030).abs() < 1e-6, "{se}");
+        assert!((df - 10.0).abs() < 1e-12 && splits == 7, "{df} {splits}");
+        let given = FaultTest {
+            drift: Some((0.0, 0.01)),
+            p_drift: None,
+            step: None,
+            p: None,
+            step_fits_better: false,
+            drift_df: f64::INFINITY,
+            step_mid: Some((0.01, f64::INFINITY, 15)),
+        };
+        let (drift, step) = detectable(&given, 20, 0.05);
+        assert!((drift.unwrap() - 0.048721).abs() < 1e-5, "{drift:?}");
+        assert!((step.unwrap() - 0.057429).abs() < 1e-5, "{step:?}");
+        // fewer tanks, a lower bar
+        assert!(detectable(&given, 5, 0.05).0.unwrap() < drift.unwrap());
     }
 }

@@ -53,6 +53,11 @@ pub fn normal_upper_p(z: f64) -> f64 {
     Normal::new(0.0, 1.0).map_or(f64::NAN, |d| d.sf(z))
 }
 
+/// The standard normal quantile: z with P(Z ≤ z) = `p` (statrs' normal distribution).
+pub fn normal_quantile(p: f64) -> f64 {
+    Normal::new(0.0, 1.0).map_or(f64::NAN, |d| d.inverse_cdf(p))
+}
+
 /// Fisher's combination of independent p-values: P(χ²₂ₖ ≥ −2 Σ ln pᵢ) (Fisher, "Statistical
 /// Methods for Research Workers", 1932, §21.1).
 pub fn fisher_combined_p(p: &[f64]) -> f64 {

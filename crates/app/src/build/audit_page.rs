@@ -282,6 +282,10 @@ pub fn audit_view(
             drift: g.drift_percent_per_year,
             step: g.step_percent.zip(g.step_ms),
             p_adjusted: g.p_adjusted,
+            detectable: (
+                g.drift_detectable_percent_per_year,
+                g.step_detectable_percent,
+            ),
             points,
             drift_line,
             step_lines,

@@ -248,6 +248,8 @@ pub struct GaugeLine {
     pub step: Option<(f64, i64)>,
     /// p-value after Holm's correction.
     pub p_adjusted: Option<f64>,
+    /// The smallest drift (% of span per year) and step (%) the test finds with probability 95 %.
+    pub detectable: (Option<f64>, Option<f64>),
     /// Each fill's (gained + drawn) / billed, %: (days since the epoch, ratio, vehicle).
     pub points: Vec<(f64, f64, String)>,
     /// The drift the test found, drawn through the fills' mean: ((x0, y0), (x1, y1)).

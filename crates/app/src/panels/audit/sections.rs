@@ -301,7 +301,9 @@ pub(super) fn gauges_ui(ui: &mut Ui, a: &AuditView, out: &mut Vec<Action>) {
     ui.label(
         RichText::new(
             "(gained + drawn) / billed over time at each tank, vehicle effects removed: a linear drift \
-             or a step of the gauge's span (a bad recalibration). Click a tank to plot its fills.",
+             or a step of the gauge's span (a bad recalibration). \"Seen from\": the smallest drift and \
+             step the test finds with probability 95 % on the tank's fills; a smaller one can pass \
+             unseen. Click a tank to plot its fills.",
         )
         .color(style::MUTED),
     );
@@ -312,7 +314,7 @@ pub(super) fn gauges_ui(ui: &mut Ui, a: &AuditView, out: &mut Vec<Action>) {
         }
         egui::Grid::new("gauges")
             .striped(true)
-            .num_columns(6)
+            .num_columns(7)
             .show(ui, |ui| {
                 for h in [
                     "Tank",
@@ -321,6 +323,7 @@ pub(super) fn gauges_ui(ui: &mut Ui, a: &AuditView, out: &mut Vec<Action>) {
                     "Drift (% of span/year)",
                     "Best step (%, from)",
                     "p after Holm",
+                    "Seen from (drift %/year, step %)",
                 ] {
                     ui.label(RichText::new(h).color(style::MUTED));
                 }
@@ -342,6 +345,12 @@ pub(super) fn gauges_ui(ui: &mut Ui, a: &AuditView, out: &mut Vec<Action>) {
                         format!("{} from {}", fmt::num(s, 2), fmt::date(at))
                     }));
                     ui.label(g.p_adjusted.map_or("—".into(), p_text));
+                    let seen = |x: Option<f64>| x.map_or("—".into(), |v| fmt::num(v, 1));
+                    ui.label(format!(
+                        "{}, {}",
+                        seen(g.detectable.0),
+                        seen(g.detectable.1)
+                    ));
                     ui.end_row();
                 }
             });
