@@ -10,7 +10,9 @@
 //!   scatter, the weights known up to a common factor — the external consistency of a weighted
 //!   mean, Birge, Phys. Rev. 40, 1932 — plus what the fills compared with one level share: that
 //!   level's error, and the errors of the other vehicles' effects taken out of it, which move
-//!   every comparison with those vehicles alike), by Student's t;
+//!   every comparison with those vehicles alike, each such error that of the other vehicle's
+//!   comparisons away from this one's tanks — at them it was measured against this one's own
+//!   fills), by Student's t;
 //! - the short count: a vehicle short by a few percent on only some of its fills has a small mean
 //!   bias but many short verdicts; the count is tested against the share an honest vehicle draws
 //!   (the fleet's median vehicle, at least the tail 1 − Φ(k) of the verdicts' coverage interval)
@@ -134,6 +136,30 @@ struct Compared {
     /// Each other vehicle's share of the levels compared with (Σ over the tanks of this vehicle's
     /// weight there times the other's share of the level).
     share_of: BTreeMap<usize, f64>,
+    /// The tank of each point of `d`.
+    at: Vec<usize>,
+    /// Per tank: (Σw and Σw² of this vehicle's points there, the variance of the level they share).
+    shared: BTreeMap<usize, (f64, f64, f64)>,
+}
+
+impl Compared {
+    /// The standard error of this vehicle's comparison from its points at tanks other than
+    /// `away` (None with fewer than two).
+    fn se_away_from(&self, away: &std::collections::BTreeSet<usize>) -> Option<f64> {
+        let d: Vec<(f64, f64)> = self
+            .d
+            .iter()
+            .zip(&self.at)
+            .filter(|(_, t)| !away.contains(t))
+            .map(|(p, _)| *p)
+            .collect();
+        let shared = self
+            .shared
+            .iter()
+            .filter(|(t, _)| !away.contains(t))
+            .map(|(_, s)| s);
+        (d.len() >= 2).then(|| mean_and_se(&d, shared).1)
+    }
 }
 
 /// How much each other vehicle weighs in the levels vehicle `vi` is compared with: Σ_t (W_t / ΣW)
@@ -167,8 +193,8 @@ fn level_shares(
 
 /// The variance a vehicle's mean takes from the errors of the other vehicles' effects removed from
 /// the levels it is compared with: Σ (a_v · se_v)², a_v their shares ([`level_shares`]), se_v the
-/// standard error of each one's own comparison (`se_of`; its effect's, the effects taken as
-/// independent).
+/// standard error of each one's comparison away from this vehicle's tanks (`se_of`; its effect's,
+/// the effects taken as independent).
 fn effects_variance(share_of: &BTreeMap<usize, f64>, se_of: impl Fn(usize) -> Option<f64>) -> f64 {
     share_of
         .iter()
@@ -274,7 +300,7 @@ pub(crate) fn test(
         let mut adjusted = Vec::new();
         // per tank: (Σw and Σw² of this vehicle's fills there, the variance of the level they share)
         let mut shared: BTreeMap<usize, (f64, f64, f64)> = BTreeMap::new();
-        let d: Vec<(f64, f64)> = of_vehicle
+        let (d, at): (Vec<(f64, f64)>, Vec<usize>) = of_vehicle
             .iter()
             .filter_map(|&k| {
                 let (level, level_var) = level_without(kept[k].0, vi)?;
@@ -292,9 +318,9 @@ pub(crate) fn test(
                         u_percent: 100.0 * u,
                     });
                 }
-                Some((kept[k].2 - level, 1.0 / u.powi(2)))
+                Some(((kept[k].2 - level, 1.0 / u.powi(2)), kept[k].0))
             })
-            .collect();
+            .unzip();
         adjusted.sort_by_key(|a| a.start_ms);
         let share_of = level_shares(vi, shared.iter().map(|(t, at)| (*t, at.0)), &weight_at);
         let first =
@@ -304,10 +330,35 @@ pub(crate) fn test(
             adjusted,
             first,
             share_of,
+            at,
+            shared,
         });
     }
     // each vehicle's own comparison's standard error, taken as that of its effect
     let se_first: Vec<Option<f64>> = compared.iter().map(|c| c.first.map(|f| f.1)).collect();
+    // the tanks each vehicle filled: another vehicle's effect, as it bears on this one's levels, is
+    // known only from its comparisons away from them (at this one's tanks it was measured against
+    // this one's own fills)
+    let tanks_of: Vec<std::collections::BTreeSet<usize>> = kept_of_vehicle
+        .iter()
+        .map(|ks| ks.iter().map(|&k| kept[k].0).collect())
+        .collect();
+    let se_of_for: Vec<BTreeMap<usize, Option<f64>>> = compared
+        .iter()
+        .enumerate()
+        .map(|(vi, c)| {
+            c.share_of
+                .keys()
+                .map(|&v| {
+                    let away = compared
+                        .get(v)
+                        .zip(tanks_of.get(vi))
+                        .and_then(|(o, t)| o.se_away_from(t));
+                    (v, away.or_else(|| se_first.get(v).copied().flatten()))
+                })
+                .collect()
+        })
+        .collect();
     let mut vehicles: Vec<VehicleFinding> = Vec::new();
     let mut vp: Vec<(usize, f64)> = Vec::new();
     for (vi, ((name, carrier), c)) in names.iter().zip(compared).enumerate() {
@@ -316,6 +367,7 @@ pub(crate) fn test(
             adjusted,
             first,
             share_of,
+            ..
         } = c;
         let verdicts = std::mem::take(&mut verdict_counts[vi]);
         let (short, judged_n) = judged(&verdicts);
@@ -345,7 +397,9 @@ pub(crate) fn test(
             // the other vehicles' effects' errors, weighed by their share of the levels compared
             // with
             let se = (se * se
-                + effects_variance(&share_of, |v| se_first.get(v).copied().flatten()))
+                + effects_variance(&share_of, |v| {
+                    se_of_for.get(vi).and_then(|m| m.get(&v)).copied().flatten()
+                }))
             .sqrt();
             let dof = n as f64 - 1.0;
             let tstat = if se > 0.0 { mean / se } else { 0.0 };
@@ -486,6 +540,39 @@ mod tests {
         assert!((var - 6.8125e-6).abs() < 1e-18, "{var}");
         // a vehicle with no standard error of its own adds nothing
         assert!((effects_variance(&shares, |v| (v == 1).then_some(0.004)) - 6.25e-6).abs() < 1e-18);
+    }
+
+    /// Another vehicle's effect as it bears on this one's levels is known from its comparisons away
+    /// from this one's tanks. By hand: points 0.01 and −0.01 at tank 0, 0.02 and 0.00 at tank 1,
+    /// weight 1e4 each; away from tank 0, mean 0.01, χ² = 1e4 · 2 · 0.01² = 2 on one degree of
+    /// freedom over Σw = 2e4: se = √(1e-4) = 0.01, and with tank 1's level of variance 1e-6 shared
+    /// by both points (1e-6 · ((2e4)² − 2e8) / (2e4)² = 5e-7) √(1.005e-4) = 0.0100250; away from
+    /// neither, mean 0.005, χ² = 1e4 · (2 · 0.005² + 2 · 0.015²) = 5 on three over 4e4: √(5/12e4)
+    /// = 0.0064550; away from both, nothing.
+    #[test]
+    fn an_effect_is_known_from_its_comparisons_elsewhere() {
+        let c = |level_var: f64| Compared {
+            d: vec![(0.01, 1e4), (-0.01, 1e4), (0.02, 1e4), (0.0, 1e4)],
+            adjusted: Vec::new(),
+            first: None,
+            share_of: BTreeMap::new(),
+            at: vec![0, 0, 1, 1],
+            shared: [(0, (2e4, 2e8, 0.0)), (1, (2e4, 2e8, level_var))].into(),
+        };
+        let away = |t: &[usize]| {
+            t.iter()
+                .copied()
+                .collect::<std::collections::BTreeSet<usize>>()
+        };
+        let se = c(0.0).se_away_from(&away(&[0])).unwrap();
+        assert!((se - 0.01).abs() < 1e-12, "{se}");
+        let se = c(1e-6).se_away_from(&away(&[0])).unwrap();
+        assert!((se - 1.005e-4_f64.sqrt()).abs() < 1e-12, "{se}");
+        assert!((se - 0.0100250).abs() < 1e-7, "{se}");
+        let se = c(0.0).se_away_from(&away(&[])).unwrap();
+        assert!((se - (5.0_f64 / 12e4).sqrt()).abs() < 1e-12, "{se}");
+        assert!((se - 0.0064550).abs() < 1e-7, "{se}");
+        assert!(c(0.0).se_away_from(&away(&[0, 1])).is_none());
     }
 
     /// Binomial upper tail: P(X ≥ 2) for n = 3, p = 0.5 is 4/8 = 0.5; P(X ≥ 3) = 1/8 (exact by
