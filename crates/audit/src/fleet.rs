@@ -665,11 +665,21 @@ fn fleet_pass(
                 .get(name)
                 .is_some_and(|&i| apart.get(i).copied().unwrap_or(false))
         };
-        crate::with_vehicle::apply(tanks, &mut vehicles, &set_apart, opts);
+        // a vehicle set apart whose mixture has no honest deliveries to speak of is short on every
+        // delivery: the normal model of its other fills judges its fills
+        let judged_by_mixture = |name: &str| {
+            let m = vehicle_index
+                .get(name)
+                .and_then(|&i| mixtures.get(i).copied().flatten());
+            crate::with_vehicle::judged_by_mixture(set_apart(name), m, opts.materiality_fraction)
+        };
+        crate::with_vehicle::apply(tanks, &mut vehicles, &judged_by_mixture, opts);
         // a vehicle set apart as short on only some fills: each fill by the mixture of its
         // deliveries
         let mixture_of = |name: &str| {
-            let &i = vehicle_index.get(name).filter(|_| set_apart(name))?;
+            let &i = vehicle_index
+                .get(name)
+                .filter(|_| judged_by_mixture(name))?;
             mixtures.get(i).copied().flatten()
         };
         crate::with_vehicle::apply_mixture(tanks, &mut vehicles, &mixture_of, opts);

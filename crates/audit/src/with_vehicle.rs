@@ -21,7 +21,8 @@
 //!   variance τ² + that mean's own variance; the fill's own point, when it has one, updates it.
 //!
 //! A vehicle set apart as short on only some fills is not judged that way: its shortfalls are one
-//! of two values, honest or short, not a normal spread. Its fills are judged by the mixture of its
+//! of two values, honest or short, not a normal spread (unless its mixture has no honest
+//! deliveries to speak of: see [`judged_by_mixture`]). Its fills are judged by the mixture of its
 //! deliveries instead (see [`apply_mixture`]): a fill whose balance alone could not show it short is
 //! short when it was more likely a short delivery than an honest one, by a material shortfall.
 //!
@@ -248,6 +249,20 @@ pub(crate) fn apply(
     }
 }
 
+/// Whether a vehicle's fills are judged by the mixture of its deliveries rather than by the normal
+/// model of its other fills: only when it was set apart as short on some fills *and* its mixture
+/// has honest deliveries to speak of (their effect short by no more than the materiality
+/// threshold). A vehicle short on every delivery whose scatter passed for a sometimes-short one's
+/// has no honest component: its "honest" deliveries are short too, and the mixture, judging each
+/// fill against them, would find none short.
+pub(crate) fn judged_by_mixture(
+    set_apart: bool,
+    mixture: Option<crate::mixture::Mixture>,
+    materiality_fraction: f64,
+) -> bool {
+    set_apart && mixture.is_some_and(|m| -m.honest <= materiality_fraction)
+}
+
 /// The evidence of the mixture `m` of a vehicle's deliveries for one fill at `x` ± `u` (its ratio
 /// less its tank's level): the probability that it was a short delivery, with the short share as
 /// the prior, held at even odds at most (a share fitted high, the honest and short deliveries not
@@ -389,5 +404,23 @@ mod tests {
         let six = Sums::of(&[(0.015, 0.005); 6], 0.0).plus((0.015, 0.005), 0.0, -1.0);
         let e6 = evidence(six, 0.0, Some((0.005, 0.01))).expect("five others");
         assert!((e6.shortfall_percent - 30.5 / 21.0).abs() < 1e-9, "{e6:?}");
+    }
+
+    /// Which vehicles the mixture judges, by hand at the 1 % materiality: set apart with honest
+    /// deliveries at −0.3 % (a meter within class), yes; with "honest" deliveries at −1.4 % (a
+    /// vehicle short on every fill, its scatter taken for a mixture's), no; at exactly −1 %, yes (no
+    /// more than the threshold); not set apart, or without a mixture, no.
+    #[test]
+    fn only_a_mixture_with_honest_deliveries_judges_a_vehicle() {
+        let m = |honest: f64| crate::mixture::Mixture {
+            honest,
+            shortfall: 0.035,
+            share: 0.4,
+        };
+        assert!(judged_by_mixture(true, Some(m(-0.003)), 0.01));
+        assert!(!judged_by_mixture(true, Some(m(-0.014)), 0.01));
+        assert!(judged_by_mixture(true, Some(m(-0.01)), 0.01));
+        assert!(!judged_by_mixture(false, Some(m(-0.003)), 0.01));
+        assert!(!judged_by_mixture(true, None, 0.01));
     }
 }
