@@ -72,6 +72,10 @@ pub struct AuditArgs {
     /// other fills
     #[arg(long)]
     pub no_gauge_scale: bool,
+    /// Where a site names no time zone, read its days, nights and weekends on the clock its tanks'
+    /// use shows (the whole-hour offset from UTC that fits best, when clearly better) instead of UTC
+    #[arg(long)]
+    pub site_clock_from_use: bool,
     /// Judge every fill on its own balance only: a fill of a vehicle found biased is not also
     /// judged with that vehicle's other fills, nor a cleared vehicle's at the wider factor
     #[arg(long)]
@@ -99,6 +103,7 @@ fn options(a: &AuditArgs) -> AuditOptions {
         thermal_history: !a.no_thermal_history,
         fit_ner: !a.no_ner_fit,
         calibrate_gauges: !a.no_gauge_scale,
+        site_clock_from_use: a.site_clock_from_use,
         judge_with_vehicle: !a.own_balance_only,
         coverage_factor: a.coverage_factor,
         cleared_coverage_factor: if a.own_balance_only {
@@ -317,6 +322,19 @@ fn table(out: &mut impl Write, fleet: &FleetAudit) -> Result<()> {
         "(seen from: the smallest drift of the span, %/year, and step, %, that the test finds with \
          probability 95 % on these fills; a smaller fault can pass unseen)"
     )?;
+    let clocks: Vec<String> = fleet
+        .tanks
+        .iter()
+        .filter_map(|t| Some(format!("{} UTC{:+}", t.tank, t.clock_offset_hours?)))
+        .collect();
+    if !clocks.is_empty() {
+        writeln!(
+            out,
+            "(sites that name no time zone: the use model's days, nights and weekends on the clock \
+             their use shows: {})",
+            clocks.join(", ")
+        )?;
+    }
     writeln!(out, "\nVehicles")?;
     writeln!(
         out,

@@ -397,10 +397,12 @@ def print_report(fig: dict, truth: dict, profile: str) -> None:
           + (f", error {g['step_date_error_days']:.1f} days" if g["step_date_error_days"] is not None else ""))
     def seen(x):
         return f"{x:.1f}" if isinstance(x, (int, float)) else "-"
-    print(f"  the audit sees a drift from {seen(g['drift_seen_from'])} %/year there (planted "
-          f"{'at or above' if g['drift_seeable'] else 'under'} it), a step from {seen(g['step_seen_from'])} % "
-          f"(planted with {100 * (g['step_share_before'] or 0):.0f} % of the fills before it: "
-          f"{'due' if g['step_seeable'] else 'not due'})")
+    gd, gs = truth["faults"]["gauge_drift"], truth["faults"]["gauge_step"]
+    print(f"  the audit says it sees a drift from {seen(g['drift_seen_from'])} %/year at {g['drift_tank']} "
+          f"(planted {100 * abs(gd['span_change_per_year']):.1f}: {'due' if g['drift_seeable'] else 'not due'}), "
+          f"a step from {seen(g['step_seen_from'])} % at {g['step_tank']} (planted "
+          f"{100 * abs(gs['span_change']):.1f} with {100 * (g['step_share_before'] or 0):.0f} % of the fills "
+          f"before it, due at a quarter to three quarters: {'due' if g['step_seeable'] else 'not due'})")
     print(f"  healthy gauges flagged: {', '.join(g['false']) or 'none'}; not enough data: "
           f"{len(g['not_enough_data'])}")
     fd = fig["findings"]

@@ -87,6 +87,9 @@ pub struct TankSummary {
     pub readings_refused: usize,
     /// Use rate and next fill.
     pub forecast: Option<Forecast>,
+    /// The site's clock the use model took, hours east of UTC, when the site names no time zone
+    /// and the tank's use shows one other than UTC.
+    pub clock_offset_hours: Option<i32>,
     /// The state behind the latest accepted reading (for the window's fleet list; not in reports).
     #[serde(skip)]
     pub latest: Option<crate::ReadingState>,
@@ -286,6 +289,7 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
             readings_used: t.readings_used,
             readings_refused: t.readings_refused,
             forecast: t.forecast,
+            clock_offset_hours: t.clock_offset_hours,
             latest: t.latest,
         });
     }

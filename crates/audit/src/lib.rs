@@ -52,7 +52,7 @@
 //!     deliveries: vec![DeliveryInput { ticket: "K1".into(), vehicle: "V1".into(), carrier: "C".into(),
 //!         start_ms: h / 2, end_ms: h, billed_kg: arrived, supply_pressure_pa: Some(p),
 //!         meter_repeatability_percent: None }],
-//!     zone: units::Zone::UTC,
+//!     zone: Some(units::Zone::UTC),
 //! };
 //! // liquid saturated at the tank pressure throughout (delivered at the tank pressure, no NER fit)
 //! let options = AuditOptions { fit_ner: false, ..AuditOptions::default() };
@@ -82,6 +82,7 @@ mod moderated;
 mod precision;
 mod props;
 mod records;
+mod site_clock;
 pub mod stats;
 mod tank_audit;
 mod thermal;
@@ -122,9 +123,10 @@ pub struct TankInput {
     pub readings: Vec<ReadingInput>,
     /// Deliveries, any order.
     pub deliveries: Vec<DeliveryInput>,
-    /// The site's clock: the use model's days, nights and weekends are the site's (UTC when the site
-    /// names no time zone).
-    pub zone: units::Zone,
+    /// The site's clock: the use model's days, nights and weekends are the site's. None when the site
+    /// names no time zone: the clock is then the whole-hour offset from UTC that explains the
+    /// tank's use best, UTC unless another is clearly better (see [`TankAudit::clock_offset_hours`]).
+    pub zone: Option<units::Zone>,
 }
 
 /// One reading, SI.
@@ -264,6 +266,11 @@ pub struct AuditOptions {
     /// Judge each fill against its gauge's scale fitted from the tank's other fills (true; see
     /// the calibration module).
     pub calibrate_gauges: bool,
+    /// Where a site names no time zone, take the clock its use shows (the whole-hour offset from
+    /// UTC that explains the tank's use best; see [`TankAudit::clock_offset_hours`]) instead of
+    /// UTC. Off by default: on CI's fixed independent fleet it shows a healthy CO₂ gauge's fills
+    /// trending by 2 %/year (their balances' true errors do), and calls it stepped.
+    pub site_clock_from_use: bool,
     /// Fewest fills at a tank (the judged one included) to fit its gauge's scale from (6).
     pub calibration_min_fills: usize,
     /// Judge the fills of a vehicle found biased with its other fills as well as their own
@@ -335,6 +342,7 @@ impl Default for AuditOptions {
             vehicle_alpha: 0.05,
             vehicle_min_bias: 0.0075,
             calibrate_gauges: true,
+            site_clock_from_use: false,
             calibration_min_fills: 6,
             judge_with_vehicle: true,
             vehicle_min_fills: 5,

@@ -264,6 +264,9 @@ pub struct TankAudit {
     pub readings: Vec<ReadingState>,
     /// The state behind the latest reading the engine accepted.
     pub latest: Option<ReadingState>,
+    /// The site's clock the use model took, hours east of UTC, when the site names no time zone and
+    /// the tank's use shows one other than UTC (see [`crate::TankInput::zone`]).
+    pub clock_offset_hours: Option<i32>,
     /// Intervals departing from the use model by 1.5 standard uncertainties or more (to find and
     /// date steps).
     #[serde(skip)]
@@ -287,6 +290,7 @@ impl TankAudit {
             forecast: None,
             readings: Vec::new(),
             latest: None,
+            clock_offset_hours: None,
             jumps: Vec::new(),
         }
     }

@@ -115,6 +115,18 @@ pub fn audit_tank(input: &TankInput, opts: &AuditOptions) -> Result<TankAudit, A
         .collect();
 
     let mut evals = ctx.history(heat_w_of(ner_setting), &Mode::Full);
+    // the site's clock: its own, or the one its use shows (see `site_clock`)
+    let (zone, clock_offset_hours) = match ctx.input.zone {
+        Some(z) => (z, None),
+        None if !opts.site_clock_from_use => (units::Zone::UTC, None),
+        None => {
+            let found = crate::site_clock::infer_offset_hours(&observed(&intervals(&ctx, &evals)));
+            match found.and_then(units::Zone::fixed_hours_east) {
+                Some(z) => (z, found),
+                None => (units::Zone::UTC, None),
+            }
+        }
+    };
     let mut ner_fitted = None;
     // the use model fitted before the NER fit, kept when the setting stands: the readings then keep
     // the masses it was fitted on (refitting them gave the same to 1e-12)
@@ -137,7 +149,7 @@ pub fn audit_tank(input: &TankInput, opts: &AuditOptions) -> Result<TankAudit, A
             }
         }
         // use per fill from the first pass (the NER barely moves it)
-        let model = use_model(&ctx, &intervals(&ctx, &evals));
+        let model = use_model(&ctx, &intervals(&ctx, &evals), zone);
         let drawn: Vec<f64> = ctx
             .deliveries
             .iter()
@@ -219,7 +231,7 @@ pub fn audit_tank(input: &TankInput, opts: &AuditOptions) -> Result<TankAudit, A
         }
     }
     let intervals = intervals(&ctx, &evals);
-    let model = kept_model.unwrap_or_else(|| use_model(&ctx, &intervals));
+    let model = kept_model.unwrap_or_else(|| use_model(&ctx, &intervals, zone));
     let balances: Vec<Balance> = ctx
         .deliveries
         .iter()
@@ -269,6 +281,7 @@ pub fn audit_tank(input: &TankInput, opts: &AuditOptions) -> Result<TankAudit, A
         forecast,
         readings: kept,
         latest,
+        clock_offset_hours,
         jumps,
     })
 }
@@ -303,9 +316,9 @@ pub(crate) fn intervals(ctx: &Ctx<'_>, evals: &[Option<Eval>]) -> Vec<Interval> 
         .collect()
 }
 
-/// The tank's use model from the intervals no logged fill touches.
-pub(crate) fn use_model(ctx: &Ctx<'_>, intervals: &[Interval]) -> UseModel {
-    let observed: Vec<Observed> = intervals
+/// The mass lost over each interval no logged fill touches.
+fn observed(intervals: &[Interval]) -> Vec<Observed> {
+    intervals
         .iter()
         .filter(|iv| iv.clean)
         .map(|iv| Observed {
@@ -313,6 +326,10 @@ pub(crate) fn use_model(ctx: &Ctx<'_>, intervals: &[Interval]) -> UseModel {
             to_ms: iv.to_ms,
             lost_kg: iv.from_kg - iv.to_kg,
         })
-        .collect();
-    UseModel::fit(&observed, ctx.full_mass_kg, ctx.input.zone)
+        .collect()
+}
+
+/// The tank's use model from the intervals no logged fill touches, on the site's clock `zone`.
+pub(crate) fn use_model(ctx: &Ctx<'_>, intervals: &[Interval], zone: units::Zone) -> UseModel {
+    UseModel::fit(&observed(intervals), ctx.full_mass_kg, zone)
 }

@@ -667,6 +667,7 @@ mod tests {
                 forecast: None,
                 readings: Vec::new(),
                 latest: None,
+                clock_offset_hours: None,
                 jumps: Vec::new(),
             }];
             let reading = crate::records::BracketReading {

@@ -77,7 +77,7 @@ fn input_of(
             supply_pressure_pa: Some(p_pa),
             meter_repeatability_percent: None,
         }],
-        zone: units::Zone::UTC,
+        zone: Some(units::Zone::UTC),
     }
 }
 

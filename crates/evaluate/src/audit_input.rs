@@ -92,11 +92,8 @@ pub fn tank_input(
         tank: engine,
         readings,
         deliveries,
-        // a zone the store holds was checked when it was written; an unreadable one counts as UTC
-        zone: t
-            .time_zone
-            .as_deref()
-            .and_then(|z| z.parse().ok())
-            .unwrap_or_default(),
+        // a zone the store holds was checked when it was written; none (or an unreadable one) leaves
+        // the audit to find the site's clock from its use
+        zone: t.time_zone.as_deref().and_then(|z| z.parse().ok()),
     })
 }

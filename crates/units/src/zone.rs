@@ -79,6 +79,16 @@ impl Zone {
     /// UK time (GMT in winter, BST in summer).
     pub const LONDON: Zone = Zone(chrono_tz::Europe::London);
 
+    /// A clock a whole number of hours east of UTC (the IANA `Etc/GMT` zones, whose names count
+    /// west as positive); None outside −12 to +14.
+    pub fn fixed_hours_east(hours: i32) -> Option<Zone> {
+        match hours {
+            0 => Some(Zone::UTC),
+            -12..=14 => format!("Etc/GMT{:+}", -hours).parse().ok(),
+            _ => None,
+        }
+    }
+
     /// The IANA name.
     pub fn name(&self) -> &'static str {
         self.0.name()
@@ -173,6 +183,23 @@ impl Zone {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// Fixed clocks: five hours west shows 07:00 when UTC is 12:00 (offset −18,000 s), three east
+    /// 15:00; zero is UTC; beyond the zones in use, none (IANA Etc/GMT names count west as positive).
+    #[test]
+    fn fixed_clocks_count_hours_east() {
+        let noon = 12 * 3_600_000;
+        let west = Zone::fixed_hours_east(-5).unwrap();
+        assert_eq!(west.offset_seconds(noon), -18_000);
+        assert_eq!(west.name(), "Etc/GMT+5");
+        assert_eq!(
+            Zone::fixed_hours_east(3).unwrap().offset_seconds(noon),
+            10_800
+        );
+        assert_eq!(Zone::fixed_hours_east(0), Some(Zone::UTC));
+        assert_eq!(Zone::fixed_hours_east(15), None);
+        assert_eq!(Zone::fixed_hours_east(-13), None);
+    }
 
     fn d(y: i32, m: u32, dd: u32) -> NaiveDate {
         NaiveDate::from_ymd_opt(y, m, dd).unwrap_or_default()

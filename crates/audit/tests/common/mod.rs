@@ -80,7 +80,7 @@ pub fn inputs(fleet: &simulate::Fleet) -> Vec<TankInput> {
                 dp_noise_u_pa: dp_noise_u_pa(t),
                 readings,
                 deliveries,
-                zone: units::Zone::UTC,
+                zone: Some(units::Zone::UTC),
             }
         })
         .collect()
