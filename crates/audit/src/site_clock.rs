@@ -5,8 +5,9 @@
 //! without a time zone was read as UTC, so at a site five hours west a laboratory's working day
 //! fell half in the model's day and half in its night, and a Saturday began on Friday evening: the
 //! use between two readings was mispredicted by a good part of a day's use where the readings fell
-//! at different hours. Each candidate offset (−12 to +14 h) is fitted to the stretches between
-//! readings by weighted least squares (one rate per block, each stretch weighted by the inverse of
+//! at different hours. Every third whole-hour offset from −12 to +14 h, then the two either side of
+//! the best, is fitted to the stretches between readings (at most [`MAX_STRETCHES`], every k-th of
+//! a longer record) by weighted least squares (one rate per block, each stretch weighted by the inverse of
 //! its length, its squared standardized residual held within 3² of the UTC fit's robust scale so
 //! that a leak or an unlogged fill does not choose the clock), among those whose weekday day uses
 //! at least as much as its night (a clock twelve hours away swaps the two and, read on weekdays,
@@ -36,7 +37,7 @@ const COARSE_STEP: i32 = 3;
 const MAX_STRETCHES: usize = 260;
 
 /// Whether `o` is a candidate other than UTC.
-fn d_ok(o: i32) -> bool {
+fn is_candidate(o: i32) -> bool {
     o != 0 && OFFSETS.contains(&o)
 }
 
@@ -228,7 +229,7 @@ pub(crate) fn infer_offset_hours(observed: &[Observed]) -> Option<i32> {
         .fold(None, better)?;
     let (best, s_best) = (-2..=2)
         .map(|d| coarse.0 + d)
-        .filter(|&o| d_ok(o) && o != coarse.0)
+        .filter(|&o| is_candidate(o) && o != coarse.0)
         .map(try_at)
         .fold(Some(coarse), better)?;
     let others = (OFFSETS.end() - OFFSETS.start()) as f64;
