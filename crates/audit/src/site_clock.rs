@@ -17,7 +17,7 @@
 //! distribution), else the clock stays UTC.
 
 use crate::stats::{mad_sigma, normal_quantile};
-use crate::use_model::{BLOCKS, Observed};
+use crate::use_model::{BLOCKS, Observed, solve_spd_with};
 
 const HOUR_MS: i64 = 3_600_000;
 const WEEK_H: usize = 168;
@@ -141,39 +141,12 @@ fn residuals(rows: &[([f64; BLOCKS], f64, f64)]) -> Option<([f64; BLOCKS], Vec<f
     for (i, row) in m.iter_mut().enumerate() {
         row[i] += 1e-9 * trace.max(1e-300);
     }
-    let rate = solve(m, b)?;
+    let (rate, _) = solve_spd_with(m, b, false)?;
     let z = rows
         .iter()
         .map(|(x, y, w)| (y - x.iter().zip(&rate).map(|(a, r)| a * r).sum::<f64>()) * w.sqrt())
         .collect();
     Some((rate, z))
-}
-
-/// Gaussian elimination with partial pivoting of a small system.
-// index loops read as the textbook algorithm
-#[allow(clippy::needless_range_loop)]
-fn solve(mut m: [[f64; BLOCKS]; BLOCKS], mut b: [f64; BLOCKS]) -> Option<[f64; BLOCKS]> {
-    for c in 0..BLOCKS {
-        let p = (c..BLOCKS).max_by(|&i, &j| m[i][c].abs().total_cmp(&m[j][c].abs()))?;
-        if m[p][c].abs() <= 0.0 || !m[p][c].is_finite() {
-            return None;
-        }
-        m.swap(c, p);
-        b.swap(c, p);
-        for r in c + 1..BLOCKS {
-            let f = m[r][c] / m[c][c];
-            for k in c..BLOCKS {
-                m[r][k] -= f * m[c][k];
-            }
-            b[r] -= f * b[c];
-        }
-    }
-    let mut x = [0.0; BLOCKS];
-    for r in (0..BLOCKS).rev() {
-        let s: f64 = (r + 1..BLOCKS).map(|k| m[r][k] * x[k]).sum();
-        x[r] = (b[r] - s) / m[r][r];
-    }
-    Some(x)
 }
 
 /// The site's clock from the stretches no fill touches, hours east of UTC: Some(offset) when one

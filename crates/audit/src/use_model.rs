@@ -273,7 +273,7 @@ fn solve_spd(
 /// need the solution alone.
 // index loops read as the textbook algorithm
 #[allow(clippy::needless_range_loop)]
-fn solve_spd_with(
+pub(crate) fn solve_spd_with(
     a: [[f64; BLOCKS]; BLOCKS],
     b: [f64; BLOCKS],
     inverse: bool,
