@@ -207,6 +207,9 @@ class Tank:
     mean_use_kg_day: float = 300.0
     profile: list = field(default_factory=list)
     day_factor: list = field(default_factory=list)
+    # the day-to-day scatter (lognormal sd) and the seasonal swing (amplitude) of its use, for the truth
+    use_day_sd: float = 0.0
+    use_season_amp: float = 0.0
     vehicles: list = field(default_factory=list)
     weights: list = field(default_factory=list)
     pressure_tau_h: float = 12.0
@@ -347,6 +350,7 @@ def build_fleet(cfg: Settings, rng: random.Random, fluids: dict, t0: float, t1: 
                 x *= 0.15
             fac.append(x)
         t.day_factor = fac
+        t.use_day_sd, t.use_season_amp = sig, amp
 
     # trailers: each carries one product; 2-4 per fluid, dealt to 3-4 carriers
     by_fluid = {}
@@ -881,6 +885,7 @@ def write_outputs(out_dir, cfg, sites, tanks, vehicles, fills, readings_rows, tr
             "use_profile": t.site.kind, "reading_habit": t.site.habit, "utc_offset_h": t.site.utc_offset_h,
             "gauge_noise_percent_of_span": 100 * t.noise_frac, "gauge_span_error_percent": 100 * t.span_err,
             "gauge_zero_error_percent_of_span": 100 * t.zero_err, "gauge_fault": t.fault or None,
+            "use_day_sd": t.use_day_sd, "use_season_amp": t.use_season_amp,
             "vehicles": [v.name for v in t.vehicles],
         } for t in tanks],
         "vehicles": [{

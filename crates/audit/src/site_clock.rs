@@ -1,11 +1,11 @@
 //! The site's clock when the site names no time zone: the whole-hour offset from UTC whose days,
 //! nights and weekends explain the tank's use best.
 //!
-//! The use model's blocks (weekday day and night, Saturday, Sunday) are the site's. A site recorded
-//! without a time zone was read as UTC, so at a site five hours west a laboratory's working day
-//! fell half in the model's day and half in its night, and a Saturday began on Friday evening: the
-//! use between two readings was mispredicted by a good part of a day's use where the readings fell
-//! at different hours. Every third whole-hour offset from −12 to +14 h, then the two either side of
+//! The use model's blocks (the quarters of a weekday, Saturday, Sunday) are the site's. A site
+//! recorded without a time zone was read as UTC, so at a site five hours west a laboratory's working
+//! day fell half in the model's day and half in its night (when the model had a day and a night
+//! block), and a Saturday began on Friday evening: the use between two readings was mispredicted
+//! by a good part of a day's use where the readings fell at different hours. Every third whole-hour offset from −12 to +14 h, then the two either side of
 //! the best, is fitted to the stretches between readings (at most [`MAX_STRETCHES`], every k-th of
 //! a longer record) by weighted least squares (one rate per block, each stretch weighted by the inverse of
 //! its length, its squared standardized residual held within 3² of the UTC fit's robust scale so
@@ -17,7 +17,12 @@
 //! distribution), else the clock stays UTC.
 
 use crate::stats::{mad_sigma, normal_quantile};
-use crate::use_model::{BLOCKS, Observed, solve_spd_with};
+use crate::use_model::{Observed, solve_spd_with};
+
+/// The clock is chosen on six blocks, a coarser week than the use model's (a weekday's day and
+/// night, Saturday's and Sunday's): a day against a night is what tells one clock from another, and
+/// the quarters of a weekday would follow a shifted shift without it.
+const BLOCKS: usize = 6;
 
 const HOUR_MS: i64 = 3_600_000;
 const WEEK_H: usize = 168;
@@ -42,7 +47,7 @@ fn is_candidate(o: i32) -> bool {
 }
 
 /// The block of an hour of the week counted from Thursday 00:00 (1970-01-01 was a Thursday), in
-/// the use model's order: weekday day, weekday night, Saturday day and night, Sunday day and night.
+/// this order: weekday day, weekday night, Saturday day and night, Sunday day and night.
 fn block_of(hour_of_week: usize) -> usize {
     let base = match hour_of_week / 24 {
         2 => 2,
