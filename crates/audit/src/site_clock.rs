@@ -5,16 +5,16 @@
 //! recorded without a time zone was read as UTC, so at a site five hours west a laboratory's working
 //! day fell half in the model's day and half in its night (when the model had a day and a night
 //! block), and a Saturday began on Friday evening: the use between two readings was mispredicted
-//! by a good part of a day's use where the readings fell at different hours. Every third whole-hour offset from −12 to +14 h, then the two either side of
-//! the best, is fitted to the stretches between readings (at most [`MAX_STRETCHES`], every k-th of
-//! a longer record) by weighted least squares (one rate per block, each stretch weighted by the inverse of
-//! its length, its squared standardized residual held within 3² of the UTC fit's robust scale so
-//! that a leak or an unlogged fill does not choose the clock), among those whose weekday day uses
-//! at least as much as its night (a clock twelve hours away swaps the two and, read on weekdays,
-//! fits alike; a customer's work is by day); the best is taken when its
-//! likelihood ratio against UTC, n ln(S_UTC / S_best), exceeds the χ²₁ quantile at 0.01 over the
-//! 26 other candidates (Bonferroni; Wilks, Ann. Math. Statist. 9, 1938, for the ratio's χ²
-//! distribution), else the clock stays UTC.
+//! by a good part of a day's use where the readings fell at different hours. Every third whole-hour
+//! offset from −12 to +14 h, then the two either side of the best, is fitted to the stretches
+//! between readings (at most [`MAX_STRETCHES`], every k-th of a longer record) by weighted least
+//! squares (one rate per block, each stretch weighted by the inverse of its length, its squared
+//! standardized residual held within 3² of the UTC fit's robust scale so that a leak or an unlogged
+//! fill does not choose the clock), among those whose weekday day uses at least as much as its
+//! night (a clock twelve hours away swaps the two and, read on weekdays, fits alike; a customer's
+//! work is by day); the best is taken when its likelihood ratio against UTC, n ln(S_UTC / S_best),
+//! exceeds the χ²₁ quantile at 0.01 over the 26 other candidates (Bonferroni; Wilks, Ann. Math.
+//! Statist. 9, 1938, for the ratio's χ² distribution), else the clock stays UTC.
 
 use crate::stats::{mad_sigma, normal_quantile};
 use crate::use_model::{Observed, solve_spd_with};
@@ -26,7 +26,7 @@ const BLOCKS: usize = 6;
 
 const HOUR_MS: i64 = 3_600_000;
 const WEEK_H: usize = 168;
-/// The day block's hours, as in the use model.
+/// The day block's hours (the use model's weekend day; its weekday's middle two quarters).
 const DAY_HOURS: std::ops::Range<usize> = 6..18;
 /// Offsets tried, hours east of UTC (the zones in use run from −12 to +14).
 const OFFSETS: std::ops::RangeInclusive<i32> = -12..=14;
