@@ -74,6 +74,7 @@ mod balance;
 mod between_fills;
 mod calibration;
 mod effects;
+mod fault_level;
 mod fleet;
 mod gauge_faults;
 mod loss_scan;
