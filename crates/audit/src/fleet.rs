@@ -22,7 +22,8 @@ const STEP_LOSS_MARGIN_MS: i64 = 86_400_000;
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize)]
 #[serde(rename_all = "kebab-case")]
 pub enum GaugeStatus {
-    /// No significant trend.
+    /// No significant trend or step, or one that the tank's other vehicles' fills show
+    /// significantly less of (a vehicle's, not the gauge's).
     Ok,
     /// A significant trend beyond the smallest reported drift.
     Drift,
@@ -115,7 +116,7 @@ pub struct FleetAudit {
 /// horizontal tank from half full can move its readings' span masses by little).
 pub(crate) const MIN_SENSITIVITY: f64 = 0.05;
 
-const GAUGE_TEST: &str = "(gained+drawn)/billed over time, vehicle effects removed, sizes over the fills' mean sensitivity to the span: weighted least-squares slope t-test (drift) and best split of two means with a Bonferroni-adjusted t-test (step), the better-fitting model named; Holm across tanks";
+const GAUGE_TEST: &str = "(gained+drawn)/billed over time, vehicle effects removed, sizes over the fills' mean sensitivity to the span: weighted least-squares slope t-test (drift) and best split of two means with a Bonferroni-adjusted t-test (step), the better-fitting model named; Holm across tanks; a fault that the fills without one vehicle show significantly less of, and not of their own, taken for that vehicle's";
 
 /// A balance that can speak for its gauge and its vehicle: judged from two readings, and not spanning
 /// a finding between fills of its tank (a leak's or an unlogged fill's mass is in its gain, not the
@@ -162,13 +163,13 @@ fn drop_losses_at_step(findings: &mut Vec<Finding>, at_ms: i64) {
 /// With the Type A step on, the fleet is judged in two passes. The first measures the balances'
 /// precision, each tank's ratios about their own line in time (a gauge drifting or stepped, not yet
 /// found, would pass for its tank's noise and hide from its own test: on 94 independent fleets
-/// drifting gauges found 69 -> 81, stepped 75 -> 79), and tests the gauges; the second measures the precision again
-/// from the tanks' own balances, each faulty tank's fills now about its level under the fault (a
-/// step's two levels, a drift's line), and judges every fill with the first pass's gauges. Measured
-/// about one level for the year, a fault passed for its tank's reading and use noise and widened
-/// every limit there: four fills in a hundred at faulty gauges inconclusive against one in a
-/// hundred elsewhere (24 independent fleets). Without a fault the second pass is the first's
-/// judgement unchanged.
+/// drifting gauges found 69 → 81, stepped 75 → 79), and tests the gauges; the second measures the
+/// precision again from the tanks' own balances, each faulty tank's fills now about its level under
+/// the fault (a step's two levels, a drift's line), every other tank's about one level, and judges
+/// every fill with the first pass's gauges. Measured about one level for the year, a fault passed
+/// for its tank's reading and use noise and widened every limit there: four fills in a hundred at
+/// faulty gauges inconclusive against one in a hundred elsewhere (24 independent fleets). Without a
+/// fault the second pass judges the fills as one pass about one level would.
 pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
     let mut tanks = tanks;
     tanks.sort_by(|a, b| a.tank.cmp(&b.tank));

@@ -3,7 +3,9 @@
 //! noise, each tank's reading noise and its use model's, with the stated figures as priors.
 //!
 //! For a balance f of tank t and vehicle v, with its vehicle's and tank's systematic levels removed
-//! (the residual e inflated by the leverage of those levels, 1 / (1 − 1/n_t − 1/n_v)),
+//! (the residual e inflated by the leverage of those levels, 1 / (1 − k/n_t − 1/n_v), k = 1 for a
+//! tank's one level, 2 where its level is a line in time or a found fault's shape fitted to the same
+//! balances: a step's two levels, a drift's line),
 //! E[e²] = s_t R_f + m_v² b_f² + q_t U_f, where R_f is the readings' stated variance (GUM), U_f the use
 //! model's, b_f the billed mass, s_t and q_t a tank's factors on them and m_v a vehicle's meter noise
 //! (fraction). Each is estimated by the method of moments from the balances it dominates — s_t from
@@ -66,9 +68,10 @@ fn readings_var(b: &Balance) -> f64 {
 /// `shape` gives, for a tank whose gauge was found faulty, its level over time under the fault: its
 /// balances' ratios are measured about that level (a step's two levels, a drift's line) rather
 /// than one level for the year, so the fault does not pass for the tank's noise. With `lines`,
-/// every other tank's ratios are measured about their own robust line in time (the gauges' tests
-/// then see a fault not yet found at the tank's real precision); without, about one level (the
-/// fills' verdicts: a slow error of the tank's balances that is no gauge fault is its noise).
+/// every other tank with [`TREND_MIN`] balances over [`TREND_MIN_DAYS`] or more has its ratios
+/// measured about its own robust line in time (the gauges' tests then see a fault not yet found at
+/// the tank's real precision); without, about one level (the fills' verdicts: a slow error of the
+/// tank's balances that is no gauge fault is its noise).
 pub(crate) fn refine(
     tanks: &mut [TankAudit],
     opts: &AuditOptions,
@@ -112,7 +115,7 @@ pub(crate) fn refine(
     // each tank's level as a line in time where no fault's shape is known: a gauge drifting or
     // stepped, not yet found, would otherwise pass for its tank's reading noise, and that noise
     // would hide the fault from its own test (measured about one level, the fills at a gauge
-    // drifting 4 %/year scatter by ~1.2 % more than they should)
+    // drifting 4 %/year carry an extra spread of ~1.15 %, in quadrature)
     let trend = if lines {
         trends(&rows, &when, &effects, shape, tanks.len())
     } else {
@@ -169,8 +172,10 @@ pub(crate) fn refine(
                 let level = effects.tank.get(ti)? + effects.vehicle.get(vi)?;
                 // the fitted level includes this balance, so its residual falls short of the error
                 // by about the leverage 1/n_tank + 1/n_vehicle
-                // (and its line's slope, where one was fitted)
-                let per_tank = if trend.get(ti).is_some_and(Option::is_some) {
+                // (and its line's slope, or its found fault's second parameter, where fitted)
+                let per_tank = if trend.get(ti).is_some_and(Option::is_some)
+                    || shape.get(ti).is_some_and(Option::is_some)
+                {
                     2.0
                 } else {
                     1.0
