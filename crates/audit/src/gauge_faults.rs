@@ -135,6 +135,15 @@ fn rss(pts: &[Point], mean: f64) -> f64 {
     pts.iter().map(|p| p.2 * (p.1 - mean).powi(2)).sum()
 }
 
+/// The points with Huber's weights of the two-means model split before `k` folded in.
+fn robust_split(pts: &[Point], k: usize) -> Vec<Point> {
+    robust(pts, |q| {
+        let (m1, _) = weighted_mean(&q[..k]);
+        let (m2, _) = weighted_mean(&q[k..]);
+        Some((0..q.len()).map(|i| if i < k { m1 } else { m2 }).collect())
+    })
+}
+
 fn as_line(q: &[Point]) -> Vec<(f64, f64, f64)> {
     q.iter().map(|p| (p.0 as f64 / YEAR_MS, p.1, p.2)).collect()
 }
@@ -145,6 +154,8 @@ pub(crate) struct RobustLine {
     fit: LineFit,
     /// Σ w e² about the line.
     rss: f64,
+    /// Σ w (x − x̄)², x in years, with the robust weights.
+    sxx: f64,
 }
 
 impl RobustLine {
@@ -163,7 +174,15 @@ impl RobustLine {
             .iter()
             .map(|p| p.2 * (p.1 - fit.intercept - fit.slope * p.0).powi(2))
             .sum();
-        Some(RobustLine { fit, rss })
+        let sw: f64 = line_pts.iter().map(|p| p.2).sum();
+        let xm = line_pts.iter().map(|p| p.2 * p.0).sum::<f64>() / sw;
+        let sxx = line_pts.iter().map(|p| p.2 * (p.0 - xm).powi(2)).sum();
+        Some(RobustLine { fit, rss, sxx })
+    }
+
+    /// The slope (per year) and its standard error at the weighted scatter's variance `s2`.
+    fn slope_at(&self, s2: f64) -> (f64, f64) {
+        (self.fit.slope, (s2 / self.sxx).sqrt())
     }
 
     /// The line's value at `t_ms`.
@@ -255,16 +274,9 @@ pub(crate) fn test(
             candidates = (STEP_SIDE..=n - STEP_SIDE).collect();
         }
         let mut best: Option<(usize, f64, f64, f64)> = None; // split, rss, p, its variance
-        let split_fit = |k: usize| {
-            robust(pts, |q| {
-                let (m1, _) = weighted_mean(&q[..k]);
-                let (m2, _) = weighted_mean(&q[k..]);
-                Some((0..q.len()).map(|i| if i < k { m1 } else { m2 }).collect())
-            })
-        };
         let mut best_pts: Vec<Point> = Vec::new();
         for &k in &candidates {
-            let q = split_fit(k);
+            let q = robust_split(pts, k);
             let (m1, w1) = weighted_mean(&q[..k]);
             let (m2, w2) = weighted_mean(&q[k..]);
             let r = rss(&q[..k], m1) + rss(&q[k..], m2);
@@ -395,11 +407,7 @@ pub(crate) fn holds_without_each_vehicle(
             if k < 2 || rest.len() - k < 2 {
                 return true;
             }
-            let q = robust(&rest, |q| {
-                let (m1, _) = weighted_mean(&q[..k]);
-                let (m2, _) = weighted_mean(&q[k..]);
-                Some((0..q.len()).map(|i| if i < k { m1 } else { m2 }).collect())
-            });
+            let q = robust_split(&rest, k);
             let (m1, w1) = weighted_mean(&q[..k]);
             let (m2, w2) = weighted_mean(&q[k..]);
             let se = (step_s2 * (1.0 / w1 + 1.0 / w2)).sqrt();
@@ -411,25 +419,10 @@ pub(crate) fn holds_without_each_vehicle(
             if rest.len() < 4 {
                 return true;
             }
-            let q = as_line(&robust(&rest, |q| {
-                let fit = weighted_line(&as_line(q))?;
-                Some(
-                    q.iter()
-                        .map(|p| fit.intercept + fit.slope * p.0 as f64 / YEAR_MS)
-                        .collect(),
-                )
-            }));
-            let Some(fit) = weighted_line(&q) else {
+            let Some((rest_slope, se)) = RobustLine::of(&rest).map(|l| l.slope_at(line_s2)) else {
                 return true;
             };
-            let sw: f64 = q.iter().map(|p| p.2).sum();
-            let xm = q.iter().map(|p| p.2 * p.0).sum::<f64>() / sw;
-            let sxx: f64 = q.iter().map(|p| p.2 * (p.0 - xm).powi(2)).sum();
-            (
-                fit.slope * slope.signum(),
-                slope.abs(),
-                (line_s2 / sxx).sqrt(),
-            )
+            (rest_slope * slope.signum(), slope.abs(), se)
         };
         let (less, own) = ((rest_size - size) / se, rest_size / se);
         // no verdict without a finite standard error
