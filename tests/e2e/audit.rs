@@ -82,7 +82,9 @@ fn explanation_numbers_are_in_the_json() {
             .map(|s| s.trim_end_matches('.'))
             .filter(|s| s.chars().any(|c| c.is_ascii_digit()))
             .collect();
-        assert!(numbers.len() >= 4, "{text}");
+        // a fill with no reading on one side names the window and the ticket only
+        let bracketed = !f["before_hours"].is_null() && !f["after_hours"].is_null();
+        assert!(numbers.len() >= if bracketed { 4 } else { 2 }, "{text}");
         for n in numbers {
             let n = n.trim_start_matches('-');
             assert!(
