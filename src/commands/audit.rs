@@ -322,6 +322,17 @@ fn table(out: &mut impl Write, fleet: &FleetAudit) -> Result<()> {
         "(seen from: the smallest drift of the span, %/year, and step, %, that the test finds with \
          probability 95 % on these fills; a smaller fault can pass unseen)"
     )?;
+    for g in &fleet.gauges {
+        if let Some(v) = &g.carried_by_vehicle {
+            writeln!(
+                out,
+                "{}: ok, the trend the test found (p {} after Holm) is in vehicle {v}'s fills, not the \
+                 others'; see its deliveries",
+                g.tank,
+                opt(g.p_adjusted, 4)
+            )?;
+        }
+    }
     let clocks: Vec<String> = fleet
         .tanks
         .iter()

@@ -72,6 +72,10 @@ pub struct GaugeFinding {
     pub ner_setting_percent_per_day: f64,
     /// Fitted NER, % per day.
     pub ner_fitted_percent_per_day: Option<f64>,
+    /// A fault the test found that the tank's other fills, this vehicle's left out, show
+    /// significantly less of and not of their own: taken for this vehicle's deliveries (a vehicle
+    /// short on some fills), and the gauge left `ok`.
+    pub carried_by_vehicle: Option<String>,
 }
 
 /// One tank's summary in the fleet audit.
@@ -399,6 +403,7 @@ fn fleet_pass(
             test: GAUGE_TEST,
             ner_setting_percent_per_day: t.ner_setting_percent_per_day,
             ner_fitted_percent_per_day: t.ner_fitted_percent_per_day,
+            carried_by_vehicle: None,
         };
         let mut found = None;
         if decided.is_none() && testable(pts) {
@@ -450,14 +455,10 @@ fn fleet_pass(
         // a fault carried by one vehicle's fills is that vehicle's, not the gauge's
         if let (Some(pts), Some(vs)) = (tank_points.get(*gi), tank_vehicles.get(*gi))
             && g.status != GaugeStatus::Ok
-            && !gauge_faults::holds_without_each_vehicle(
-                pts,
-                vs,
-                &ft,
-                g.status == GaugeStatus::Step,
-            )
+            && let Some(v) = gauge_faults::carried_by(pts, vs, &ft, g.status == GaugeStatus::Step)
         {
             g.status = GaugeStatus::Ok;
+            g.carried_by_vehicle = vehicle_names.get(v).map(|n| n.0.clone());
         }
     }
     // a second judgement keeps the first one's gauges: their tests ran on precision measured
@@ -657,6 +658,7 @@ mod tests {
             test: GAUGE_TEST,
             ner_setting_percent_per_day: 0.0,
             ner_fitted_percent_per_day: None,
+            carried_by_vehicle: None,
         }
     }
 

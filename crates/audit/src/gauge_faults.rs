@@ -368,30 +368,30 @@ const WITHOUT_VEHICLE_ALPHA: f64 = 0.01;
 /// if less of it than in all of them.
 const REST_OWN_ALPHA: f64 = 0.05;
 
-/// Whether the fault of `ft` (the step when `step`, else the drift) holds when each vehicle's
-/// points are left out in turn (`vehicle` gives each point's): the same model fitted robustly to
-/// the rest, its size in the fault's direction at the scatter the fault was judged at. It fails
-/// for a vehicle when that size less the fault's is below the one-sided
+/// The vehicle whose fills carry the fault of `ft` (the step when `step`, else the drift), if one
+/// does: each vehicle's points left out in turn (`vehicle` gives each point's), the same model
+/// fitted robustly to the rest, its size in the fault's direction at the scatter the fault was
+/// judged at. A vehicle carries it when, without its points, that size less the fault's is below
+/// the one-sided
 /// [`WITHOUT_VEHICLE_ALPHA`] quantile of its standard error and the size itself not above the
 /// [`REST_OWN_ALPHA`] one. A vehicle whose absence leaves too few points to fit (under two either
-/// side of a step, under four for a line) does not count against it; nor does a tank filled by
-/// one vehicle.
-pub(crate) fn holds_without_each_vehicle(
+/// side of a step, under four for a line) does not carry it; nor does the one vehicle of a tank.
+pub(crate) fn carried_by(
     pts: &[Point],
     vehicle: &[usize],
     ft: &FaultTest,
     step: bool,
-) -> bool {
+) -> Option<usize> {
     let mut vs: Vec<usize> = vehicle.to_vec();
     vs.sort_unstable();
     vs.dedup();
     if vs.len() < 2 || vehicle.len() != pts.len() {
-        return true;
+        return None;
     }
     let z_less = normal_quantile(WITHOUT_VEHICLE_ALPHA);
     let z_own = normal_quantile(1.0 - REST_OWN_ALPHA);
     let (line_s2, step_s2, split) = ft.basis;
-    vs.iter().all(|&v| {
+    let holds = |v: usize| {
         let rest: Vec<Point> = pts
             .iter()
             .zip(vehicle)
@@ -427,7 +427,8 @@ pub(crate) fn holds_without_each_vehicle(
         let (less, own) = ((rest_size - size) / se, rest_size / se);
         // no verdict without a finite standard error
         !(se.is_finite() && se > 0.0) || less.is_nan() || less >= z_less || own > z_own
-    })
+    };
+    vs.into_iter().find(|&v| !holds(v))
 }
 
 /// Two-sided p of a t statistic; the normal's with infinite degrees of freedom.
@@ -555,24 +556,33 @@ mod tests {
             } else {
                 t.p_drift.unwrap_or(1.0)
             };
-            (p, holds_without_each_vehicle(pts, &vehicle, &t, step))
+            (p, carried_by(pts, &vehicle, &t, step))
         };
         let late = |i: usize| i >= n / 2;
         let by_vehicle = make(&|i| if late(i) && i % 2 == 1 { -0.035 } else { 0.0 });
-        let (p, holds) = judge(&by_vehicle, true);
-        assert!(p < 0.05 && !holds, "vehicle's step: p {p}, holds {holds}");
-        let (p, holds) = judge(&make(&|i| if late(i) { -0.03 } else { 0.0 }), true);
-        assert!(p < 1e-6 && holds, "gauge's step: p {p}, holds {holds}");
+        let (p, by) = judge(&by_vehicle, true);
+        assert!(
+            p < 0.05 && by == Some(1),
+            "vehicle's step: p {p}, carried by {by:?}"
+        );
+        let (p, by) = judge(&make(&|i| if late(i) { -0.03 } else { 0.0 }), true);
+        assert!(
+            p < 1e-6 && by.is_none(),
+            "gauge's step: p {p}, carried by {by:?}"
+        );
         let both = |i: usize| match (late(i), i % 2) {
             (true, 1) => -0.06,
             (true, _) => -0.03,
             _ => 0.0,
         };
-        let (p, holds) = judge(&make(&both), true);
-        assert!(p < 0.01 && holds, "both: p {p}, holds {holds}");
+        let (p, by) = judge(&make(&both), true);
+        assert!(p < 0.01 && by.is_none(), "both: p {p}, carried by {by:?}");
         let years = |i: usize| (i as i64 * fortnight) as f64 / YEAR_MS;
-        let (p, holds) = judge(&make(&|i| -0.06 * years(i)), false);
-        assert!(p < 1e-6 && holds, "gauge's drift: p {p}, holds {holds}");
+        let (p, by) = judge(&make(&|i| -0.06 * years(i)), false);
+        assert!(
+            p < 1e-6 && by.is_none(),
+            "gauge's drift: p {p}, carried by {by:?}"
+        );
     }
 
     /// Twelve monthly fills at ratio 1.00, then 1.00 − 3 % from the seventh (exact): the step fits

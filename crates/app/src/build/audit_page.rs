@@ -286,6 +286,7 @@ pub fn audit_view(
                 g.drift_detectable_percent_per_year,
                 g.step_detectable_percent,
             ),
+            carried_by_vehicle: g.carried_by_vehicle.clone(),
             points,
             drift_line,
             step_lines,

@@ -256,6 +256,8 @@ pub struct GaugeLine {
     pub drift_line: Option<[[f64; 2]; 2]>,
     /// The step the test found: the mean before and after, each over its span of days.
     pub step_lines: Vec<[[f64; 2]; 2]>,
+    /// The vehicle whose fills alone carry the fault the test found (taken for its deliveries).
+    pub carried_by_vehicle: Option<String>,
 }
 
 /// One finding between fills.

@@ -233,15 +233,22 @@ const VEHICLE_COLOURS: [egui::Color32; 6] = [
 /// with what the test found.
 fn gauge_plot(ui: &mut Ui, g: &crate::view::GaugeLine) {
     use egui_plot::{HLine, Legend, Line, Plot, Points};
+    let found = match (
+        &g.carried_by_vehicle,
+        g.drift_line.is_some(),
+        g.step_lines.is_empty(),
+    ) {
+        (Some(v), _, _) => format!(
+            "no gauge fault: the trend the test found is in vehicle {v}'s fills, not the others' (see its deliveries)"
+        ),
+        (None, true, _) => "the drift the test found, through the fills' mean".to_owned(),
+        (None, false, false) => "the step the test found: the mean before and after".to_owned(),
+        _ => "no fault found".to_owned(),
+    };
     ui.label(
         RichText::new(format!(
-            "{}: each fill's (gained + drawn) / billed, %, by vehicle; {}",
-            g.tank,
-            match (g.drift_line.is_some(), g.step_lines.is_empty()) {
-                (true, _) => "the drift the test found, through the fills' mean",
-                (false, false) => "the step the test found: the mean before and after",
-                _ => "no fault found",
-            }
+            "{}: each fill's (gained + drawn) / billed, %, by vehicle; {found}",
+            g.tank
         ))
         .strong(),
     );
