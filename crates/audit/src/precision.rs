@@ -121,23 +121,18 @@ pub(crate) fn refine(
     } else {
         Vec::new()
     };
-    let ratio_of = |ti: usize, b: &Balance| -> f64 {
-        ratio_of(ti, b)
-            - trend
-                .get(ti)
-                .and_then(Option::as_ref)
-                .map_or(0.0, |l| l.at(b.start_ms))
+    // a tank's line at a time (0 where it has none)
+    let line_at = |ti: usize, t_ms: i64| {
+        trend
+            .get(ti)
+            .and_then(Option::as_ref)
+            .map_or(0.0, |l| l.at(t_ms))
     };
+    let ratio_of = |ti: usize, b: &Balance| -> f64 { ratio_of(ti, b) - line_at(ti, b.start_ms) };
     let rows: Vec<Row> = rows
         .iter()
         .zip(&when)
-        .map(|(r, w)| {
-            let off = trend
-                .get(r.0)
-                .and_then(Option::as_ref)
-                .map_or(0.0, |l| l.at(w.0));
-            (r.0, r.1, r.2 - off)
-        })
+        .map(|(r, w)| (r.0, r.1, r.2 - line_at(r.0, w.0)))
         .collect();
     let effects = two_way(&rows, tanks.len(), names.len());
     // the meters' priors
