@@ -455,7 +455,8 @@ fn fleet_pass(
         // a fault carried by one vehicle's fills is that vehicle's, not the gauge's
         if let (Some(pts), Some(vs)) = (tank_points.get(*gi), tank_vehicles.get(*gi))
             && g.status != GaugeStatus::Ok
-            && let Some(v) = gauge_faults::carried_by(pts, vs, &ft, g.status == GaugeStatus::Step)
+            && let Some(v) =
+                gauge_faults::carried_by(pts, vs, &ft, g.status == GaugeStatus::Step, prior)
         {
             g.status = GaugeStatus::Ok;
             g.carried_by_vehicle = vehicle_names.get(v).map(|n| n.0.clone());
