@@ -104,11 +104,7 @@ fn robust(pts: &[Point], fit: impl Fn(&[Point]) -> Option<Vec<f64>>) -> Vec<Poin
         let Some(fitted) = fit(&cur) else {
             break;
         };
-        let z: Vec<f64> = pts
-            .iter()
-            .zip(&fitted)
-            .map(|(p, f)| (p.1 - f) * p.2.sqrt())
-            .collect();
+        let z = scaled_residuals(pts, fitted.into_iter());
         let scale = mad_sigma(&z).unwrap_or(0.0);
         if scale <= 0.0 {
             break;
@@ -136,15 +132,16 @@ fn rss(pts: &[Point], mean: f64) -> f64 {
     pts.iter().map(|p| p.2 * (p.1 - mean).powi(2)).sum()
 }
 
-/// Residuals about the two means, `m1` before `k` and `m2` from it, scaled as [`huber_s2`] takes them.
-fn split_residuals(pts: &[Point], k: usize, m1: f64, m2: f64) -> Vec<f64> {
-    scaled_residuals(pts, (0..pts.len()).map(|i| if i < k { m1 } else { m2 }))
-}
-
-/// The points' own weights (not the robust ones) before `k` and from it.
-fn own_weights(pts: &[Point], k: usize) -> (f64, f64) {
+/// The standard error of the difference of two means of `pts` split before `k`, `m1` and `m2` (the
+/// robust fit's), at the M-estimate's variance ([`huber_s2`]) floored at the fleet's moderated
+/// `prior`, with the points' own weights (not the robust ones); and that variance and its degrees
+/// of freedom.
+fn split_se(pts: &[Point], k: usize, m1: f64, m2: f64, prior: Option<Prior>) -> (f64, f64, f64) {
+    let z = scaled_residuals(pts, (0..pts.len()).map(|i| if i < k { m1 } else { m2 }));
+    let (s2, df) = Prior::moderate(prior, huber_s2(&z, 2), pts.len() as f64 - 2.0);
     let sum = |q: &[Point]| q.iter().map(|p| p.2).sum::<f64>();
-    (sum(&pts[..k]), sum(&pts[k..]))
+    let (w1, w2) = (sum(&pts[..k]), sum(&pts[k..]));
+    ((s2 * (1.0 / w1 + 1.0 / w2)).sqrt(), s2, df)
 }
 
 /// The points with Huber's weights of the two-means model split before `k` folded in.
@@ -198,7 +195,8 @@ fn huber_s2(z: &[f64], params: usize) -> f64 {
     k * k * scale * scale * psi2 / dof / (m * m)
 }
 
-/// Residuals of `pts` about `fitted`, each times the square root of its (precision) weight.
+/// Residuals of `pts` about `fitted`, each times the square root of its (precision) weight (the
+/// residuals [`robust`] weights and [`huber_s2`] takes).
 fn scaled_residuals(pts: &[Point], fitted: impl Iterator<Item = f64>) -> Vec<f64> {
     pts.iter()
         .zip(fitted)
@@ -357,10 +355,7 @@ pub(crate) fn test(
             let size = m2 - m1;
             // its test: the difference at the M-estimate's variance (`huber_s2`), Bonferroni over
             // the candidate splits
-            let z = split_residuals(pts, k, m1, m2);
-            let (s2, df) = Prior::moderate(prior, huber_s2(&z, 2), n as f64 - 2.0);
-            let (w1, w2) = own_weights(pts, k);
-            let se = (s2 * (1.0 / w1 + 1.0 / w2)).sqrt();
+            let (se, s2, df) = split_se(pts, k, m1, m2, prior);
             let t = if se > 0.0 { size / se } else { 0.0 };
             let p_fills = (candidates.len() as f64 * t_p(t, df)).min(1.0);
             // the readings' own evidence: the largest jump of the step's sign between the two fills
@@ -480,10 +475,7 @@ pub(crate) fn carried_by(
             let q = robust_split(&rest, k);
             let (m1, _) = weighted_mean(&q[..k]);
             let (m2, _) = weighted_mean(&q[k..]);
-            let z = split_residuals(&rest, k, m1, m2);
-            let (s2, df) = Prior::moderate(prior, huber_s2(&z, 2), rest.len() as f64 - 2.0);
-            let (w1, w2) = own_weights(&rest, k);
-            let se = (s2 * (1.0 / w1 + 1.0 / w2)).sqrt();
+            let (se, _, df) = split_se(&rest, k, m1, m2, prior);
             ((m2 - m1) * size.signum(), size.abs(), se, df)
         } else {
             let Some((slope, _)) = ft.drift else {
