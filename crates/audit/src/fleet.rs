@@ -7,7 +7,7 @@ use serde::Serialize;
 use crate::AuditOptions;
 use crate::balance::set_verdict;
 use crate::calibration::{self, Obs, ScaleModel};
-use crate::effects::{Row, groups, two_way};
+use crate::effects::{Row, groups, two_way_apart};
 pub(crate) use crate::fault_level::FaultLevel;
 use crate::gauge_faults::{self, FaultTest, Point, RobustLine};
 use crate::records::{Balance, Finding, FindingKind, Forecast, GaugeStep, TankAudit};
@@ -493,7 +493,7 @@ fn fleet_pass(
         .copied()
         .filter(|r| !faulty[r.0])
         .collect();
-    let kept_fit = two_way(&kept_raised, tanks.len(), vehicle_names.len());
+    let kept_fit = two_way_apart(&kept_raised, tanks.len(), vehicle_names.len(), &apart);
     let kept_of_vehicle = groups(kept.iter().map(|r| r.1), vehicle_names.len());
 
     // each gauge's scale from the tank's other fills, vehicle effects removed; the rows of faulty

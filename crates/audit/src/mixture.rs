@@ -18,7 +18,7 @@
 //! early in the year can still make a gauge look drifting (one fleet of ten of the `current`
 //! profile).
 
-use crate::effects::{Effects, Row, two_way};
+use crate::effects::{Effects, Row, two_way, two_way_apart};
 
 /// Rounds of fitting the set-apart vehicles' mixtures and the tanks' levels in turn.
 const ROUNDS: usize = 3;
@@ -36,7 +36,8 @@ pub(crate) struct Fitted {
 
 /// Fit the mixtures of the vehicles `apart` and the tanks' levels in turn (a few rounds), so that a
 /// vehicle's short deliveries do not pull the levels of the tanks it fills most; `u` are the rows'
-/// ratios' standard uncertainties. Without a vehicle apart, the plain joint fit.
+/// ratios' standard uncertainties; the vehicles apart are left out of their groups' centres (they
+/// are no reference for the honest ones). Without a vehicle apart, the plain joint fit.
 pub(crate) fn with_levels(
     rows: &[Row],
     u: &[f64],
@@ -78,7 +79,7 @@ pub(crate) fn with_levels(
                 (r.0, r.1, r.2 + up)
             })
             .collect();
-        levels = two_way(&raised, n_tanks, n_vehicles);
+        levels = two_way_apart(&raised, n_tanks, n_vehicles, apart);
     }
     Fitted {
         levels,
@@ -217,8 +218,8 @@ mod tests {
 
     /// Two tanks at level 1 (exact ratios, u = 1 %): vehicle 0 fills tank 0 thirty times, short by
     /// 3.5 % on every other fill, and tank 1 ten times (honest); vehicle 1 fills each tank ten
-    /// times, honest. The joint fit alone pulls tank 0's level down (its effects centred on the
-    /// median vehicle leave part of vehicle 0's shortfall there); with vehicle 0 set apart and
+    /// times, honest. The joint fit alone pulls tank 0's level down (two vehicles' effects centred
+    /// on their mean leave part of vehicle 0's shortfall there); with vehicle 0 set apart and
     /// fitted as a mixture, tank 0's level is tank 1's to 0.1 %, its short fills are raised to 1 and
     /// its honest ones by under 0.05 % (constructed example).
     #[test]
