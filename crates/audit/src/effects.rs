@@ -297,10 +297,6 @@ pub(crate) fn two_way_apart(
     const HUBER_C: f64 = 1.5;
     let by_tank = groups(rows.iter().map(|r| r.0), tanks);
     let by_vehicle = groups(rows.iter().map(|r| r.1), vehicles);
-    let resid_scale = |a: &[f64], b: &[f64]| -> f64 {
-        let resid: Vec<f64> = rows.iter().map(|r| r.2 - a[r.0] - b[r.1]).collect();
-        mad_sigma(&resid).unwrap_or(0.0).max(1e-4)
-    };
     let comp = components(rows, tanks, vehicles);
     let mut a = vec![1.0; tanks];
     let mut b = vec![0.0; vehicles];
@@ -328,7 +324,8 @@ pub(crate) fn two_way_apart(
         info
     };
     let info_plain = no_reference(information(rows, &vec![1.0; rows.len()], tanks, vehicles));
-    let scale = resid_scale(&a, &b);
+    let resid: Vec<f64> = rows.iter().map(|r| r.2 - a[r.0] - b[r.1]).collect();
+    let scale = mad_sigma(&resid).unwrap_or(0.0).max(1e-4);
     centre(&mut b, &mut a, &info_plain, scale, &comp);
     // Huber IRLS
     let mut w = vec![1.0; rows.len()];
@@ -356,15 +353,16 @@ pub(crate) fn two_way_apart(
             }
         }
     }
-    let info = no_reference(information(rows, &w, tanks, vehicles));
-    let scale = resid_scale(&a, &b);
-    centre(&mut b, &mut a, &info, scale, &comp);
+    // the residuals' scale, which the centre leaves as it is
     let resid: Vec<f64> = rows.iter().map(|r| r.2 - a[r.0] - b[r.1]).collect();
+    let scale = mad_sigma(&resid).unwrap_or(0.0);
+    let info = no_reference(information(rows, &w, tanks, vehicles));
+    centre(&mut b, &mut a, &info, scale.max(1e-4), &comp);
     Effects {
         tank: a,
         vehicle: b,
         weight: w,
-        scale: mad_sigma(&resid).unwrap_or(0.0),
+        scale,
     }
 }
 
