@@ -1,7 +1,9 @@
 //! Between fills: gains no ticket explains, losses beyond use, and the forecast of the next fill.
 
 use crate::balance::fmt_kg;
-use crate::loss_scan::{LEVEL_SIDE_MS, Sums, scan, standing, winsorize};
+use crate::loss_scan::{
+    LEVEL_SIDE_MS, Sums, detectable_excess, neutral_fills, scan, standing, winsorize,
+};
 use crate::records::*;
 use crate::tank_audit::*;
 use crate::thermal::*;
@@ -15,28 +17,48 @@ use crate::use_model::UseModel;
 ///   of the same length (see `loss_scan`), each interval's excess first winsorized; a window is
 ///   reported when it stands `leak_scan_z` robust standard deviations above the model, then
 ///   `leak_standing_z` above the use both before and after it, by at least `leak_min_rate_fraction`
-///   of that use and `leak_min_fraction` of a full tank; windows a fill or a day of ordinary use
-///   splits are joined; reported once, from its start to its end, with its rate beyond the use the
+///   of that use and `leak_min_fraction` of a full tank; a fill's own interval, its tickets taken
+///   as delivered, counts only within such a run (see `loss_scan::neutral_fills`), so a leak a
+///   fill splits runs through it; windows a fill or a day of ordinary use splits are joined; reported once, from its start to its end, with its rate beyond the use the
 ///   six weeks either side show (the model, fitted over weeks that include a leak, has taken in
 ///   part of it).
 pub(crate) fn findings(
     ctx: &Ctx<'_>,
     intervals: &[Interval],
     model: &UseModel,
-) -> (Vec<Finding>, Vec<Jump>) {
+) -> (Vec<Finding>, Vec<Jump>, Option<f64>) {
     let opts = ctx.opts;
     let mut out = Vec::new();
     let mut jumps = Vec::new();
     // (from, to, excess loss kg, standardized excess, use kg/day, loss kg)
     let mut judged: Vec<Judged> = Vec::new();
-    for iv in intervals.iter().filter(|iv| iv.clean) {
+    let mut fill: Vec<bool> = Vec::new();
+    for iv in intervals {
         let Some(fit) = model.at(iv.from_ms + (iv.to_ms - iv.from_ms) / 2) else {
             continue;
         };
         let (expected, sd) = fit.interval(iv.from_ms, iv.to_ms);
+        let usage = fit.weekly_mean_kg_day();
+        if !iv.clean {
+            // a fill's interval, its tickets taken as delivered: a leak a fill splits still runs
+            // through it
+            if let Some((billed, var)) = iv.billed_kg {
+                let lost = iv.from_kg + billed - iv.to_kg;
+                let sd = (sd * sd + var).sqrt().max(1e-9);
+                judged.push((
+                    iv.from_ms,
+                    iv.to_ms,
+                    lost - expected,
+                    (lost - expected) / sd,
+                    usage,
+                    lost,
+                ));
+                fill.push(true);
+            }
+            continue;
+        }
         let sd = sd.max(1e-9);
         let lost = iv.from_kg - iv.to_kg;
-        let usage = fit.weekly_mean_kg_day();
         let z = (lost - expected) / sd;
         let gain = expected - lost;
         let limit = (opts.gain_sigmas * sd).max(opts.gain_min_fraction * ctx.full_mass_kg);
@@ -69,10 +91,13 @@ pub(crate) fn findings(
             });
         }
         judged.push((iv.from_ms, iv.to_ms, lost - expected, z, usage, lost));
+        fill.push(false);
     }
+    neutral_fills(&mut judged, &fill);
     // one reading's slip or one busy day is a single interval, not a run
     winsorize(&mut judged);
     let sums = Sums::new(&judged);
+    let leak_seen = leak_detectable(ctx, &sums, &judged);
     let runs: Vec<(usize, usize)> = merge_runs(
         scan(&sums, &judged, opts.leak_scan_z)
             .into_iter()
@@ -113,7 +138,27 @@ pub(crate) fn findings(
         }
     }
     out.sort_by(|a, b| a.from_ms.cmp(&b.from_ms).then(a.kind.cmp(&b.kind)));
-    (out, jumps)
+    (out, jumps, leak_seen)
+}
+
+/// The length of the leak whose detectable rate a tank states, days.
+const STATED_LEAK_DAYS: i64 = 10;
+
+/// The rate of a leak lasting [`STATED_LEAK_DAYS`] that this tank's scan finds with probability
+/// 95 %, kg/day: the window loss [`detectable_excess`] finds over those days, and no less than the
+/// reporting floors (`leak_min_rate_fraction` of the median use, `leak_min_fraction` of a full tank
+/// over the days). None where the record is too short to judge such windows.
+fn leak_detectable(ctx: &Ctx<'_>, sums: &Sums, judged: &[Judged]) -> Option<f64> {
+    let opts = ctx.opts;
+    let excess = detectable_excess(sums, judged, STATED_LEAK_DAYS, opts.leak_scan_z)?;
+    let usage: Vec<f64> = judged.iter().map(|j| j.4).collect();
+    let usage = crate::stats::median(&usage).unwrap_or(0.0);
+    let days = STATED_LEAK_DAYS as f64;
+    Some(
+        (excess / days)
+            .max(opts.leak_min_rate_fraction * usage)
+            .max(opts.leak_min_fraction * ctx.full_mass_kg / days),
+    )
 }
 
 /// One judged interval: (from ms, to ms, excess loss kg, standardized excess, use kg/day, loss kg).

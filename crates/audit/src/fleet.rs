@@ -96,6 +96,8 @@ pub struct TankSummary {
     /// The site's clock the use model took, hours east of UTC, when the site names no time zone
     /// and the tank's use shows one other than UTC.
     pub clock_offset_hours: Option<i32>,
+    /// The rate of a ten-day leak the loss scan finds at this tank with probability 95 %, kg/day.
+    pub leak_detectable_kg_per_day: Option<f64>,
     /// The state behind the latest accepted reading (for the window's fleet list; not in reports).
     #[serde(skip)]
     pub latest: Option<crate::ReadingState>,
@@ -207,6 +209,7 @@ pub fn audit_fleet(tanks: Vec<TankAudit>, opts: &AuditOptions) -> FleetAudit {
             readings_refused: t.readings_refused,
             forecast: t.forecast,
             clock_offset_hours: t.clock_offset_hours,
+            leak_detectable_kg_per_day: t.leak_detectable_kg_per_day,
             latest: t.latest,
         });
     }

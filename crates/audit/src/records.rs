@@ -258,6 +258,9 @@ pub struct TankAudit {
     pub balances: Vec<Balance>,
     /// Findings between fills, by time.
     pub findings: Vec<Finding>,
+    /// The rate of a ten-day leak the loss scan finds at this tank with probability 95 %, kg/day
+    /// (None where its record is too short to judge).
+    pub leak_detectable_kg_per_day: Option<f64>,
     /// Use rate and the next fill.
     pub forecast: Option<Forecast>,
     /// Every reading's state when [`crate::AuditOptions::keep_readings`].
@@ -287,6 +290,7 @@ impl TankAudit {
             readings_refused: 0,
             balances,
             findings: Vec::new(),
+            leak_detectable_kg_per_day: None,
             forecast: None,
             readings: Vec::new(),
             latest: None,

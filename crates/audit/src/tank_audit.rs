@@ -41,6 +41,9 @@ pub(crate) struct Interval {
     pub(crate) from_span_kg: f64,
     /// No delivery touches it.
     pub(crate) clean: bool,
+    /// The tickets of the fills that lie wholly inside it and the variance of their meters, kg and
+    /// kg² (None when a fill straddles one of its readings).
+    pub(crate) billed_kg: Option<(f64, f64)>,
 }
 
 /// Half the 95th percentile of χ² with one degree of freedom (3.841 / 2; a standard table value).
@@ -240,7 +243,7 @@ pub fn audit_tank(input: &TankInput, opts: &AuditOptions) -> Result<TankAudit, A
         .collect();
     let mut balances = balances;
     balances.sort_by(|a, b| a.start_ms.cmp(&b.start_ms).then(a.ticket.cmp(&b.ticket)));
-    let (findings, jumps) = findings(&ctx, &intervals, &model);
+    let (findings, jumps, leak_detectable) = findings(&ctx, &intervals, &model);
     let losses: Vec<(i64, i64, f64)> = findings
         .iter()
         .filter(|f| f.kind == FindingKind::LossBeyondUse)
@@ -278,6 +281,7 @@ pub fn audit_tank(input: &TankInput, opts: &AuditOptions) -> Result<TankAudit, A
         readings_refused: ctx.readings.len() - readings_used,
         balances,
         findings,
+        leak_detectable_kg_per_day: leak_detectable,
         forecast,
         readings: kept,
         latest,
@@ -300,10 +304,20 @@ pub(crate) fn intervals(ctx: &Ctx<'_>, evals: &[Option<Eval>]) -> Vec<Interval> 
             if dt_s < 3600.0 {
                 return None;
             }
-            let touched = ctx
+            let mut touching = ctx
                 .deliveries
                 .iter()
-                .any(|d| d.start_ms < b.0 && d.end_ms > a.0);
+                .filter(|d| d.start_ms < b.0 && d.end_ms > a.0);
+            let touched = touching.clone().next().is_some();
+            let billed_kg = touching.try_fold((0.0, 0.0), |(kg, var), d| {
+                let meter = d
+                    .meter_repeatability_percent
+                    .unwrap_or(ctx.opts.meter_repeatability_percent)
+                    / 100.0
+                    * d.billed_kg;
+                (d.start_ms >= a.0 && d.end_ms <= b.0)
+                    .then_some((kg + d.billed_kg, var + meter * meter))
+            });
             Some(Interval {
                 from_ms: a.0,
                 to_ms: b.0,
@@ -311,6 +325,7 @@ pub(crate) fn intervals(ctx: &Ctx<'_>, evals: &[Option<Eval>]) -> Vec<Interval> 
                 to_kg: b.1,
                 from_span_kg: a.2,
                 clean: !touched,
+                billed_kg,
             })
         })
         .collect()

@@ -664,6 +664,7 @@ mod tests {
                 readings_refused: 0,
                 balances: vec![balance("MIX", 200.0, 120.0)],
                 findings: Vec::new(),
+                leak_detectable_kg_per_day: None,
                 forecast: None,
                 readings: Vec::new(),
                 latest: None,
