@@ -2,7 +2,8 @@
 """Generate an independent test fleet, import it into cryoledger, run its audit and score the result.
 
 Usage:
-  python tools/indep/check.py --bin target/debug/cryoledger [--seed N] [--profile strict|floor|current|fresh]
+  python tools/indep/check.py --bin target/debug/cryoledger [--seed N]
+                              [--profile strict|floor|current|fresh|seen]
                               [--gate PROFILE]
                               [--workdir DIR] [--json-out FILE] [fleet options, see fleet.py]
 
@@ -17,6 +18,12 @@ Profiles:
            findings (same fleet settings as strict).
   current  >= 90 % of the fills of a vehicle 2.5 % short on every fill found, <= 3 % of honest fills
            flagged, every planted fault reported, no healthy gauge or honest vehicle flagged.
+  seen     current's lines with each planted gauge fault and the leak judged against the size the
+           audit states its test sees at that tank (a gauge fault as in fresh; the leak when its rate
+           is at least the stated rate of a ten-day leak clear of fills and no fill lies inside it),
+           and without the two lines of no false alarm (each a family-wise 5 % test, so a healthy
+           gauge or an honest vehicle is flagged on a few fleets in a hundred by design; current
+           prints them); CI gates on it at a fresh seed each run (current's fleet settings).
   fresh    the lines met on the fleets measured (see tools/indep/README.md): the always-short
            vehicle biased, <= 6 % of fills inconclusive, the unlogged fill found, at most two other
            findings, and each planted gauge fault found that is at least the size the audit states
@@ -246,7 +253,17 @@ def score(truth: dict, audit: dict, profile: str) -> dict:
     kinds = {}
     for f in other:
         kinds[finding_kind(f) or "?"] = kinds.get(finding_kind(f) or "?", 0) + 1
+    # the rate of a ten-day leak clear of fills the audit states its scan finds at the leak's tank:
+    # a planted leak at or above it, with no fill inside it, must be found
+    tanks = {t.get("tank"): t for t in audit.get("tanks", [])}
+    leak_seen = tanks.get(leak["tank"], {}).get("leak_detectable_kg_per_day")
+    leak_fill_inside = any(f["tank"] == leak["tank"] and ms(leak["start"]) <= ms(f["start"]) <= ms(leak["end"])
+                           for f in truth["fills"])
     fig["findings"] = {
+        "leak_kg_per_day": leak["kg_per_day"], "leak_seen_from": leak_seen,
+        "leak_fill_inside": leak_fill_inside,
+        "leak_seeable": isinstance(leak_seen, (int, float)) and leak["kg_per_day"] >= leak_seen
+        and not leak_fill_inside,
         "total": len(audit.get("findings", [])),
         "unlogged_tank": unl["tank"] if unl else None,
         "unlogged_matched": len(m_unl),
@@ -285,6 +302,15 @@ def score(truth: dict, audit: dict, profile: str) -> dict:
         add("gauge faults the audit says it sees found", not missed,
             (f"{', '.join(due)} at or above the stated size" if due else "neither at the stated size")
             + (f"; missed: {', '.join(missed)}" if missed else ""))
+
+    def add_sometimes_short():
+        for k, x in vp.items():
+            if per_vehicle[k]["role"] == "short_all":
+                add(f"always-short vehicle {k} biased", x["biased"], str(x["status"]))
+            else:
+                rep = x["biased"] or per_vehicle[k]["found"] > 0
+                add(f"sometimes-short vehicle {k} reported (biased or a fill short)", rep,
+                    f"{x['status']}, {per_vehicle[k]['found']}/{per_vehicle[k]['total']} short fills found")
 
     vp = fig["vehicles"]["planted"]
     if profile == "strict":
@@ -337,26 +363,35 @@ def score(truth: dict, audit: dict, profile: str) -> dict:
         add("unlogged fill found", fd["unlogged_matched"] > 0, f"{fd['unlogged_matched']} finding(s) at {fd['unlogged_tank']}")
         add("at most 2 other findings", fd["other"] <= 2, str(fd["other"]))
     else:
+        # current: the issue's lines as written; seen: the same, each planted gauge fault and the
+        # leak judged against the size the audit states its test sees at that tank (CI gates on it
+        # at a fresh seed each run)
         sa = [x for x in per_vehicle.values() if x["role"] == "short_all"]
         found = sum(x["found"] for x in sa)
         total = sum(x["total"] for x in sa)
         add("fills of the always-short vehicle found >= 90 %", ge(found, total, 90), fmt_pct(found, total))
         add("honest fills flagged <= 3 %", le(a["honest_flagged"], a["honest_total"], 3), fmt_pct(a["honest_flagged"], a["honest_total"]))
         g = fig["gauges"]
-        add("drifting gauge reported", g["drift_reported"] is not None, f"{g['drift_tank']}: {g['drift_status']}")
-        add("stepped gauge reported", g["step_reported"] is not None, f"{g['step_tank']}: {g['step_status']}")
-        for k, x in vp.items():
-            if per_vehicle[k]["role"] == "short_all":
-                add(f"always-short vehicle {k} biased", x["biased"], str(x["status"]))
-            else:
-                rep = x["biased"] or per_vehicle[k]["found"] > 0
-                add(f"sometimes-short vehicle {k} reported (biased or a fill short)", rep,
-                    f"{x['status']}, {per_vehicle[k]['found']}/{per_vehicle[k]['total']} short fills found")
+        if profile == "seen":
+            add_seeable()
+        else:
+            add("drifting gauge reported", g["drift_reported"] is not None, f"{g['drift_tank']}: {g['drift_status']}")
+            add("stepped gauge reported", g["step_reported"] is not None, f"{g['step_tank']}: {g['step_status']}")
+        add_sometimes_short()
         fd = fig["findings"]
         add("unlogged fill reported", fd["unlogged_matched"] > 0, f"{fd['unlogged_matched']} finding(s) at {fd['unlogged_tank']}")
-        add("leak reported", fd["leak_matched"] > 0, f"{fd['leak_matched']} finding(s) at {fd['leak_tank']}")
-        add("no false drift", not g["false"], ", ".join(g["false"]) or "none")
-        add("no false bias", not fig["vehicles"]["false"], ", ".join(fig["vehicles"]["false"]) or "none")
+        if profile == "seen":
+            seen_from = fd["leak_seen_from"]
+            add("leak found if at least the rate the audit states (clear of fills)",
+                fd["leak_matched"] > 0 or not fd["leak_seeable"],
+                f"{fd['leak_matched']} finding(s) at {fd['leak_tank']}; planted {fd['leak_kg_per_day']:.0f} kg/day, "
+                + (f"seen from {seen_from:.0f}" if isinstance(seen_from, (int, float)) else "no rate stated")
+                + (", a fill inside" if fd["leak_fill_inside"] else ""))
+        else:
+            add("leak reported", fd["leak_matched"] > 0, f"{fd['leak_matched']} finding(s) at {fd['leak_tank']}")
+        if profile != "seen":
+            add("no false drift", not g["false"], ", ".join(g["false"]) or "none")
+            add("no false bias", not fig["vehicles"]["false"], ", ".join(fig["vehicles"]["false"]) or "none")
     fig["checks"] = checks
     fig["pass"] = all(c["pass"] for c in checks)
     return fig
@@ -408,7 +443,12 @@ def print_report(fig: dict, truth: dict, profile: str) -> None:
     fd = fig["findings"]
     print("findings")
     print(f"  unlogged fill at {fd['unlogged_tank']}: {fd['unlogged_matched']} matching finding(s) {fd['unlogged_kinds']}")
-    print(f"  leak at {fd['leak_tank']}: {fd['leak_matched']} matching finding(s) {fd['leak_kinds']}")
+    seen_from = fd["leak_seen_from"]
+    print(f"  leak at {fd['leak_tank']}: {fd['leak_matched']} matching finding(s) {fd['leak_kinds']}; planted "
+          f"{fd['leak_kg_per_day']:.0f} kg/day, the audit says it sees a ten-day leak clear of fills from "
+          + (f"{seen_from:.0f}" if isinstance(seen_from, (int, float)) else "-")
+          + f" ({'a fill inside' if fd['leak_fill_inside'] else 'clear of fills'}: "
+          + f"{'due' if fd['leak_seeable'] else 'not due'})")
     print(f"  other findings: {fd['other']} {fd['other_by_kind']} on {len(fd['other_tanks'])} tank(s)")
     print()
     print(f"profile {profile}")
@@ -417,11 +457,14 @@ def print_report(fig: dict, truth: dict, profile: str) -> None:
     print(f"{'PASS' if fig['pass'] else 'FAIL'} ({profile})")
 
 
+PROFILES = ("strict", "floor", "current", "fresh", "seen")
+
+
 def main(argv=None) -> int:
     ap = argparse.ArgumentParser(description="Score cryoledger's audit on an independent fleet.")
     ap.add_argument("--bin", required=True, help="the cryoledger binary")
-    ap.add_argument("--profile", choices=("strict", "floor", "current", "fresh"), default="strict")
-    ap.add_argument("--gate", choices=("strict", "floor", "current", "fresh"), default=None,
+    ap.add_argument("--profile", choices=PROFILES, default="strict")
+    ap.add_argument("--gate", choices=PROFILES, default=None,
                     help="judge the same fleet on this profile too and take the exit status from it "
                          "(the chosen --profile is then printed, not gating)")
     ap.add_argument("--workdir", default=None,
@@ -434,7 +477,7 @@ def main(argv=None) -> int:
     fleet.add_fleet_args(ap)
     a = ap.parse_args(argv)
     t_start = time.time()
-    cfg = fleet.settings_from(a, default_short_all=0.025 if a.profile == "current" else 0.015)
+    cfg = fleet.settings_from(a, default_short_all=0.025 if a.profile in ("current", "seen") else 0.015)
     print(f"seed {cfg.seed} (profile {a.profile}, always-short vehicle {100 * cfg.short_all:.1f} %)", flush=True)
     work = a.workdir or tempfile.mkdtemp(prefix="cryoledger-indep-")
     os.makedirs(work, exist_ok=True)
