@@ -118,6 +118,19 @@ fn the_audit_page_shows_what_was_planted_in_the_demo() {
         "{per_year}"
     );
     assert!(g.points.len() >= g.fills, "{} points", g.points.len());
+    // each tank states the ten-day leak its scan finds, in the chosen unit, shown in the table
+    let leak_seen = a
+        .gauges
+        .iter()
+        .find(|g| g.tank == "EFF-O2-10")
+        .map(|g| g.leak_seen.clone())
+        .expect("EFF-O2-10's line");
+    let rate: f64 = leak_seen
+        .strip_suffix(" kg/day")
+        .and_then(|x| x.replace(',', "").parse().ok())
+        .unwrap_or_else(|| panic!("{leak_seen}"));
+    assert!(rate > 0.0, "{leak_seen}");
+    h.get_by_label(&leak_seen);
     // findings: the unlogged fill at BH-AR-3 and the leak at EFF-O2-10
     h.get_by_label("Findings").click();
     h.run();

@@ -242,6 +242,12 @@ pub fn audit_view(
                 .collect(),
         })
         .collect();
+    // each tank's stated leak rate, kg/day
+    let leak_seen: HashMap<&str, Option<f64>> = fa
+        .tanks
+        .iter()
+        .map(|t| (t.tank.as_str(), t.leak_detectable_kg_per_day))
+        .collect();
     // each tank's fills, grouped once (a fleet has thousands of tanks)
     let mut fills_of: HashMap<&str, Vec<&Balance>> = HashMap::new();
     for b in &fa.fills {
@@ -287,6 +293,13 @@ pub fn audit_view(
                 g.step_detectable_percent,
             ),
             carried_by_vehicle: g.carried_by_vehicle.clone(),
+            leak_seen: leak_seen
+                .get(g.tank.as_str())
+                .copied()
+                .flatten()
+                .map_or("—".into(), |kg| {
+                    format!("{} {}/day", fmt::num(units.mass(kg), 0), units.mass_unit())
+                }),
             points,
             drift_line,
             step_lines,

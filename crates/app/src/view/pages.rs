@@ -258,6 +258,9 @@ pub struct GaugeLine {
     pub step_lines: Vec<[[f64; 2]; 2]>,
     /// The vehicle whose fills alone carry the fault the test found (taken for its deliveries).
     pub carried_by_vehicle: Option<String>,
+    /// The rate of a ten-day leak clear of fills that the loss scan finds at the tank with
+    /// probability 95 %, in the chosen mass unit per day ("—" where the record is too short).
+    pub leak_seen: String,
 }
 
 /// One finding between fills.

@@ -310,7 +310,9 @@ pub(super) fn gauges_ui(ui: &mut Ui, a: &AuditView, out: &mut Vec<Action>) {
             "(gained + drawn) / billed over time at each tank, vehicle effects removed: a linear drift \
              or a step of the gauge's span (a bad recalibration). \"Seen from\": the smallest drift and \
              step the test finds with probability 95 % on the tank's fills; a smaller one can pass \
-             unseen. Click a tank to plot its fills.",
+             unseen. \"Ten-day leak seen from\": the loss beyond use over ten days with no fill that \
+             the scan between fills finds with probability 95 % at the tank. Click a tank to plot its \
+             fills.",
         )
         .color(style::MUTED),
     );
@@ -331,6 +333,7 @@ pub(super) fn gauges_ui(ui: &mut Ui, a: &AuditView, out: &mut Vec<Action>) {
                     "Best step (%, from)",
                     "p after Holm",
                     "Seen from (drift %/year, step %)",
+                    "Ten-day leak seen from",
                 ] {
                     ui.label(RichText::new(h).color(style::MUTED));
                 }
@@ -358,6 +361,7 @@ pub(super) fn gauges_ui(ui: &mut Ui, a: &AuditView, out: &mut Vec<Action>) {
                         seen(g.detectable.0),
                         seen(g.detectable.1)
                     ));
+                    ui.label(&g.leak_seen);
                     ui.end_row();
                 }
             });
