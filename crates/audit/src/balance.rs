@@ -78,6 +78,17 @@ pub(crate) fn budget(
     Some((contents, b, extra))
 }
 
+/// A ticket's meter repeatability, % (its own, else the option's).
+pub(crate) fn meter_percent(d: &DeliveryInput, opts: &AuditOptions) -> f64 {
+    d.meter_repeatability_percent
+        .unwrap_or(opts.meter_repeatability_percent)
+}
+
+/// A ticket's standard uncertainty from its meter's repeatability, kg.
+pub(crate) fn meter_sigma_kg(d: &DeliveryInput, opts: &AuditOptions) -> f64 {
+    meter_percent(d, opts) / 100.0 * d.billed_kg.abs()
+}
+
 pub(crate) fn fmt_kg(x: f64) -> String {
     format!("{:.0}", x)
 }
@@ -118,9 +129,7 @@ pub(crate) fn unjudged(d: &DeliveryInput, tank: &str, opts: &AuditOptions) -> Ba
         after_hours: None,
         other_fills_kg: 0.0,
         sigma_other_tickets_kg: 0.0,
-        meter_percent: d
-            .meter_repeatability_percent
-            .unwrap_or(opts.meter_repeatability_percent),
+        meter_percent: meter_percent(d, opts),
         usage_share_percent: None,
         gauge_drift_percent_per_year: None,
         gauge_step: None,
@@ -165,13 +174,7 @@ pub(crate) fn balance(
         out.sigma_usage_kg = sd;
         out.usage_kg_per_day = f.weekly_mean_kg_day();
     }
-    let meter_pct = |x: &DeliveryInput| {
-        x.meter_repeatability_percent
-            .unwrap_or(opts.meter_repeatability_percent)
-            / 100.0
-            * x.billed_kg.abs()
-    };
-    out.sigma_meter_kg = meter_pct(d);
+    out.sigma_meter_kg = meter_sigma_kg(d, opts);
     // other fills between the same two readings: their tickets are taken as delivered
     let others: Vec<&DeliveryInput> = ctx
         .deliveries
@@ -179,7 +182,7 @@ pub(crate) fn balance(
         .filter(|o| o.ticket != d.ticket && o.start_ms < ra.time_ms && o.end_ms > rb.time_ms)
         .collect();
     out.other_fills_kg = others.iter().map(|o| o.billed_kg).sum();
-    let others_var: f64 = others.iter().map(|o| meter_pct(o).powi(2)).sum();
+    let others_var: f64 = others.iter().map(|o| meter_sigma_kg(o, opts).powi(2)).sum();
     match (budget(ctx, &rb, &eb), budget(ctx, &ra, &ea)) {
         (Some((cb, bb, xb)), Some((ca, ba, xa))) => {
             let diff = tank::difference_uncertainty(&bb, &ba);

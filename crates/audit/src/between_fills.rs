@@ -19,9 +19,9 @@ use crate::use_model::UseModel;
 ///   `leak_standing_z` above the use both before and after it, by at least `leak_min_rate_fraction`
 ///   of that use and `leak_min_fraction` of a full tank; a fill's own interval, its tickets taken
 ///   as delivered, counts only within such a run (see `loss_scan::neutral_fills`), so a leak a
-///   fill splits runs through it; windows a fill or a day of ordinary use splits are joined; reported once, from its start to its end, with its rate beyond the use the
-///   six weeks either side show (the model, fitted over weeks that include a leak, has taken in
-///   part of it).
+///   fill splits runs through it; windows a fill or a day of ordinary use splits are joined;
+///   reported once, from its start to its end, with its rate beyond the use the six weeks either
+///   side show (the model, fitted over weeks that include a leak, has taken in part of it).
 pub(crate) fn findings(
     ctx: &Ctx<'_>,
     intervals: &[Interval],

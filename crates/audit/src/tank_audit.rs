@@ -310,11 +310,7 @@ pub(crate) fn intervals(ctx: &Ctx<'_>, evals: &[Option<Eval>]) -> Vec<Interval> 
                 .filter(|d| d.start_ms < b.0 && d.end_ms > a.0);
             let touched = touching.clone().next().is_some();
             let billed_kg = touching.try_fold((0.0, 0.0), |(kg, var), d| {
-                let meter = d
-                    .meter_repeatability_percent
-                    .unwrap_or(ctx.opts.meter_repeatability_percent)
-                    / 100.0
-                    * d.billed_kg;
+                let meter = crate::balance::meter_sigma_kg(d, ctx.opts);
                 (d.start_ms >= a.0 && d.end_ms <= b.0)
                     .then_some((kg + d.billed_kg, var + meter * meter))
             });
