@@ -303,7 +303,7 @@ def score(truth: dict, audit: dict, profile: str) -> dict:
             (f"{', '.join(due)} at or above the stated size" if due else "neither at the stated size")
             + (f"; missed: {', '.join(missed)}" if missed else ""))
 
-    def add_sometimes_short():
+    def add_short_vehicles():
         for k, x in vp.items():
             if per_vehicle[k]["role"] == "short_all":
                 add(f"always-short vehicle {k} biased", x["biased"], str(x["status"]))
@@ -372,15 +372,16 @@ def score(truth: dict, audit: dict, profile: str) -> dict:
         add("fills of the always-short vehicle found >= 90 %", ge(found, total, 90), fmt_pct(found, total))
         add("honest fills flagged <= 3 %", le(a["honest_flagged"], a["honest_total"], 3), fmt_pct(a["honest_flagged"], a["honest_total"]))
         g = fig["gauges"]
-        if profile == "seen":
+        seen = profile == "seen"
+        if seen:
             add_seeable()
         else:
             add("drifting gauge reported", g["drift_reported"] is not None, f"{g['drift_tank']}: {g['drift_status']}")
             add("stepped gauge reported", g["step_reported"] is not None, f"{g['step_tank']}: {g['step_status']}")
-        add_sometimes_short()
+        add_short_vehicles()
         fd = fig["findings"]
         add("unlogged fill reported", fd["unlogged_matched"] > 0, f"{fd['unlogged_matched']} finding(s) at {fd['unlogged_tank']}")
-        if profile == "seen":
+        if seen:
             seen_from = fd["leak_seen_from"]
             add("leak found if at least the rate the audit states (clear of fills)",
                 fd["leak_matched"] > 0 or not fd["leak_seeable"],
@@ -389,7 +390,6 @@ def score(truth: dict, audit: dict, profile: str) -> dict:
                 + (", a fill inside" if fd["leak_fill_inside"] else ""))
         else:
             add("leak reported", fd["leak_matched"] > 0, f"{fd['leak_matched']} finding(s) at {fd['leak_tank']}")
-        if profile != "seen":
             add("no false drift", not g["false"], ", ".join(g["false"]) or "none")
             add("no false bias", not fig["vehicles"]["false"], ", ".join(fig["vehicles"]["false"]) or "none")
     fig["checks"] = checks
