@@ -57,7 +57,7 @@ pub struct GaugeFinding {
     /// reported): a slower one can pass unseen on these fills.
     pub drift_detectable_percent_per_year: Option<f64>,
     /// The smallest step of the span the test finds with probability 95 % from the fills alone,
-    /// %, for a step with at least a quarter of the fills' weight on either side (floored at the
+    /// %, for a step with at least a quarter of the fills on either side (floored at the
     /// smallest step reported; readings that show the step's jump lower it; a step nearer either
     /// end of the record needs to be larger).
     pub step_detectable_percent: Option<f64>,
