@@ -324,6 +324,16 @@ fn fit_factors(
         };
         // the readings' factor, then the use model's, per tank shrunk toward the fleet's (an
         // empirical-Bayes hierarchy), the fleet's toward the settings
+        // (each balance's excess over the other terms is held at zero or more before it is summed,
+        // which biases every factor up: a conservative estimate, kept as measured on 2026-12-05.
+        // Summing the excesses as they are, unbiased for normal errors, put the honest meters'
+        // median at 0.26 % against a true 0.30 % on 249 independent fleets (0.50, the cap, with
+        // the hold), and on the 169 of them with the 1.5 % vehicle k = 2 covered 94.7 % of honest
+        // fills against 97.7 %, but 808 of 39,738 honest fills were flagged against 344, a healthy
+        // gauge on 30 fleets against 11, an honest vehicle biased on 12 against 3, for 11 more
+        // short fills found of 9,378: the balances' errors are less normal than the moments assume.
+        // Summing only the meters' as they are sent them to zero, the held readings' and use
+        // factors taking the variance.)
         let mut sums = vec![[0.0; 4]; n_tanks];
         let measures_tank = |s: &Sample| !apart.get(s.1).copied().unwrap_or(false);
         for (s, c) in kept() {
