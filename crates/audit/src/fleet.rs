@@ -61,7 +61,7 @@ pub struct GaugeFinding {
     /// smallest step reported; readings that show the step's jump lower it; a step nearer either
     /// end of the record needs to be larger).
     pub step_detectable_percent: Option<f64>,
-    /// The tank's p-value: the smaller of the slope's and the step's (Bonferroni over the splits),
+    /// The tank's p-value: the smaller of the slope's and the step's (Hunter–Worsley over the splits),
     /// doubled for the two models.
     pub p_value: Option<f64>,
     /// The p-value after Holm's correction across the tanks tested.
@@ -122,7 +122,7 @@ pub struct FleetAudit {
 /// horizontal tank from half full can move its readings' span masses by little).
 pub(crate) const MIN_SENSITIVITY: f64 = 0.05;
 
-const GAUGE_TEST: &str = "(gained+drawn)/billed over time, vehicle effects removed, sizes over the fills' mean sensitivity to the span: weighted least-squares slope t-test (drift) and best split of two means with a Bonferroni-adjusted t-test (step), the better-fitting model named; Holm across tanks; a fault that the fills without one vehicle show significantly less of, and not of their own, taken for that vehicle's";
+const GAUGE_TEST: &str = "(gained+drawn)/billed over time, vehicle effects removed, sizes over the fills' mean sensitivity to the span: weighted least-squares slope t-test (drift) and best split of two means with a t-test adjusted over the splits by the Hunter-Worsley bound (step), the better-fitting model named; Holm across tanks; a fault that the fills without one vehicle show significantly less of, and not of their own, taken for that vehicle's";
 
 /// A balance that can speak for its gauge and its vehicle: judged from two readings, and not spanning
 /// a finding between fills of its tank (a leak's or an unlogged fill's mass is in its gain, not the

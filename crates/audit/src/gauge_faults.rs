@@ -4,9 +4,11 @@
 //! - Drift: the weighted least-squares slope of the ratios on time and its t-test.
 //! - Step: the fills split into a before and an after group where the readings jumped away from the
 //!   use model (a step shows there at once), else at every possible split; the difference of the two
-//!   means and its t-test, Bonferroni-adjusted over the candidate splits (a conservative bound for the
-//!   maximum of the split statistics; Worsley, "On the likelihood ratio test for a shift in location
-//!   of normal populations", JASA 74, 1979). Where the readings between the two fills of that split
+//!   means and its t-test, adjusted over the candidate splits by the Hunter–Worsley bound for the
+//!   maximum of the split statistics, whose neighbours correlate closely (Worsley, "An improved
+//!   Bonferroni inequality and applications", Biometrika 69, 1982; see
+//!   [`crate::stats::max_abs_normal_p`]; Bonferroni over the splits where the readings placed
+//!   them). Where the readings between the two fills of that split
 //!   jumped with the step's sign, the jump's p-value (normal tail, Bonferroni over the stretch's
 //!   intervals) is combined with the split's by Fisher's method (the readings between fills and the
 //!   fills' balances are separate data), and the smaller of the split's p and the combined one is
@@ -38,8 +40,8 @@
 use crate::moderated::Prior;
 use crate::records::Jump;
 use crate::stats::{
-    LineFit, fisher_combined_p, mad_sigma, normal_quantile, normal_upper_p, t_critical,
-    t_two_sided_p, weighted_line,
+    LineFit, fisher_combined_p, mad_sigma, max_abs_normal_p, normal_quantile, normal_upper_p,
+    t_critical, t_two_sided_p, weighted_line,
 };
 
 const YEAR_MS: f64 = 365.0 * 86_400_000.0;
@@ -84,8 +86,9 @@ pub(crate) struct FaultTest {
     pub(crate) drift_df: f64,
     /// What a step with at least a quarter of the fills on either side would be measured to, from
     /// the fills alone: its largest standard error there (ratio terms), the degrees of freedom and
-    /// the splits searched.
-    pub(crate) step_mid: Option<(f64, f64, usize)>,
+    /// the splits searched, counted as the independent tests they amount to (their Hunter–Worsley
+    /// bound over one split's chance, at [`REF_TANKS`] tanks' level).
+    pub(crate) step_mid: Option<(f64, f64, f64)>,
     /// The step's split: the time between the last fill before it and the first after.
     pub(crate) split_ms: Option<i64>,
 }
@@ -318,7 +321,11 @@ pub(crate) fn test(
                 })
                 .reduce(f64::max);
             if let Some(se) = se {
-                out.step_mid = Some((se, df_mod, n + 1 - 2 * STEP_SIDE));
+                let splits = (n + 1 - 2 * STEP_SIDE) as f64;
+                let z = normal_quantile(1.0 - 0.05 / (8.0 * REF_TANKS * splits));
+                let single = 2.0 * normal_upper_p(z);
+                let count = max_abs_normal_p(z, &split_correlations(pts)) / single;
+                out.step_mid = Some((se, df_mod, count.clamp(1.0, splits)));
             }
         }
     }
@@ -359,11 +366,20 @@ pub(crate) fn test(
             let (m1, _) = weighted_mean(&best_pts[..k]);
             let (m2, _) = weighted_mean(&best_pts[k..]);
             let size = m2 - m1;
-            // its test: the difference at the M-estimate's variance (`huber_s2`), Bonferroni over
-            // the candidate splits
+            // its test: the difference at the M-estimate's variance (`huber_s2`), over the
+            // candidate splits by the Hunter–Worsley bound (Bonferroni over splits the readings
+            // placed, which need not be neighbours)
             let (se, s2, df) = split_se(pts, k, m1, m2, prior);
             let t = if se > 0.0 { size / se } else { 0.0 };
-            let p_fills = (candidates.len() as f64 * t_p(t, df)).min(1.0);
+            let p_split = t_p(t, df);
+            let p_fills = if guided {
+                (candidates.len() as f64 * p_split).min(1.0)
+            } else {
+                max_abs_normal_p(
+                    normal_quantile(1.0 - 0.5 * p_split),
+                    &split_correlations(pts),
+                )
+            };
             // the readings' own evidence: the largest jump of the step's sign between the two fills
             // that split, independent of the fills' balances, combined with them by Fisher's
             // method; the smaller of the fills' p and the combined one, doubled (Bonferroni)
@@ -391,6 +407,36 @@ pub(crate) fn test(
     out
 }
 
+/// The stated step size counts the splits as independent tests at the level of this many tanks: the
+/// count grows with the level, so for fewer tanks the statement errs large (common practice, no
+/// source).
+const REF_TANKS: f64 = 50.0;
+
+/// The correlations of neighbouring split statistics, splits after the [`STEP_SIDE`]th to the
+/// (n − [`STEP_SIDE`])th point: for weights Wₖ before split k of W in all, the standardized
+/// differences of the two means at k and k + 1 correlate by √(Wₖ (W − Wₖ₊₁) / (Wₖ₊₁ (W − Wₖ)))
+/// (as the standardized partial sums of a random walk in its weights' time).
+fn split_correlations(pts: &[Point]) -> Vec<f64> {
+    let n = pts.len();
+    let mut w = Vec::with_capacity(n + 1);
+    w.push(0.0);
+    for p in pts {
+        w.push(w.last().copied().unwrap_or(0.0) + p.2);
+    }
+    let total = w[n];
+    (STEP_SIDE..n.saturating_sub(STEP_SIDE))
+        .map(|k| {
+            let (a, b) = (w[k], w[k + 1]);
+            let r = a * (total - b) / (b * (total - a));
+            if r.is_finite() {
+                r.max(0.0).sqrt()
+            } else {
+                0.0
+            }
+        })
+        .collect()
+}
+
 /// The chance of missing a fault of the detectable size (β of ISO 11843-1:1997, "Capability of
 /// detection", whose minimum detectable value is the size a test at level α finds with probability
 /// 1 − β; 0.05 is the standard's usual choice, as recalled from memory).
@@ -410,8 +456,9 @@ fn t_crit(p: f64, df: f64) -> f64 {
 /// probability 1 − [`MISS_BETA`] among `tested` tanks at family-wise level `alpha`: (t at the
 /// tank's level + t at 1 − β) times the standard error (the minimum detectable value, ISO 11843-1).
 /// The tank's level is α over the tanks (Holm's first step, which a lone fault meets), halved for
-/// the two models; the step's is the fills' alone, Bonferroni over every split, halved again for the
-/// readings' evidence it may be combined with, so readings that show the step only lower it.
+/// the two models; the step's is the fills' alone, over every split counted as the independent
+/// tests they amount to (see [`FaultTest::step_mid`]), halved again for the readings' evidence it may
+/// be combined with, so readings that show the step only lower it.
 pub(crate) fn detectable(ft: &FaultTest, tested: usize, alpha: f64) -> (Option<f64>, Option<f64>) {
     let m = tested.max(1) as f64;
     let drift = ft.drift.and_then(|(_, se)| {
@@ -419,7 +466,7 @@ pub(crate) fn detectable(ft: &FaultTest, tested: usize, alpha: f64) -> (Option<f
         (se > 0.0).then(|| (t_crit(alpha / (2.0 * m), df) + t_crit(2.0 * MISS_BETA, df)) * se)
     });
     let step = ft.step_mid.map(|(se, df, splits)| {
-        let level = alpha / (4.0 * m * splits.max(1) as f64);
+        let level = alpha / (4.0 * m * splits.max(1.0));
         (t_crit(level, df) + t_crit(2.0 * MISS_BETA, df)) * se
     });
     (drift, step)
@@ -803,6 +850,62 @@ mod tests {
         assert_eq!(date(&q, k, -0.03, 1.0, &[jump(before_5th, 3.5)]), middle);
     }
 
+    /// The split statistics' neighbour correlations and the Hunter–Worsley bound against a
+    /// simulation (its own random numbers: xorshift64*, Marsaglia 2003, and the Box–Muller
+    /// transform): twelve points of weight 1 (three of weight 4 in the middle, the second case), no
+    /// step, unit variance known, the difference of the two means standardized at each split after
+    /// the third to the ninth point; the share of 200,000 draws whose largest |statistic| reaches 2.5
+    /// lies under the bound (0.0515 against 0.0574 with equal weights) and within 15 % of it, while
+    /// Bonferroni's (7 × 0.0124193 = 0.0869) overstates it by more than 30 % (0.0601 with the
+    /// heavier middle).
+    #[test]
+    fn the_bound_on_the_largest_split_statistic_against_simulation() {
+        let mut state: u64 = 0x2545_f491_4f6c_dd1d;
+        let mut uniform = || {
+            state ^= state >> 12;
+            state ^= state << 25;
+            state ^= state >> 27;
+            ((state.wrapping_mul(0x2545_f491_4f6c_dd1d) >> 11) as f64 + 0.5) / (1u64 << 53) as f64
+        };
+        for weights in [[1.0; 12], [1., 1., 1., 1., 4., 4., 4., 1., 1., 1., 1., 1.]] {
+            let pts: Vec<Point> = (0..12).map(|i| (i as i64, 0.0, weights[i])).collect();
+            let bound = max_abs_normal_p(2.5, &split_correlations(&pts));
+            let draws = 200_000;
+            let mut hits = 0;
+            for _ in 0..draws {
+                let x: Vec<f64> = weights
+                    .iter()
+                    .map(|w| {
+                        let (u1, u2) = (uniform(), uniform());
+                        let z = (-2.0 * u1.ln()).sqrt() * (std::f64::consts::TAU * u2).cos();
+                        z / w.sqrt()
+                    })
+                    .collect();
+                let largest = (STEP_SIDE..=12 - STEP_SIDE)
+                    .map(|k| {
+                        let w1: f64 = weights[..k].iter().sum();
+                        let w2: f64 = weights[k..].iter().sum();
+                        let m1 = x[..k].iter().zip(&weights).map(|(x, w)| x * w).sum::<f64>() / w1;
+                        let m2 = x[k..]
+                            .iter()
+                            .zip(&weights[k..])
+                            .map(|(x, w)| x * w)
+                            .sum::<f64>()
+                            / w2;
+                        ((m2 - m1) / (1.0 / w1 + 1.0 / w2).sqrt()).abs()
+                    })
+                    .fold(0.0, f64::max);
+                hits += usize::from(largest >= 2.5);
+            }
+            let share = hits as f64 / draws as f64;
+            assert!(
+                share < bound * 1.02 && share > bound / 1.15,
+                "{share} {bound}"
+            );
+            assert!(7.0 * 0.0124193 > 1.3 * share, "{share}");
+        }
+    }
+
     /// A step's stated standard error takes the fills' own weights at every split with a quarter of
     /// the fills or more on either side, by hand. Sixteen monthly fills at ratio 1 ± 0.01, signs
     /// repeating (plus, minus, minus, plus), the first four and the last four of weight 0.25, the
@@ -825,18 +928,21 @@ mod tests {
         let t = test(&pts, RobustLine::of(&pts).as_ref(), &[], 1.0, None);
         let (se, df, splits) = t.step_mid.unwrap();
         assert!((se - 0.0089087).abs() < 1e-6, "{se}");
-        assert!((df - 14.0).abs() < 1e-12 && splits == 11, "{df} {splits}");
+        assert!((df - 14.0).abs() < 1e-12, "{df}");
+        // eleven splits, counted as fewer independent tests (the bound is checked by simulation)
+        assert!(splits > 1.0 && splits < 11.0, "{splits}");
     }
 
     /// The sizes the tests can see, by hand. Twelve monthly fills at ratio 1 ± 0.01, signs repeating
     /// (plus, minus, minus, plus), weight 1: the line is flat (Σ (i − 5.5) rᵢ = 0 and Σ rᵢ = 0),
     /// s² = 12 · 0.01² / 10 = 1.2e-4 on 10 degrees of freedom; the splits with a quarter of the fills
     /// or more on either side fall after the third to the ninth fill, the largest standard error at
-    /// the ends, s · √(1/3 + 1/9) = 0.0073030; seven splits are searched
-    /// (3 ..= 9). Then with a standard error of 0.01 on infinite degrees of freedom among twenty
-    /// tanks at α = 0.05: the drift's (z(1 − 0.05/80) + z(0.95)) · 0.01 = (3.22722 + 1.64485) · 0.01
-    /// = 0.048721 and the step's over fifteen splits (z(1 − 0.05/2400) + 1.64485) · 0.01 = 0.057429
-    /// (quantiles from Python's statistics.NormalDist).
+    /// the ends, s · √(1/3 + 1/9) = 0.0073030; seven splits are searched (3 ..= 9), counted as
+    /// fewer independent tests. Then with a standard error of 0.01 on infinite degrees of freedom
+    /// among twenty tanks at α = 0.05: the drift's (z(1 − 0.05/80) + z(0.95)) · 0.01 = (3.22722 +
+    /// 1.64485) · 0.01 = 0.048721 and the step's over splits counted as fifteen
+    /// (z(1 − 0.05/2400) + 1.64485) · 0.01 = 0.057429 (quantiles from Python's
+    /// statistics.NormalDist).
     #[test]
     fn the_sizes_the_tests_can_see_by_hand() {
         let month = 30 * 86_400_000_i64;
@@ -847,7 +953,8 @@ mod tests {
         let t = test(&pts, RobustLine::of(&pts).as_ref(), &[], 1.0, None);
         let (se, df, splits) = t.step_mid.unwrap();
         assert!((se - 0.0073030).abs() < 1e-6, "{se}");
-        assert!((df - 10.0).abs() < 1e-12 && splits == 7, "{df} {splits}");
+        assert!((df - 10.0).abs() < 1e-12, "{df}");
+        assert!(splits > 1.0 && splits < 7.0, "{splits}");
         let given = FaultTest {
             drift: Some((0.0, 0.01)),
             p_drift: None,
@@ -855,7 +962,7 @@ mod tests {
             p: None,
             step_fits_better: false,
             drift_df: f64::INFINITY,
-            step_mid: Some((0.01, f64::INFINITY, 15)),
+            step_mid: Some((0.01, f64::INFINITY, 15.0)),
             split_ms: None,
         };
         let (drift, step) = detectable(&given, 20, 0.05);
