@@ -78,6 +78,15 @@ impl FaultLevel {
         }
     }
 
+    /// What the fault adds to the level at `t_ms` for a fill of sensitivity `s`: the step after it,
+    /// the drift's line from its mean time.
+    pub(crate) fn fault_part(self, t_ms: i64, s: f64) -> f64 {
+        match self {
+            FaultLevel::Step { before, .. } => self.at(t_ms, s) - before,
+            FaultLevel::Line { mean, .. } => self.at(t_ms, s) - mean,
+        }
+    }
+
     /// The level at `t_ms` for a fill of sensitivity `s`.
     pub(crate) fn at(self, t_ms: i64, s: f64) -> f64 {
         match self {
@@ -100,5 +109,37 @@ impl FaultLevel {
                 per_span,
             } => mean + s / per_span * slope_per_year * (t_ms as f64 / YEAR_MS - t_ref_years),
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// What a fault adds, by hand. A step of −3 % in the mean fill's terms (per_span 0.8) at t = 100
+    /// ms: nothing before it, and for a fill of sensitivity 0.4 after it half of it, 0.4/0.8 · −0.03
+    /// = −0.015 (the level there 1.01 − 0.015 = 0.995). A drift of −4 %/year about a mean time of
+    /// half a year: a year in, for a fill of the mean sensitivity, −0.04 · 0.5 = −0.02; at the mean
+    /// time nothing.
+    #[test]
+    fn what_a_fault_adds_by_hand() {
+        let step = FaultLevel::Step {
+            at_ms: 100,
+            before: 1.01,
+            step: -0.03,
+            per_span: 0.8,
+        };
+        assert_eq!(step.fault_part(50, 0.4), 0.0);
+        assert!((step.fault_part(150, 0.4) + 0.015).abs() < 1e-12);
+        assert!((step.at(150, 0.4) - 0.995).abs() < 1e-12);
+        let year = YEAR_MS as i64;
+        let drift = FaultLevel::Line {
+            mean: 0.99,
+            slope_per_year: -0.04,
+            t_ref_years: 0.5,
+            per_span: 1.0,
+        };
+        assert!((drift.fault_part(year, 1.0) + 0.02).abs() < 1e-12);
+        assert!(drift.fault_part(year / 2, 1.0).abs() < 1e-12);
     }
 }

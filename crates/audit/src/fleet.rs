@@ -485,16 +485,34 @@ fn fleet_pass(
         return (gauges, Vec::new(), fault_levels);
     }
 
-    // the fleet's levels and vehicle effects, tanks with a gauge fault left out
-    let kept: Vec<Row> = plain.iter().copied().filter(|r| !faulty[r.0]).collect();
-    let kept_u: Vec<f64> = rows.iter().filter(|r| !faulty[r.0]).map(|r| r.3).collect();
-    let kept_at: Vec<usize> = rows.iter().filter(|r| !faulty[r.0]).map(|r| r.5).collect();
+    // the fleet's levels and vehicle effects; at a tank with a gauge fault its fills' ratios less
+    // the fault's part at their time (the vehicles met there are still compared), a faulty tank
+    // whose fault has no fitted shape left out
+    let shift: Vec<Option<f64>> = rows
+        .iter()
+        .enumerate()
+        .map(|(k, r)| {
+            if !faulty[r.0] {
+                return Some(0.0);
+            }
+            let level = fault_levels.get(r.0).copied().flatten()?;
+            Some(level.fault_part(r.4, sensitivity.get(k).copied().unwrap_or(1.0)))
+        })
+        .collect();
+    let kept_rows: Vec<(usize, usize, f64, f64, i64, usize)> = rows
+        .iter()
+        .zip(&shift)
+        .filter_map(|(r, d)| d.map(|d| (r.0, r.1, r.2 - d, r.3, r.4, r.5)))
+        .collect();
+    let kept: Vec<Row> = kept_rows.iter().map(|r| (r.0, r.1, r.2)).collect();
+    let kept_u: Vec<f64> = kept_rows.iter().map(|r| r.3).collect();
+    let kept_at: Vec<usize> = kept_rows.iter().map(|r| r.5).collect();
     // the levels and effects fitted with the set-apart vehicles' fills raised, as above
     let kept_raised: Vec<Row> = fitted
         .raised
         .iter()
-        .copied()
-        .filter(|r| !faulty[r.0])
+        .zip(&shift)
+        .filter_map(|(r, d)| d.map(|d| (r.0, r.1, r.2 - d)))
         .collect();
     let kept_fit = two_way_apart(&kept_raised, tanks.len(), vehicle_names.len(), &apart);
     let kept_of_vehicle = groups(kept.iter().map(|r| r.1), vehicle_names.len());
@@ -506,13 +524,13 @@ fn fleet_pass(
         let n_of_vehicle: Vec<usize> = kept_of_vehicle.iter().map(Vec::len).collect();
         let mut kept_k = 0;
         for (k, r) in rows.iter().enumerate() {
+            let in_fit = shift.get(k).copied().flatten().is_some();
             let weight = if faulty[r.0] {
                 1.0
             } else {
-                let w = kept_fit.weight.get(kept_k).copied().unwrap_or(1.0);
-                kept_k += 1;
-                w
+                kept_fit.weight.get(kept_k).copied().unwrap_or(1.0)
             };
+            kept_k += usize::from(in_fit);
             let veh = kept_fit.vehicle.get(r.1).copied().unwrap_or(0.0);
             let n_v = n_of_vehicle.get(r.1).copied().unwrap_or(0).max(1) as f64;
             // at a tank whose gauge is faulty, a set-apart vehicle's fill is judged short or
@@ -580,11 +598,7 @@ fn fleet_pass(
     // vehicle bias, on the final verdicts
     // a set-apart vehicle's fills enter its tanks' levels less their expected shortfall, so its
     // short deliveries do not pull the level the other vehicles are compared with
-    let kept_mixed: Vec<Option<f64>> = rows
-        .iter()
-        .filter(|r| !faulty[r.0])
-        .map(|r| mixed(r).map(|m| m.0))
-        .collect();
+    let kept_mixed: Vec<Option<f64>> = kept_rows.iter().map(|r| mixed(r).map(|m| m.0)).collect();
     let mut vehicles = crate::vehicles::test(
         &vehicle_names,
         &vehicle_index,

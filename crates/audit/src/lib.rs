@@ -20,7 +20,8 @@
 //!    the fills' ratios, robust fits, Holm's correction across tanks), every fill judged again against
 //!    its gauge's scale fitted from the tank's other fills, and vehicle bias ([`VehicleFinding`]: each
 //!    vehicle's fills against the level the other vehicles show at the same tanks, and its count of
-//!    short verdicts; Holm's correction across vehicles; tanks with a gauge fault left out).
+//!    short verdicts; Holm's correction across vehicles; at a tank with a gauge fault its fills less
+//!    the fault's part at their time).
 //!
 //! ```
 //! use audit::{AuditOptions, DeliveryInput, ReadingInput, TankInput, Verdict, audit_fleet, audit_tank};
