@@ -598,7 +598,26 @@ fn fleet_pass(
     // vehicle bias, on the final verdicts
     // a set-apart vehicle's fills enter its tanks' levels less their expected shortfall, so its
     // short deliveries do not pull the level the other vehicles are compared with
-    let kept_mixed: Vec<Option<f64>> = kept_rows.iter().map(|r| mixed(r).map(|m| m.0)).collect();
+    // (at a faulty tank against its level under the fault at the fill's time, as for the scale)
+    let kept_mixed: Vec<Option<f64>> = rows
+        .iter()
+        .enumerate()
+        .filter(|(k, _)| shift.get(*k).copied().flatten().is_some())
+        .map(|(k, r)| {
+            let level = fault_levels
+                .get(r.0)
+                .copied()
+                .flatten()
+                .filter(|_| faulty[r.0]);
+            match (mixtures.get(r.1).copied().flatten(), level) {
+                (Some(m), Some(level)) => {
+                    let s = sensitivity.get(k).copied().unwrap_or(1.0);
+                    Some(m.effect(r.2 - level.at(r.4, s), r.3.max(1e-4)).0)
+                }
+                _ => mixed(r).map(|m| m.0),
+            }
+        })
+        .collect();
     let mut vehicles = crate::vehicles::test(
         &vehicle_names,
         &vehicle_index,
