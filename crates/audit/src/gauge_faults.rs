@@ -281,6 +281,8 @@ pub(crate) fn test(
         split_ms: None,
     };
     let n = pts.len();
+    // the neighbouring splits' correlations, for the step's test and what it can see
+    let neighbours = split_correlations(pts);
     let mut rss_line = f64::INFINITY;
     if let Some(line) = line {
         let fit = line.fit;
@@ -307,11 +309,7 @@ pub(crate) fn test(
         // a step after the fifth of twenty fills was stated seen from 2.8 % with its standard error
         // half the one its test met, and 3 % went unseen)
         if n >= 2 * STEP_SIDE && s2 > 0.0 {
-            let mut weight_to = Vec::with_capacity(n + 1);
-            weight_to.push(0.0);
-            for p in pts {
-                weight_to.push(weight_to.last().copied().unwrap_or(0.0) + p.2);
-            }
+            let weight_to = cumulative_weights(pts);
             let total = weight_to[n];
             let (lo, hi) = (n.div_ceil(4), 3 * n / 4);
             let se = (lo.max(STEP_SIDE)..=hi.min(n - STEP_SIDE))
@@ -324,7 +322,7 @@ pub(crate) fn test(
                 let splits = (n + 1 - 2 * STEP_SIDE) as f64;
                 let z = normal_quantile(1.0 - 0.05 / (8.0 * REF_TANKS * splits));
                 let single = 2.0 * normal_upper_p(z);
-                let count = max_abs_normal_p(z, &split_correlations(pts)) / single;
+                let count = max_abs_normal_p(z, &neighbours) / single;
                 out.step_mid = Some((se, df_mod, count.clamp(1.0, splits)));
             }
         }
@@ -375,10 +373,7 @@ pub(crate) fn test(
             let p_fills = if guided {
                 (candidates.len() as f64 * p_split).min(1.0)
             } else {
-                max_abs_normal_p(
-                    normal_quantile(1.0 - 0.5 * p_split),
-                    &split_correlations(pts),
-                )
+                max_abs_normal_p(normal_quantile(1.0 - 0.5 * p_split), &neighbours)
             };
             // the readings' own evidence: the largest jump of the step's sign between the two fills
             // that split, independent of the fills' balances, combined with them by Fisher's
@@ -407,6 +402,16 @@ pub(crate) fn test(
     out
 }
 
+/// The points' weights summed before each index: n + 1 values from 0 to the total.
+fn cumulative_weights(pts: &[Point]) -> Vec<f64> {
+    std::iter::once(0.0)
+        .chain(pts.iter().scan(0.0, |sum, p| {
+            *sum += p.2;
+            Some(*sum)
+        }))
+        .collect()
+}
+
 /// The stated step size counts the splits as independent tests at the level of this many tanks: the
 /// count grows with the level, so for fewer tanks the statement errs large (common practice, no
 /// source).
@@ -418,11 +423,7 @@ const REF_TANKS: f64 = 50.0;
 /// (as the standardized partial sums of a random walk in its weights' time).
 fn split_correlations(pts: &[Point]) -> Vec<f64> {
     let n = pts.len();
-    let mut w = Vec::with_capacity(n + 1);
-    w.push(0.0);
-    for p in pts {
-        w.push(w.last().copied().unwrap_or(0.0) + p.2);
-    }
+    let w = cumulative_weights(pts);
     let total = w[n];
     (STEP_SIDE..n.saturating_sub(STEP_SIDE))
         .map(|k| {
