@@ -485,6 +485,22 @@ fn fleet_pass(
         return (gauges, Vec::new(), fault_levels);
     }
 
+    // what a set-apart vehicle adds to fill k's ratio and the variance left (see `mixed`), at a
+    // tank whose gauge is faulty judged short or honest against the tank's level at its time under
+    // the fault: against one level for the year, every honest fill after a step down would look
+    // short, the gauge's scale would take the step for shortfalls, and so would the vehicle's test
+    let mixed_at = |k: usize, r: &(usize, usize, f64, f64, i64, usize)| -> Option<(f64, f64)> {
+        match (
+            mixtures.get(r.1).copied().flatten(),
+            fault_levels.get(r.0).copied().flatten(),
+        ) {
+            (Some(m), Some(level)) => {
+                let s = sensitivity.get(k).copied().unwrap_or(1.0);
+                Some(m.effect(r.2 - level.at(r.4, s), r.3.max(1e-4)))
+            }
+            _ => mixed(r),
+        }
+    };
     // the fleet's levels and vehicle effects; at a tank with a gauge fault its fills' ratios less
     // the fault's part at their time (the vehicles met there are still compared), a faulty tank
     // whose fault has no fitted shape left out
@@ -533,21 +549,9 @@ fn fleet_pass(
             kept_k += usize::from(in_fit);
             let veh = kept_fit.vehicle.get(r.1).copied().unwrap_or(0.0);
             let n_v = n_of_vehicle.get(r.1).copied().unwrap_or(0).max(1) as f64;
-            // at a tank whose gauge is faulty, a set-apart vehicle's fill is judged short or
-            // honest against the tank's level at its time under the gauge's fault: against one
-            // level for the year, every honest fill after a step down would look short, and the
-            // gauge's scale would take the step for shortfalls
-            let (x, ratio_var) = match (
-                mixtures.get(r.1).copied().flatten(),
-                fault_levels.get(r.0).copied().flatten(),
-            ) {
-                (Some(m), Some(level)) => {
-                    let u = r.3.max(1e-4);
-                    let s = sensitivity.get(k).copied().unwrap_or(1.0);
-                    let (e, v) = m.effect(r.2 - level.at(r.4, s), u);
-                    (r.2 - e, u * u + v)
-                }
-                _ => gauge_point(r, veh),
+            let (x, ratio_var) = match mixed_at(k, r) {
+                Some((e, v)) => (r.2 - e, r.3.max(1e-4).powi(2) + v),
+                None => gauge_point(r, veh),
             };
             let per_span = ratio_per_span.get(r.0).copied().unwrap_or(1.0);
             obs[r.0].push((
@@ -598,25 +602,11 @@ fn fleet_pass(
     // vehicle bias, on the final verdicts
     // a set-apart vehicle's fills enter its tanks' levels less their expected shortfall, so its
     // short deliveries do not pull the level the other vehicles are compared with
-    // (at a faulty tank against its level under the fault at the fill's time, as for the scale)
     let kept_mixed: Vec<Option<f64>> = rows
         .iter()
         .enumerate()
         .filter(|(k, _)| shift.get(*k).copied().flatten().is_some())
-        .map(|(k, r)| {
-            let level = fault_levels
-                .get(r.0)
-                .copied()
-                .flatten()
-                .filter(|_| faulty[r.0]);
-            match (mixtures.get(r.1).copied().flatten(), level) {
-                (Some(m), Some(level)) => {
-                    let s = sensitivity.get(k).copied().unwrap_or(1.0);
-                    Some(m.effect(r.2 - level.at(r.4, s), r.3.max(1e-4)).0)
-                }
-                _ => mixed(r).map(|m| m.0),
-            }
-        })
+        .map(|(k, r)| mixed_at(k, r).map(|m| m.0))
         .collect();
     let mut vehicles = crate::vehicles::test(
         &vehicle_names,

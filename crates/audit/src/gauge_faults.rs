@@ -907,6 +907,16 @@ mod tests {
         }
     }
 
+    /// `n` monthly fills at ratio 1 ± 0.01, signs repeating (plus, minus, minus, plus), fill i of
+    /// weight `weight(i)`.
+    fn monthly_alternating(n: i64, weight: impl Fn(i64) -> f64) -> Vec<Point> {
+        let month = 30 * 86_400_000_i64;
+        let sign = [1.0, -1.0, -1.0, 1.0];
+        (0..n)
+            .map(|i| (i * month, 1.0 + 0.01 * sign[i as usize % 4], weight(i)))
+            .collect()
+    }
+
     /// A step's stated standard error takes the fills' own weights at every split with a quarter of
     /// the fills or more on either side, by hand. Sixteen monthly fills at ratio 1 ± 0.01, signs
     /// repeating (plus, minus, minus, plus), the first four and the last four of weight 0.25, the
@@ -918,14 +928,7 @@ mod tests {
     /// 0.0058321: the statement that failed.)
     #[test]
     fn a_steps_stated_error_takes_the_weights_by_hand() {
-        let month = 30 * 86_400_000_i64;
-        let sign = [1.0, -1.0, -1.0, 1.0];
-        let pts: Vec<Point> = (0..16)
-            .map(|i| {
-                let w = if (4..12).contains(&i) { 1.0 } else { 0.25 };
-                (i * month, 1.0 + 0.01 * sign[i as usize % 4], w)
-            })
-            .collect();
+        let pts = monthly_alternating(16, |i| if (4..12).contains(&i) { 1.0 } else { 0.25 });
         let t = test(&pts, RobustLine::of(&pts).as_ref(), &[], 1.0, None);
         let (se, df, splits) = t.step_mid.unwrap();
         assert!((se - 0.0089087).abs() < 1e-6, "{se}");
@@ -946,11 +949,7 @@ mod tests {
     /// statistics.NormalDist).
     #[test]
     fn the_sizes_the_tests_can_see_by_hand() {
-        let month = 30 * 86_400_000_i64;
-        let sign = [1.0, -1.0, -1.0, 1.0];
-        let pts: Vec<Point> = (0..12)
-            .map(|i| (i * month, 1.0 + 0.01 * sign[i as usize % 4], 1.0))
-            .collect();
+        let pts = monthly_alternating(12, |_| 1.0);
         let t = test(&pts, RobustLine::of(&pts).as_ref(), &[], 1.0, None);
         let (se, df, splits) = t.step_mid.unwrap();
         assert!((se - 0.0073030).abs() < 1e-6, "{se}");
