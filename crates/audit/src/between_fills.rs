@@ -80,16 +80,14 @@ pub(crate) fn findings(
             });
             continue;
         }
-        // a jump that is an unexplained gain (an unlogged fill) says nothing of the gauge
-        if z.abs() >= JUMP_KEPT_Z {
-            jumps.push(Jump {
-                from_ms: iv.from_ms,
-                to_ms: iv.to_ms,
-                z,
-                sd_kg: sd,
-                span_kg: iv.from_span_kg,
-            });
-        }
+        // every clean interval, for the gauge test to find and date a step (an unexplained gain,
+        // an unlogged fill, says nothing of the gauge)
+        jumps.push(Jump {
+            from_ms: iv.from_ms,
+            to_ms: iv.to_ms,
+            z: z as f32,
+            span_per_sd: (iv.from_span_kg / sd) as f32,
+        });
         judged.push((iv.from_ms, iv.to_ms, lost - expected, z, usage, lost));
         fill.push(false);
     }
@@ -163,10 +161,6 @@ fn leak_detectable(ctx: &Ctx<'_>, sums: &Sums, judged: &[Judged]) -> Option<f64>
 
 /// One judged interval: (from ms, to ms, excess loss kg, standardized excess, use kg/day, loss kg).
 pub(crate) type Judged = (i64, i64, f64, f64, f64, f64);
-
-/// Intervals departing from the use model by this many standard uncertainties are kept as jumps:
-/// the gauge test weighs those of three or more as evidence of a step and uses all to date one.
-const JUMP_KEPT_Z: f64 = 1.5;
 
 /// Runs less than this apart are one loss (a fill's interval, or a day of ordinary use, inside a
 /// leak splits its run).

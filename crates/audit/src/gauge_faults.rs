@@ -52,10 +52,6 @@ const STEP_SIDE: usize = 3;
 /// Jumps of the readings under this many standard uncertainties are no evidence of a step (they date
 /// one).
 const JUMP_EVIDENCE_Z: f64 = 3.0;
-/// A jump in a stretch next to the fills' best split dates the step only from this many standard
-/// uncertainties (measured on 67 independent fleets: with 3, 15 stepped gauges found were dated more
-/// than a week off; 2.5, 12; 2, 10; 1.5, 11).
-const NEIGHBOUR_JUMP_Z: f64 = 2.0;
 /// A jump of the readings this many standard uncertainties from the use model places a step.
 const JUMP_Z: f64 = 4.0;
 /// Intervals between readings counted per day of a stretch, for the Bonferroni bound of its largest
@@ -261,8 +257,9 @@ impl RobustLine {
 }
 
 /// Test one tank's points (sorted by time) and their robust `line`, its scatter floored at the
-/// moderated estimate of the fleet's `prior`; `ratio_per_span` is the fills' mean sensitivity to the
-/// span. Sizes come back in the ratios' terms.
+/// moderated estimate of the fleet's `prior`, with its intervals between readings, `jumps` (in time
+/// order); `ratio_per_span` is the fills' mean sensitivity to the span. Sizes come back in the
+/// ratios' terms.
 pub(crate) fn test(
     pts: &[Point],
     line: Option<&RobustLine>,
@@ -331,7 +328,7 @@ pub(crate) fn test(
         // candidate splits: where the readings jumped (a step shows there at once), else every split
         let mut candidates: Vec<usize> = jumps
             .iter()
-            .filter(|j| j.z.abs() >= JUMP_Z)
+            .filter(|j| f64::from(j.z).abs() >= JUMP_Z)
             .filter_map(|j| {
                 let k = pts.partition_point(|p| p.0 < j.to_ms);
                 (STEP_SIDE..=n - STEP_SIDE).contains(&k).then_some(k)
@@ -564,6 +561,15 @@ fn t_p(t: f64, df: f64) -> f64 {
     }
 }
 
+/// The intervals of `jumps` (in time order, as the readings) that lie within [from, to].
+fn within(jumps: &[Jump], from: i64, to: i64) -> impl Iterator<Item = &Jump> {
+    let start = jumps.partition_point(|j| j.from_ms < from);
+    jumps[start..]
+        .iter()
+        .take_while(move |j| j.from_ms < to)
+        .filter(move |j| j.to_ms <= to)
+}
+
 /// The p-value of the largest jump of the readings between fills at `from` and `to` that a step of
 /// the span of `size` explains: of the sign it gives (a span reading low makes the tank seem to
 /// lose) and within [`JUMP_FIT_Z`] standard uncertainties of the size it gives (the step times the
@@ -572,15 +578,11 @@ fn t_p(t: f64, df: f64) -> f64 {
 /// tail, Bonferroni over the stretch's intervals ([`INTERVALS_PER_DAY`]); 1 without such a jump
 /// (jumps under [`JUMP_EVIDENCE_Z`] do not count).
 fn jump_p(from: i64, to: i64, size: f64, jumps: &[Jump]) -> f64 {
-    let z = jumps
-        .iter()
-        .filter(|j| j.from_ms >= from && j.to_ms <= to && j.z * size < 0.0)
-        .filter(|j| j.z.abs() >= JUMP_EVIDENCE_Z)
-        .filter(|j| {
-            let expected = size.abs() * j.span_kg / j.sd_kg.max(1e-9);
-            (j.z.abs() - expected).abs() <= JUMP_FIT_Z
-        })
-        .map(|j| j.z.abs())
+    let z = within(jumps, from, to)
+        .map(|j| (f64::from(j.z), f64::from(j.span_per_sd)))
+        .filter(|(z, _)| z * size < 0.0 && z.abs() >= JUMP_EVIDENCE_Z)
+        .filter(|(z, span_per_sd)| (z.abs() - size.abs() * span_per_sd).abs() <= JUMP_FIT_Z)
+        .map(|(z, _)| z.abs())
         .fold(0.0, f64::max);
     if z <= 0.0 {
         return 1.0;
@@ -597,15 +599,18 @@ fn jump_p(from: i64, to: i64, size: f64, jumps: &[Jump]) -> f64 {
 const DATE_STRETCHES: usize = 3;
 
 /// When a step of the span of `size` happened, the fills split before `k`: the change time's maximum
-/// likelihood over the intervals between readings within [`DATE_STRETCHES`] stretches of the split.
-/// A time in the stretch before fill k′ puts the fills from k′ after the step (the fills' log
-/// likelihood −ΔRSS/2s² against the best split, `s2` the scatter's variance) and the step's jump in
-/// that interval (the readings' log likelihood ratio z·e − e²/2 of a loss e standard
-/// uncertainties beyond use, e the step times the reading's span mass over the interval's uncertainty,
-/// against none). The neighbouring stretches count only jumps of [`NEIGHBOUR_JUMP_Z`] or more (a
-/// fill or two after a step often reads between the two levels, since the use model takes in part
-/// of the step's loss, so the best split can fall a fill late; a weaker jump there is more often
-/// use than the step). The best with a positive sum; else the middle of the split's stretch.
+/// likelihood over the intervals between readings within [`DATE_STRETCHES`] stretches of the split
+/// (a change point at an unknown time, Hinkley, Biometrika 57, 1970). The step in interval i of the
+/// stretch before fill k′ puts the fills from k′ after it (the fills' log likelihood −ΔRSS/2s²
+/// against the best split, `s2` the scatter's variance) and its jump in that interval (the readings'
+/// log likelihood ratio z·e − e²/2 of the interval's loss z standard uncertainties beyond use, under
+/// a step that gives e, the step times the reading's span mass over the interval's uncertainty,
+/// against none). Every interval counts, so a still one where the step would have shown says it was
+/// not there. z is held within [`JUMP_FIT_Z`] of what either account expects of it (in e's
+/// direction, from −c to e + c: bounded influence, as Huber's, 1964), so a swing of use far beyond
+/// the step's size does not outweigh the rest, while a gain still counts against a step down. A
+/// prior uniform in time adds the interval's log length. A stretch with no interval between
+/// readings is a candidate at its middle, with its fills' term and its length.
 fn date(q: &[Point], k: usize, size: f64, s2: f64, jumps: &[Jump]) -> i64 {
     let n = q.len();
     let rss_at = |k: usize| {
@@ -614,19 +619,29 @@ fn date(q: &[Point], k: usize, size: f64, s2: f64, jumps: &[Jump]) -> i64 {
         rss(&q[..k], m1) + rss(&q[k..], m2)
     };
     let r0 = rss_at(k);
+    let log_days = |ms: i64| (ms.max(1) as f64 / DAY_MS).ln();
     let mut best: Option<(f64, i64)> = None;
+    let mut keep = |score: f64, at: i64| {
+        if best.is_none_or(|b| score > b.0) {
+            best = Some((score, at));
+        }
+    };
     for kk in k.saturating_sub(DATE_STRETCHES).max(1)..=(k + DATE_STRETCHES).min(n - 1) {
         let fills = -(rss_at(kk) - r0) / (2.0 * s2.max(1e-300));
         let (from, to) = (q[kk - 1].0, q[kk].0);
-        // a neighbouring stretch only on a jump that is evidence of a step by itself
-        let z_min = if kk == k { 0.0 } else { NEIGHBOUR_JUMP_Z };
-        let inside = |j: &&Jump| j.from_ms >= from && j.to_ms <= to && j.z.abs() >= z_min;
-        for j in jumps.iter().filter(inside) {
-            let e = -size * j.span_kg / j.sd_kg.max(1e-9);
-            let score = fills + j.z * e - 0.5 * e * e;
-            if score > 0.0 && best.is_none_or(|b| score > b.0) {
-                best = Some((score, j.to_ms));
-            }
+        let mut any = false;
+        for j in within(jumps, from, to) {
+            any = true;
+            let e = (size * f64::from(j.span_per_sd)).abs();
+            // z in the direction of the step's loss (a span reading low makes the tank seem to lose)
+            let z = (-f64::from(j.z) * size.signum()).clamp(-JUMP_FIT_Z, e + JUMP_FIT_Z);
+            keep(
+                fills + z * e - 0.5 * e * e + log_days(j.to_ms - j.from_ms),
+                j.to_ms,
+            );
+        }
+        if !any {
+            keep(fills + log_days(to - from), from + (to - from) / 2);
         }
     }
     best.map_or(q[k - 1].0 + (q[k].0 - q[k - 1].0) / 2, |b| b.1)
@@ -662,9 +677,8 @@ mod tests {
         Jump {
             from_ms: 5 * month + 86_400_000,
             to_ms: 5 * month + 2 * 86_400_000,
-            z,
-            sd_kg: 50.0,
-            span_kg: 10_000.0,
+            z: z as f32,
+            span_per_sd: 200.0,
         }
     }
 
@@ -779,15 +793,18 @@ mod tests {
     }
 
     /// Dating, constructed: twelve monthly fills at 1.00, the seventh at 0.99 and the rest at 0.97
-    /// (σ 1 %), split before the eighth (RSS 0.857 against 3.333 before the seventh, by hand: the
-    /// fills alone place the step a fill late). A loss of 3.5 standard uncertainties where a 3 %
-    /// step of 10 t read at ±100 kg gives e = 3 (log likelihood ratio 3.5·3 − 4.5 = 6 against the
-    /// fills' −(3.333 − 0.857)/2 = −1.24) dates it in the stretch before the seventh fill, and so
-    /// does one of 2.5 (2.5·3 − 4.5 − 1.24 = 1.76), even beside a jump of 2 in the split's stretch
-    /// (2·3 − 4.5 = 1.5); one of 1.8 there is no evidence by itself and leaves the split's stretch
-    /// (its middle, or that jump of 2); a gain there never dates a step down. Three stretches back
-    /// (before the fifth fill, RSS 14 by hand) a jump of 4.5 dates it (4.5·3 − 4.5 − (14 − 0.857)/2 =
-    /// 2.43) and one of 3.5 does not.
+    /// (σ 1 %), split before the eighth. The fills' RSS by hand for a split before the fifth to the
+    /// eleventh fill: 14, 9.429, 3.333, 0.857, 8, 13.556, 18 (their log likelihoods against the best,
+    /// −(RSS − 0.857)/2: −6.571, −4.286, −1.238, 0, −3.571, −6.349, −8.571; the fills alone place the
+    /// step a fill late). Every one-day interval has e = 3 (a 3 % step of 10 t read at ±100 kg), and
+    /// a still day (z = 0) in each stretch scores its fills' term − 4.5. A loss of 3.5 in the stretch
+    /// before the seventh fill scores −1.238 + 10.5 − 4.5 = 4.762 and dates the step there; one of 1.8
+    /// (−0.338) still beats every still day, but not one of 2 in the split's stretch (1.5). A gain
+    /// there counts against a step down (z held at −2.576: −13.466), leaving the still day of the
+    /// split's stretch (−4.5). A swing of 9 in the stretch before the tenth fill is held at
+    /// 3 + 2.576 (−6.349 + 16.728 − 4.5 = 5.879) and loses to a loss of 3.5 in the split's stretch
+    /// (6; unheld, 16.151, it would win). A split's stretch without readings is a candidate at its
+    /// middle, with its length's log prior, ln 30 = 3.401, over still days elsewhere.
     #[test]
     fn a_step_is_dated_by_the_fills_and_the_readings_together() {
         let month = 30 * 86_400_000_i64;
@@ -805,50 +822,44 @@ mod tests {
         let jump = |at: i64, z: f64| Jump {
             from_ms: at,
             to_ms: at + day,
-            z,
-            sd_kg: 100.0,
-            span_kg: 10_000.0,
+            z: z as f32,
+            span_per_sd: 100.0,
+        };
+        // a still day on day 20 of each stretch searched (before the fifth to the eleventh fill)
+        let still: Vec<Jump> = (4..=10)
+            .map(|kk| jump((kk - 1) * month + 20 * day, 0.0))
+            .collect();
+        // in time order, as a tank's intervals come
+        let with = |extra: &[Jump]| -> Vec<Jump> {
+            let mut all: Vec<Jump> = still.iter().chain(extra).copied().collect();
+            all.sort_by_key(|j| j.from_ms);
+            all
         };
         let before_7th = 5 * month + 10 * day;
         let in_split = 6 * month + 10 * day;
-        let middle = 6 * month + month / 2;
+        let split_still = 6 * month + 21 * day;
         let k = 7;
+        let at = |js: &[Jump]| date(&q, k, -0.03, 1.0, js);
+        assert_eq!(at(&with(&[jump(before_7th, 3.5)])), before_7th + day);
+        assert_eq!(at(&with(&[jump(before_7th, 1.8)])), before_7th + day);
         assert_eq!(
-            date(&q, k, -0.03, 1.0, &[jump(before_7th, 3.5)]),
-            before_7th + day
-        );
-        assert_eq!(
-            date(&q, k, -0.03, 1.0, &[jump(before_7th, 2.5)]),
-            before_7th + day
-        );
-        assert_eq!(
-            date(
-                &q,
-                k,
-                -0.03,
-                1.0,
-                &[jump(before_7th, 2.5), jump(in_split, 2.0)]
-            ),
-            before_7th + day
-        );
-        assert_eq!(date(&q, k, -0.03, 1.0, &[jump(before_7th, 1.8)]), middle);
-        assert_eq!(
-            date(
-                &q,
-                k,
-                -0.03,
-                1.0,
-                &[jump(before_7th, 1.8), jump(in_split, 2.0)]
-            ),
+            at(&with(&[jump(before_7th, 1.8), jump(in_split, 2.0)])),
             in_split + day
         );
-        assert_eq!(date(&q, k, -0.03, 1.0, &[jump(before_7th, -3.5)]), middle);
-        let before_5th = 3 * month + 10 * day;
+        assert_eq!(at(&with(&[jump(before_7th, -3.5)])), split_still);
+        assert_eq!(at(&still), split_still);
+        let before_10th = 8 * month + 10 * day;
         assert_eq!(
-            date(&q, k, -0.03, 1.0, &[jump(before_5th, 4.5)]),
-            before_5th + day
+            at(&with(&[jump(before_10th, 9.0), jump(in_split, 3.5)])),
+            in_split + day
         );
-        assert_eq!(date(&q, k, -0.03, 1.0, &[jump(before_5th, 3.5)]), middle);
+        assert_eq!(at(&with(&[jump(before_10th, 9.0)])), before_10th + day);
+        let elsewhere: Vec<Jump> = still
+            .iter()
+            .filter(|j| j.from_ms / month != 6)
+            .copied()
+            .collect();
+        assert_eq!(at(&elsewhere), 6 * month + month / 2);
     }
 
     /// The split statistics' neighbour correlations and the Hunter–Worsley bound against a

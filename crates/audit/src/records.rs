@@ -170,21 +170,21 @@ pub struct GaugeStep {
     pub size_percent: f64,
 }
 
-/// An interval whose loss departs from the use model by 1.5 standard uncertainties or more: where a
-/// gauge step shows in the readings (those of three or more are evidence of one; all help date it).
+/// An interval between readings and its loss's departure from the use model: where a gauge step
+/// shows in the readings (a jump of three standard uncertainties or more is evidence of one; every
+/// interval helps date it, a still one by saying the step was not there).
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
 pub struct Jump {
     /// Start, ms.
     pub from_ms: i64,
     /// End, ms.
     pub to_ms: i64,
-    /// (lost − expected) / its standard uncertainty: positive when the tank seemed to lose.
-    pub z: f64,
-    /// That standard uncertainty, kg.
-    pub sd_kg: f64,
-    /// How far the reading at its start moves per unit relative error of the gauge's span, kg (a
-    /// span's step moves the reading by its size times this).
-    pub span_kg: f64,
+    /// (lost − expected) / its standard uncertainty: positive when the tank seemed to lose (single
+    /// precision: one of every interval of every tank is kept).
+    pub z: f32,
+    /// How far the reading at its start moves per unit relative error of the gauge's span, over the
+    /// interval's standard uncertainty, 1 (a span's step of ε moves the interval's z by ε times this).
+    pub span_per_sd: f32,
 }
 
 /// What a finding between fills is.
@@ -270,8 +270,8 @@ pub struct TankAudit {
     /// The site's clock the use model took, hours east of UTC, when the site names no time zone and
     /// the tank's use shows one other than UTC (see [`crate::TankInput::zone`]).
     pub clock_offset_hours: Option<i32>,
-    /// Intervals departing from the use model by 1.5 standard uncertainties or more (to find and
-    /// date steps).
+    /// Every interval between readings with no fill and no unexplained gain, with its departure
+    /// from the use model (to find and date steps).
     #[serde(skip)]
     pub jumps: Vec<Jump>,
 }
