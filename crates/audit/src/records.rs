@@ -180,10 +180,11 @@ pub struct Jump {
     /// End, ms.
     pub to_ms: i64,
     /// (lost − expected) / its standard uncertainty: positive when the tank seemed to lose (single
-    /// precision: one of every interval of every tank is kept).
+    /// precision: one is kept for every interval of every tank).
     pub z: f32,
     /// How far the reading at its start moves per unit relative error of the gauge's span, over the
-    /// interval's standard uncertainty, 1 (a span's step of ε moves the interval's z by ε times this).
+    /// interval's standard uncertainty (dimensionless: a span's step of ε moves the interval's z by
+    /// ε times this).
     pub span_per_sd: f32,
 }
 
