@@ -605,7 +605,9 @@ const DATE_STRETCHES: usize = 3;
 /// against the best split, `s2` the scatter's variance) and its jump in that interval (the readings'
 /// log likelihood ratio z·e − e²/2 of the interval's loss z standard uncertainties beyond use, under
 /// a step that gives e, the step times the reading's span mass over the interval's uncertainty,
-/// against none). Every interval counts, so a still one where the step would have shown says it was
+/// against none), the step being the one that split gives the fills (the difference of their means
+/// either side, in proportion to the best split's `size`: a profile likelihood, each change time with
+/// its own step; a split whose means step the other way keeps `size`). Every interval counts, so a still one where the step would have shown says it was
 /// not there. z is held within [`JUMP_FIT_Z`] of what either account expects of it (in e's
 /// direction, from −c to e + c: bounded influence, as Huber's, 1964), so a swing of use far beyond
 /// the step's size does not outweigh the rest, while a gain still counts against a step down. A
@@ -619,6 +621,8 @@ fn date(q: &[Point], k: usize, size: f64, s2: f64, jumps: &[Jump]) -> i64 {
         rss(&q[..k], m1) + rss(&q[k..], m2)
     };
     let r0 = rss_at(k);
+    let diff = |k: usize| weighted_mean(&q[k..]).0 - weighted_mean(&q[..k]).0;
+    let step_k = diff(k);
     let log_days = |ms: i64| (ms.max(1) as f64 / DAY_MS).ln();
     let mut best: Option<(f64, i64)> = None;
     let mut keep = |score: f64, at: i64| {
@@ -629,10 +633,18 @@ fn date(q: &[Point], k: usize, size: f64, s2: f64, jumps: &[Jump]) -> i64 {
     for kk in k.saturating_sub(DATE_STRETCHES).max(1)..=(k + DATE_STRETCHES).min(n - 1) {
         let fills = -(rss_at(kk) - r0) / (2.0 * s2.max(1e-300));
         let (from, to) = (q[kk - 1].0, q[kk].0);
+        // the step this split gives the fills, scaled as the best split's (a profile likelihood: each
+        // change time with its own step); one of the other sign keeps the best split's
+        let step_kk = diff(kk);
+        let size_kk = if step_kk * step_k > 0.0 {
+            size * step_kk / step_k
+        } else {
+            size
+        };
         let mut any = false;
         for j in within(jumps, from, to) {
             any = true;
-            let e = (size * f64::from(j.span_per_sd)).abs();
+            let e = (size_kk * f64::from(j.span_per_sd)).abs();
             // z in the direction of the step's loss (a span reading low makes the tank seem to lose)
             let z = (-f64::from(j.z) * size.signum()).clamp(-JUMP_FIT_Z, e + JUMP_FIT_Z);
             keep(
@@ -793,18 +805,21 @@ mod tests {
     }
 
     /// Dating, constructed: twelve monthly fills at 1.00, the seventh at 0.99 and the rest at 0.97
-    /// (σ 1 %), split before the eighth. The fills' RSS by hand for a split before the fifth to the
-    /// eleventh fill: 14, 9.429, 3.333, 0.857, 8, 13.556, 18 (their log likelihoods against the best,
+    /// (σ 1 %), split before the eighth. By hand, for a split before the fifth to the eleventh fill:
+    /// the fills' RSS 14, 9.429, 3.333, 0.857, 8, 13.556, 18 (log likelihoods against the best,
     /// −(RSS − 0.857)/2: −6.571, −4.286, −1.238, 0, −3.571, −6.349, −8.571; the fills alone place the
-    /// step a fill late). Every one-day interval has e = 3 (a 3 % step of 10 t read at ±100 kg), and
-    /// a still day (z = 0) in each stretch scores its fills' term − 4.5. A loss of 3.5 in the stretch
-    /// before the seventh fill scores −1.238 + 10.5 − 4.5 = 4.762 and dates the step there; one of 1.8
-    /// (−0.338) still beats every still day, but not one of 2 in the split's stretch (1.5). A gain
-    /// there counts against a step down (z held at −2.576: −13.466), leaving the still day of the
-    /// split's stretch (−4.5). A swing of 9 in the stretch before the tenth fill is held at
-    /// 3 + 2.576 (−6.349 + 16.728 − 4.5 = 5.879) and loses to a loss of 3.5 in the split's stretch
-    /// (6; unheld, 16.151, it would win). A split's stretch without readings is a candidate at its
-    /// middle, with its length's log prior, ln 30 = 3.401, over still days elsewhere.
+    /// step a fill late) and the step of their means 2, 2.286, 2.667, 2.857, 2.5, 2.222, 2 %, so a
+    /// one-day interval's e (a 3 % step at the best split, of 10 t read at ±100 kg) is 3 times that
+    /// over 2.857: 2.1, 2.4, 2.8, 3, 2.625, 2.333, 2.1. A still day (z = 0) scores its fills' term
+    /// − e²/2: at most −4.5, in the split's stretch. A loss of 3.5 in the stretch before the seventh
+    /// fill scores −1.238 + 9.8 − 3.92 = 4.642 and dates the step there; one of 1.8 (−0.118) still
+    /// beats every still day, but not one of 2 in the split's stretch (1.5). A gain there counts
+    /// against a step down (z held at −2.576: −12.371), leaving the still day of the split's stretch.
+    /// A swing of 9 before the tenth fill is held at 2.333 + 2.576 (2.384) and loses to a loss of 3.5
+    /// in the split's stretch (6; unheld, 11.929, it would win). A loss of 2.1 before the fifth fill
+    /// is what that split's own step gives (e 2.1: −6.571 + 4.41 − 2.205 = −4.366) and beats the
+    /// split's still day; judged at the best split's step it would not (e 3: −4.771). A split's stretch
+    /// without readings is a candidate at its middle, with its length's log prior, ln 30 = 3.401.
     #[test]
     fn a_step_is_dated_by_the_fills_and_the_readings_together() {
         let month = 30 * 86_400_000_i64;
@@ -854,6 +869,8 @@ mod tests {
             in_split + day
         );
         assert_eq!(at(&with(&[jump(before_10th, 9.0)])), before_10th + day);
+        let before_5th = 3 * month + 10 * day;
+        assert_eq!(at(&with(&[jump(before_5th, 2.1)])), before_5th + day);
         let elsewhere: Vec<Jump> = still
             .iter()
             .filter(|j| j.from_ms / month != 6)
