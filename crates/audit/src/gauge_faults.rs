@@ -598,21 +598,22 @@ fn jump_p(from: i64, to: i64, size: f64, jumps: &[Jump]) -> f64 {
 /// the step having pushed the split three fills late on seed 9317; 4, 59).
 const DATE_STRETCHES: usize = 3;
 
-/// When a step of the span of `size` happened, the fills split before `k`: the change time's maximum
-/// likelihood over the intervals between readings within [`DATE_STRETCHES`] stretches of the split
-/// (a change point at an unknown time, Hinkley, Biometrika 57, 1970). The step in interval i of the
-/// stretch before fill k′ puts the fills from k′ after it (the fills' log likelihood −ΔRSS/2s²
-/// against the best split, `s2` the scatter's variance) and its jump in that interval (the readings'
-/// log likelihood ratio z·e − e²/2 of the interval's loss z standard uncertainties beyond use, under
-/// a step that gives e, the step times the reading's span mass over the interval's uncertainty,
-/// against none), the step being the one that split gives the fills (the difference of their means
-/// either side, in proportion to the best split's `size`: a profile likelihood, each change time with
-/// its own step; a split whose means step the other way keeps `size`). Every interval counts, so a still one where the step would have shown says it was
-/// not there. z is held within [`JUMP_FIT_Z`] of what either account expects of it (in e's
-/// direction, from −c to e + c: bounded influence, as Huber's, 1964), so a swing of use far beyond
-/// the step's size does not outweigh the rest, while a gain still counts against a step down. A
-/// prior uniform in time adds the interval's log length. A stretch with no interval between
-/// readings is a candidate at its middle, with its fills' term and its length.
+/// When a step of the span of `size` happened, the fills split before `k`: the change time's
+/// maximum likelihood over the intervals between readings within [`DATE_STRETCHES`] stretches of
+/// the split (a change point at an unknown time, Hinkley, Biometrika 57, 1970). The step in
+/// interval i of the stretch before fill k′ puts the fills from k′ after it (the fills' log
+/// likelihood −ΔRSS/2s² against the best split, `s2` the scatter's variance) and its jump in that
+/// interval (the readings' log likelihood ratio z·e − e²/2 of the interval's loss z standard
+/// uncertainties beyond use, under a step that gives e, the step times the reading's span mass over
+/// the interval's uncertainty, against none), the step being the one that split gives the fills
+/// (the difference of their means either side, in proportion to the best split's `size`: a profile
+/// likelihood, each change time with its own step; a split whose means step the other way keeps
+/// `size`). Every interval counts, so a still one where the step would have shown says it was not
+/// there. z is held within [`JUMP_FIT_Z`] of what either account expects of it (in e's direction,
+/// from −c to e + c: bounded influence, as Huber's, 1964), so a swing of use far beyond the step's
+/// size does not outweigh the rest, while a gain still counts against a step down. A prior uniform
+/// in time adds the interval's log length. A stretch with no interval between readings is a
+/// candidate at its middle, with its fills' term and its length.
 fn date(q: &[Point], k: usize, size: f64, s2: f64, jumps: &[Jump]) -> i64 {
     let n = q.len();
     let rss_at = |k: usize| {
@@ -621,7 +622,7 @@ fn date(q: &[Point], k: usize, size: f64, s2: f64, jumps: &[Jump]) -> i64 {
         rss(&q[..k], m1) + rss(&q[k..], m2)
     };
     let r0 = rss_at(k);
-    let diff = |k: usize| weighted_mean(&q[k..]).0 - weighted_mean(&q[..k]).0;
+    let diff = |at: usize| weighted_mean(&q[at..]).0 - weighted_mean(&q[..at]).0;
     let step_k = diff(k);
     let log_days = |ms: i64| (ms.max(1) as f64 / DAY_MS).ln();
     let mut best: Option<(f64, i64)> = None;
