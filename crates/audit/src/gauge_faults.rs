@@ -616,14 +616,13 @@ const DATE_STRETCHES: usize = 3;
 /// candidate at its middle, with its fills' term and its length.
 fn date(q: &[Point], k: usize, size: f64, s2: f64, jumps: &[Jump]) -> i64 {
     let n = q.len();
-    let rss_at = |k: usize| {
-        let (m1, _) = weighted_mean(&q[..k]);
-        let (m2, _) = weighted_mean(&q[k..]);
-        rss(&q[..k], m1) + rss(&q[k..], m2)
+    // a split's RSS about its two means and the step between them
+    let split = |at: usize| {
+        let (m1, _) = weighted_mean(&q[..at]);
+        let (m2, _) = weighted_mean(&q[at..]);
+        (rss(&q[..at], m1) + rss(&q[at..], m2), m2 - m1)
     };
-    let r0 = rss_at(k);
-    let diff = |at: usize| weighted_mean(&q[at..]).0 - weighted_mean(&q[..at]).0;
-    let step_k = diff(k);
+    let (r0, step_k) = split(k);
     let log_days = |ms: i64| (ms.max(1) as f64 / DAY_MS).ln();
     let mut best: Option<(f64, i64)> = None;
     let mut keep = |score: f64, at: i64| {
@@ -632,11 +631,11 @@ fn date(q: &[Point], k: usize, size: f64, s2: f64, jumps: &[Jump]) -> i64 {
         }
     };
     for kk in k.saturating_sub(DATE_STRETCHES).max(1)..=(k + DATE_STRETCHES).min(n - 1) {
-        let fills = -(rss_at(kk) - r0) / (2.0 * s2.max(1e-300));
+        let (r, step_kk) = split(kk);
+        let fills = -(r - r0) / (2.0 * s2.max(1e-300));
         let (from, to) = (q[kk - 1].0, q[kk].0);
         // the step this split gives the fills, scaled as the best split's (a profile likelihood: each
         // change time with its own step); one of the other sign keeps the best split's
-        let step_kk = diff(kk);
         let size_kk = if step_kk * step_k > 0.0 {
             size * step_kk / step_k
         } else {
